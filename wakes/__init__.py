@@ -1,0 +1,15 @@
+"""wakes: aerodynamic wakes of lifting systems with Lagrangian vortex methods.
+
+The public API is re-exported here; see the README for a tour.
+"""
+
+from .elements import Filaments, Particles
+from .errors import CaseError, InputError, NumericalError, WakesError
+from .induction.api import induce
+
+__version__ = "0.1.0"
+
+__all__ = [
+    "CaseError", "Filaments", "InputError", "NumericalError", "Particles",
+    "WakesError", "induce", "__version__",
+]

@@ -1,0 +1,95 @@
+"""Coercion and checking of user arrays at the public boundary.
+
+Every function here raises :class:`wakes.errors.InputError` with a message
+that names the argument, the offending index or value and what is accepted.
+Kernels downstream trust what passes through here.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .errors import InputError
+
+
+def _first_bad(mask: np.ndarray) -> tuple:
+    """Index tuple of the first True entry of ``mask``."""
+    return tuple(int(i) for i in np.argwhere(mask)[0])
+
+
+def _fmt_index(idx: tuple) -> str:
+    return "[" + ", ".join(str(i) for i in idx) + "]"
+
+
+def as_float_array(name: str, value, shape: tuple) -> np.ndarray:
+    """Return ``value`` as a C-contiguous float64 array of ``shape``.
+
+    ``shape`` entries that are ``None`` accept any length. Nothing is
+    reshaped or broadcast: a wrong shape is an error.
+    """
+    try:
+        arr = np.asarray(value, dtype=np.float64)
+    except (TypeError, ValueError) as exc:
+        raise InputError(f"{name} must be an array of real numbers with shape "
+                         f"{_shape_text(shape)}; could not convert it ({exc})") from None
+    if arr.ndim != len(shape) or any(s is not None and s != a for s, a in zip(shape, arr.shape)):
+        raise InputError(f"{name} must have shape {_shape_text(shape)}; got {arr.shape}")
+    bad = ~np.isfinite(arr)
+    if bad.any():
+        idx = _first_bad(bad)
+        raise InputError(f"{name} must be finite; {name}{_fmt_index(idx)} = {arr[idx]}")
+    return np.ascontiguousarray(arr)
+
+
+def per_element(name: str, value, n: int, *, positive: bool = False,
+                nonnegative: bool = False) -> np.ndarray:
+    """Return a float64 array of length ``n`` from a scalar or an (n,) array."""
+    try:
+        arr = np.asarray(value, dtype=np.float64)
+    except (TypeError, ValueError) as exc:
+        raise InputError(f"{name} must be a real number or an array of shape ({n},); "
+                         f"could not convert it ({exc})") from None
+    if arr.ndim == 0:
+        arr = np.full(n, float(arr))
+        scalar = True
+    elif arr.shape == (n,):
+        scalar = False
+    else:
+        raise InputError(f"{name} must be a scalar or have shape ({n},); got {arr.shape}")
+    where = (lambda i: f"{name} = {arr[i]}") if scalar else (lambda i: f"{name}[{i}] = {arr[i]}")
+    bad = ~np.isfinite(arr)
+    if bad.any():
+        i = int(np.argmax(bad))
+        raise InputError(f"{name} must be finite; {where(i)}")
+    if positive and (arr <= 0).any():
+        i = int(np.argmax(arr <= 0))
+        raise InputError(f"{name} must be positive; {where(i)}")
+    if nonnegative and (arr < 0).any():
+        i = int(np.argmax(arr < 0))
+        raise InputError(f"{name} must be zero or positive; {where(i)}")
+    return np.ascontiguousarray(arr)
+
+
+def choice(name: str, value, accepted) -> str:
+    """Check that ``value`` is one of the ``accepted`` names."""
+    accepted = list(accepted)
+    if not isinstance(value, str) or value not in accepted:
+        raise InputError(f"{name} must be one of {', '.join(repr(a) for a in accepted)}; "
+                         f"got {value!r}")
+    return value
+
+
+def positive_scalar(name: str, value, *, allow_zero: bool = False) -> float:
+    """Return ``value`` as a finite float that is positive (or zero if allowed)."""
+    try:
+        x = float(value)
+    except (TypeError, ValueError):
+        raise InputError(f"{name} must be a real number; got {value!r}") from None
+    if not np.isfinite(x) or x < 0 or (x == 0 and not allow_zero):
+        what = "zero or positive" if allow_zero else "positive"
+        raise InputError(f"{name} must be finite and {what}; got {value!r}")
+    return x
+
+
+def _shape_text(shape: tuple) -> str:
+    return "(" + ", ".join("N" if s is None else str(s) for s in shape) + ("," if len(shape) == 1 else "") + ")"

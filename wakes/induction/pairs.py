@@ -1,0 +1,147 @@
+"""The two pair laws, each written once and inlined by every driver.
+
+* :func:`particle_pair` -- regularized Biot--Savart of one vortex particle,
+  u = f(r^2) (alpha x r) / (4 pi), with f = q(rho)/|r|^3 and r = x - x_q
+  (Winckelmans & Leonard 1993, J. Comput. Phys. 109).
+* :func:`segment_pair` -- one straight vortex segment with a core factor,
+  u = Gamma/(4 pi) (r1 x r2) phi(h^2)/|r0|^2 r0.(r1/|r1| - r2/|r2|)
+  (Katz & Plotkin 2001, *Low-Speed Aerodynamics*), where phi(h^2) is the core
+  factor divided by h^2, h the distance from the segment's line.
+
+Both return the velocity without the 1/(4 pi) factor (drivers apply it once)
+and, when asked, the velocity gradient grad[j][k] = d u_j / d x_k. The kernel
+or core code is a compile-time constant after inlining, so every branch on it
+folds away. Nothing here checks its inputs: callers validate once.
+"""
+
+import math
+
+from numba import njit
+
+from .smoothing import (CORE_LAMB_OSEEN, CORE_RANKINE, CORE_SCULLY, CORE_SINGULAR,
+                        CORE_VATISTAS2, GAUSSIAN, LAMB_OSEEN_ALPHA, ROSENHEAD_MOORE,
+                        SINGULAR, WINCKELMANS_LEONARD)
+from .gaussian import gaussian_g
+
+# A target closer than this fraction of a segment's length to a singular
+# segment's line gets nothing from it (the line itself carries no velocity).
+SINGULAR_LINE_FRACTION_SQ = 1e-24
+
+# (1 - e^-x)/x = sum_n (-x)^n/(n+1)!; 15 terms reach round-off for x < 0.25.
+_N_LO_TERMS = 15
+_LO_SERIES = tuple((-1.0) ** n / math.factorial(n + 1) for n in range(_N_LO_TERMS))
+
+
+@njit(inline="always", cache=True)
+def particle_f(r2, s2, kernel):
+    """Smoothing factor f = q(rho)/|r|^3 and its derivative df/d(r^2).
+
+    Parameters
+    ----------
+    r2 : float
+        Squared distance |r|^2 [m^2].
+    s2 : float
+        Squared smoothing radius sigma^2 [m^2].
+    kernel : int
+        Kernel code from :mod:`wakes.induction.smoothing`.
+
+    Returns
+    -------
+    f : float
+        [1/m^3]; zero for the singular kernel at r = 0 (self-interaction).
+    df : float
+        d f / d(r^2) [1/m^5].
+    """
+    if kernel == SINGULAR:
+        if r2 > 0.0:
+            y = 1.0 / math.sqrt(r2)
+            y3 = y * y * y
+            return y3, -1.5 * y3 * y * y
+        return 0.0, 0.0
+    elif kernel == ROSENHEAD_MOORE:
+        y = 1.0 / math.sqrt(r2 + s2)
+        y3 = y * y * y
+        return y3, -1.5 * y3 * y * y
+    elif kernel == WINCKELMANS_LEONARD:
+        y = 1.0 / math.sqrt(r2 + s2)
+        y2 = y * y
+        y5 = y2 * y2 * y
+        num = r2 + 2.5 * s2
+        return num * y5, y5 * (1.0 - 2.5 * num * y2)
+    else:  # GAUSSIAN
+        inv_s2 = 1.0 / s2
+        g, dg = gaussian_g(r2 * inv_s2)
+        inv_s3 = inv_s2 * math.sqrt(inv_s2)
+        return g * inv_s3, dg * inv_s3 * inv_s2
+
+
+@njit(inline="always", cache=True)
+def segment_phi(h2, rc2, core):
+    """Core factor over h^2, phi(h^2) = F(h^2)/h^2, and d phi / d(h^2).
+
+    Parameters
+    ----------
+    h2 : float
+        Squared distance from the segment's line [m^2] (> 0 for singular).
+    rc2 : float
+        Squared core radius [m^2].
+    core : int
+        Core code from :mod:`wakes.induction.smoothing`.
+    """
+    if core == CORE_SINGULAR:
+        p = 1.0 / h2
+        return p, -p * p
+    elif core == CORE_RANKINE:
+        if h2 < rc2:
+            return 1.0 / rc2, 0.0
+        p = 1.0 / h2
+        return p, -p * p
+    elif core == CORE_LAMB_OSEEN:
+        a = LAMB_OSEEN_ALPHA / rc2
+        x = a * h2
+        if x < 0.25:
+            # Taylor series of (1 - e^-x)/x and its derivative: the closed
+            # forms cancel catastrophically near the core centre.
+            p = 0.0
+            dp = 0.0
+            for n in range(_N_LO_TERMS - 1, -1, -1):
+                p = p * x + _LO_SERIES[n]
+                if n >= 1:
+                    dp = dp * x + n * _LO_SERIES[n]
+            return a * p, a * a * dp
+        e = math.exp(-x)
+        p = (1.0 - e) / x
+        dp = (e * (1.0 + x) - 1.0) / (x * x)
+        return a * p, a * a * dp
+    elif core == CORE_SCULLY:
+        p = 1.0 / (rc2 + h2)
+        return p, -p * p
+    else:  # CORE_VATISTAS2
+        p = 1.0 / math.sqrt(rc2 * rc2 + h2 * h2)
+        return p, -h2 * p * p * p
+
+
+@njit(inline="always", cache=True)
+def segment_geometry(r1x, r1y, r1z, r2x, r2y, r2z):
+    """Shared geometry of the segment law.
+
+    Returns r0 = r1 - r2 (= B - A), c = r1 x r2, |c|^2, |r0|^2, the scalar
+    W = r0.(r1/|r1| - r2/|r2|), and the pieces of dW/dx.
+    """
+    r0x = r1x - r2x
+    r0y = r1y - r2y
+    r0z = r1z - r2z
+    cx = r1y * r2z - r1z * r2y
+    cy = r1z * r2x - r1x * r2z
+    cz = r1x * r2y - r1y * r2x
+    c2 = cx * cx + cy * cy + cz * cz
+    l2 = r0x * r0x + r0y * r0y + r0z * r0z
+    # A target on a node: |r| clamped so 0 * (1/|r|) stays 0 (c = 0 there).
+    n1 = max(r1x * r1x + r1y * r1y + r1z * r1z, 1e-300)
+    n2 = max(r2x * r2x + r2y * r2y + r2z * r2z, 1e-300)
+    i1 = 1.0 / math.sqrt(n1)
+    i2 = 1.0 / math.sqrt(n2)
+    d1 = r0x * r1x + r0y * r1y + r0z * r1z
+    d2 = r0x * r2x + r0y * r2y + r0z * r2z
+    w = d1 * i1 - d2 * i2
+    return r0x, r0y, r0z, cx, cy, cz, c2, l2, i1, i2, d1, d2, w
