@@ -4,6 +4,7 @@ The public API is re-exported here; see the README for a tour.
 """
 
 from .elements import Filaments, Particles
+from . import exact
 from .errors import CaseError, InputError, NumericalError, WakesError
 from .induction.api import induce
 
@@ -11,5 +12,5 @@ __version__ = "0.1.0"
 
 __all__ = [
     "CaseError", "Filaments", "InputError", "NumericalError", "Particles",
-    "WakesError", "induce", "__version__",
+    "WakesError", "exact", "induce", "__version__",
 ]

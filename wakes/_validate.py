@@ -38,7 +38,7 @@ def as_float_array(name: str, value, shape: tuple) -> np.ndarray:
     if bad.any():
         idx = _first_bad(bad)
         raise InputError(f"{name} must be finite; {name}{_fmt_index(idx)} = {arr[idx]}")
-    return np.ascontiguousarray(arr)
+    return np.ascontiguousarray(arr) if arr.ndim else arr
 
 
 def per_element(name: str, value, n: int, *, positive: bool = False,
