@@ -1,0 +1,250 @@
+"""Treecode: velocity and gradient of many vortex elements in O(N) work.
+
+Orchestrates the numba kernels of the ``tree_*`` modules on plain arrays;
+the public front end is :func:`wakes.induce` (``method="tree"``).
+
+Algorithm (a fast multipole method with Cartesian Taylor expansions and a
+dual tree traversal, Dehnen 2002, J. Comput. Phys. 179; regularized-kernel
+expansions as in Lindsay & Krasny 2001, J. Comput. Phys. 172):
+
+1. An octree over the targets, and one over each source set (reused when
+   the sources are the target points themselves).
+2. Moments of the vector potential about every source cell (particles:
+   alpha (y - z)^n; segments: the same integrated exactly along the
+   segment), shifted up the tree.
+3. A dual traversal splits cell pairs until they are far (expansion
+   converges, and the far kernel is the true one there) or both leaves.
+4. Far pairs add to the target cell's local expansion; local expansions are
+   shifted down the tree and evaluated at the targets as velocity (the
+   curl) and gradient. Near pairs are summed with the exact pair laws.
+
+The order p and the opening parameter theta come from the tolerance
+(:mod:`.tree_params`).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from . import tree_build, tree_expansion, tree_near, tree_params, tree_traverse
+from .tree_traverse import GAP, MAC_ONLY, TUBE
+
+
+@dataclass
+class _Tree:
+    """An octree over sorted points and the geometry of its cells."""
+
+    order: np.ndarray          # sorted position -> original index
+    start: np.ndarray
+    count: np.ndarray
+    first_child: np.ndarray
+    n_child: np.ndarray
+    depth_ptr: np.ndarray
+    center: np.ndarray = None
+    radius: np.ndarray = None
+
+    @property
+    def n_cells(self) -> int:
+        return self.start.shape[0]
+
+    @property
+    def leaves(self) -> np.ndarray:
+        return np.flatnonzero(self.n_child == 0)
+
+
+def _build(points_x, points_y, points_z, leaf_size) -> _Tree:
+    order, cells = tree_build.build_tree(points_x, points_y, points_z, leaf_size)
+    return _Tree(order, *cells)
+
+
+def _parent_array(tree: _Tree) -> np.ndarray:
+    parent = np.full(tree.n_cells, -1, np.int64)
+    internal = np.flatnonzero(tree.n_child)
+    for c in internal:
+        parent[tree.first_child[c]:tree.first_child[c] + tree.n_child[c]] = c
+    return parent
+
+
+def _sorted(a: np.ndarray, order: np.ndarray) -> np.ndarray:
+    return np.ascontiguousarray(a[order])
+
+
+def _upward(tree: _Tree, tables: dict, moments: np.ndarray) -> None:
+    """Shift leaf moments up to every internal cell, deepest first."""
+    for d in range(tree.depth_ptr.shape[0] - 2, -1, -1):
+        cells = np.arange(tree.depth_ptr[d], tree.depth_ptr[d + 1])
+        tree_expansion.m2m(cells, tree.first_child, tree.n_child, tree.center,
+                           tables["m2m_ptr"], tables["m2m_j"], tables["m2m_d"],
+                           tables["m2m_c"], tables["mono_parent"], tables["mono_dir"],
+                           moments)
+
+
+def _far_and_near(target: _Tree, source: _Tree, theta, kind, reach, axis, cos_half):
+    far_t, far_s, near_t, near_s = tree_traverse.dual_traverse(
+        target.center, target.radius, target.first_child, target.n_child,
+        source.center, source.radius, source.first_child, source.n_child,
+        theta, kind, reach, axis, cos_half)
+    far = tree_traverse.group_by_target(far_t, far_s, target.n_cells)
+    near = tree_traverse.group_by_target(near_t, near_s, target.n_cells)
+    return far, near
+
+
+def _apply_far(target: _Tree, source: _Tree, far, moments, tables, delta2, wl_coef,
+               local) -> None:
+    ptr, src = far
+    t_cells = np.flatnonzero(np.diff(ptr))
+    if t_cells.size == 0:
+        return
+    tree_expansion.m2l(t_cells, ptr, src, target.center, source.center, moments, delta2,
+                       wl_coef, tables["deg"], tables["rec1"], tables["rec2"],
+                       tables["sign"], tables["m2l_ptr"], tables["m2l_n"], tables["m2l_m"],
+                       tables["m2l_c"], local)
+
+
+@dataclass(frozen=True)
+class ParticleSet:
+    """Particle sources as arrays: positions (N, 3), strengths (N, 3),
+    radii (N,) [m], kernel code."""
+
+    positions: np.ndarray
+    strengths: np.ndarray
+    radii: np.ndarray
+    kernel: int
+
+
+@dataclass(frozen=True)
+class SegmentSet:
+    """Segment sources as arrays: start and end points (K, 3) [m],
+    circulation (K,) [m^2/s], core radius (K,) [m], core code."""
+
+    start: np.ndarray
+    end: np.ndarray
+    circulation: np.ndarray
+    core_radius: np.ndarray
+    core: int
+
+
+def tree_induce(targets: np.ndarray, sources: list, gradient: bool, tolerance: float,
+                leaf_size: int = tree_params.LEAF_SIZE):
+    """Velocity (and gradient) of particle and segment sets at the targets.
+
+    Parameters
+    ----------
+    targets : (M, 3) float64
+        Target points [m], M >= 1.
+    sources : list of ParticleSet or SegmentSet
+        Non-empty source sets; their fields add.
+    gradient : bool
+        Also compute the velocity gradient.
+    tolerance : float
+        Requested relative L2 error of the velocity (gradient: 10x).
+    leaf_size : int
+        Largest number of points in a leaf.
+
+    Returns
+    -------
+    vel : (M, 3) float64
+        Velocity [m/s].
+    grad : (M, 3, 3) float64 or (0, 3, 3)
+        grad[i, j, k] = d u_j / d x_k [1/s].
+    """
+    theta, p = tree_params.expansion_settings(tolerance)
+    tables = tree_expansion.expansion_tables(p)
+    nt = tree_expansion.n_terms(p)
+    m = targets.shape[0]
+    tx0, ty0, tz0 = (np.ascontiguousarray(targets[:, k]) for k in range(3))
+    target = _build(tx0, ty0, tz0, leaf_size)
+    tx, ty, tz = (_sorted(a, target.order) for a in (tx0, ty0, tz0))
+    target.center, target.radius = tree_build.point_cell_geometry(target.start, target.count,
+                                                                  tx, ty, tz)
+    t_leaves = target.leaves
+    local = np.zeros((target.n_cells, 3, nt))
+    vel = np.zeros((m, 3))
+    grad = np.zeros((m, 3, 3) if gradient else (0, 3, 3))
+    for s in sources:
+        if isinstance(s, ParticleSet):
+            _add_particles(s, targets, target, tx, ty, tz, t_leaves, tables, theta,
+                           tolerance, leaf_size, gradient, local, vel, grad)
+        else:
+            _add_segments(s, target, tx, ty, tz, t_leaves, tables, theta, tolerance,
+                          leaf_size, gradient, local, vel, grad)
+    parent = _parent_array(target)
+    for d in range(1, target.depth_ptr.shape[0] - 1):
+        cells = np.arange(target.depth_ptr[d], target.depth_ptr[d + 1])
+        tree_expansion.l2l(cells, parent, target.center, tables["l2l_ptr"], tables["l2l_j"],
+                           tables["l2l_d"], tables["l2l_c"], tables["mono_parent"],
+                           tables["mono_dir"], local)
+    tree_expansion.l2p(t_leaves, target.start, target.count, target.center, tx, ty, tz,
+                       local, tables["midx"], tables["up"], tables["mono_parent"],
+                       tables["mono_dir"], gradient, vel, grad)
+    out_v = np.empty_like(vel)
+    out_v[target.order] = vel
+    if not gradient:
+        return out_v, grad
+    out_g = np.empty_like(grad)
+    out_g[target.order] = grad
+    return out_v, out_g
+
+
+def _add_particles(s: ParticleSet, targets, target: _Tree, tx, ty, tz, t_leaves, tables,
+                   theta, tolerance, leaf_size, gradient, local, vel, grad) -> None:
+    nt = tables["midx"].shape[0]
+    pos = s.positions
+    if pos.shape == targets.shape and np.array_equal(pos, targets):
+        source = target  # sources are the targets: one tree serves both
+        sx, sy, sz = tx, ty, tz
+    else:
+        sx0, sy0, sz0 = (np.ascontiguousarray(pos[:, k]) for k in range(3))
+        source = _build(sx0, sy0, sz0, leaf_size)
+        sx, sy, sz = (_sorted(a, source.order) for a in (sx0, sy0, sz0))
+        source.center, source.radius = tree_build.point_cell_geometry(
+            source.start, source.count, sx, sy, sz)
+    ax, ay, az = (_sorted(s.strengths[:, k], source.order) for k in range(3))
+    sig = _sorted(s.radii, source.order)
+    moments = np.empty((source.n_cells, 3, nt))
+    tree_expansion.p2m_points(source.leaves, source.start, source.count, source.center,
+                              sx, sy, sz, ax, ay, az, tables["mono_parent"],
+                              tables["mono_dir"], moments)
+    _upward(source, tables, moments)
+    exact, delta2, wl_coef = tree_params.kernel_far_potential(s.kernel, s.radii)
+    if exact:
+        kind, reach = MAC_ONLY, np.zeros(source.n_cells)
+    else:
+        kind = GAP
+        reach = tree_params.particle_reach(s.kernel, tolerance) * \
+            tree_build.cell_max(source.start, source.count, sig)
+    far, near = _far_and_near(target, source, theta, kind, reach, np.zeros((1, 3)),
+                              np.ones(1))
+    _apply_far(target, source, far, moments, tables, delta2, wl_coef, local)
+    tree_near.particles_near(s.kernel, gradient, t_leaves, target.start, target.count,
+                             near[0], near[1], source.start, source.count, tx, ty, tz,
+                             sx, sy, sz, ax, ay, az, sig * sig, vel, grad)
+
+
+def _add_segments(s: SegmentSet, target: _Tree, tx, ty, tz, t_leaves, tables, theta,
+                  tolerance, leaf_size, gradient, local, vel, grad) -> None:
+    nt = tables["midx"].shape[0]
+    mid = 0.5 * (s.start + s.end)
+    source = _build(*(np.ascontiguousarray(mid[:, k]) for k in range(3)), leaf_size)
+    pax, pay, paz = (_sorted(s.start[:, k], source.order) for k in range(3))
+    pbx, pby, pbz = (_sorted(s.end[:, k], source.order) for k in range(3))
+    gam = _sorted(s.circulation, source.order)
+    rc = _sorted(s.core_radius, source.order)
+    source.center, source.radius, axis, cos_half = tree_build.segment_cell_geometry(
+        source.start, source.count, pax, pay, paz, pbx, pby, pbz)
+    n_gauss = tables["p"] // 2 + 1  # Gauss-Legendre exact to degree 2 n - 1 >= p
+    gx, gw = np.polynomial.legendre.leggauss(n_gauss)
+    moments = np.empty((source.n_cells, 3, nt))
+    tree_expansion.p2m_segments(source.leaves, source.start, source.count, source.center,
+                                pax, pay, paz, pbx, pby, pbz, gam, 0.5 * gx, 0.5 * gw,
+                                tables["mono_parent"], tables["mono_dir"], moments)
+    _upward(source, tables, moments)
+    reach = tree_params.core_reach(s.core, tolerance) * \
+        tree_build.cell_max(source.start, source.count, rc)
+    far, near = _far_and_near(target, source, theta, TUBE, reach, axis, cos_half)
+    _apply_far(target, source, far, moments, tables, 0.0, 0.0, local)
+    tree_near.segments_near(s.core, gradient, t_leaves, target.start, target.count,
+                            near[0], near[1], source.start, source.count, tx, ty, tz,
+                            pax, pay, paz, pbx, pby, pbz, gam, rc * rc, vel, grad)

@@ -1,0 +1,468 @@
+"""Cartesian Taylor expansions of the vortex vector potential.
+
+The velocity of vortex sources is the curl of a vector potential,
+u = curl(psi) / (4 pi) with psi_l(x) = sum_q alpha_q,l G(x - y_q); the
+gradient is the curl of its derivatives. G is 1/|r| for the singular law, or
+the potential of a uniform-radius algebraic kernel (Rosenhead--Moore:
+(r^2 + s^2)^(-1/2); Winckelmans--Leonard: (r^2 + s^2)^(-1/2) + s^2/2
+(r^2 + s^2)^(-3/2)), whose -G'(r)/r is the kernel's f(r^2).
+
+Far interactions use the Cartesian Taylor scheme of the fast multipole
+method with a total-order truncation (Dehnen 2002, J. Comput. Phys. 179;
+the Taylor coefficients of (r^2 + s^2)^(-nu) by recurrence as in Lindsay &
+Krasny 2001, J. Comput. Phys. 172):
+
+* moments about a source-cell centre z: ``M_l^n = sum_q alpha_q,l (y_q - z)^n``
+  (multi-index n, |n| <= p, no factorials);
+* local coefficients about a target-cell centre w: ``psi_l(w + d) =
+  sum_k L_l^k d^k``, with
+  ``L_l^k = sum_{|n| <= p - |k|} (-1)^|n| C(n + k, n) a_{n+k}(w - z) M_l^n``
+  and a_m = D^m G / m! the Taylor coefficients of G.
+
+The combined truncation |n| + |k| <= p equals the degree-p Taylor
+polynomial of G in (x - w) - (y - z), so for the singular kernel the
+potential error is the tail of a Legendre series, at most
+|alpha| theta^(p+1) / (D (1 - theta)) for theta = (b_s + b_t)/D.
+
+Multi-indices are numbered by total degree (all of degree 0, then 1, ...);
+the tables that drive the kernels are built once per order in
+:func:`expansion_tables`.
+"""
+
+from functools import lru_cache
+from math import comb
+
+import numpy as np
+from numba import njit, prange
+
+_FASTMATH = {"reassoc", "contract"}
+INV_4PI = 1.0 / (4.0 * np.pi)
+M2L_CHUNK = 64  # source cells per block of the M2L sum (keeps the block in L2)
+
+
+def n_terms(p: int) -> int:
+    """Number of multi-indices of total degree at most p: C(p + 3, 3)."""
+    return (p + 1) * (p + 2) * (p + 3) // 6
+
+
+@lru_cache(maxsize=None)
+def expansion_tables(p: int) -> dict:
+    """Index tables for expansions of order ``p`` (p >= 2).
+
+    Returns a dict of int64/float64 arrays; ``T = n_terms(p)``:
+
+    ``midx`` (T, 3)
+        The multi-indices.
+    ``mono_parent``, ``mono_dir`` (T,)
+        m = mono_parent[m] + e_{mono_dir[m]}, to build monomials in order.
+    ``rec1``, ``rec2`` (T, 3)
+        Index of m - e_i and of m - 2 e_i, or T (a slot holding zero).
+    ``deg`` (T,)
+        Total degree |m|.
+    ``sign`` (T,)
+        (-1)^|m|.
+    ``up`` (T, 3)
+        Index of m + e_i (valid for |m| < p), or -1.
+    ``m2l_ptr`` (T + 1,), ``m2l_n``, ``m2l_m``, ``m2l_c``
+        For each local index k, entries (n, m = n + k, C(n + k, n)) with
+        |n| + |k| <= p.
+    ``m2m_ptr``, ``m2m_j``, ``m2m_d``, ``m2m_c``
+        For each n, entries (j, n - j, C(n, j)) with j <= n.
+    ``l2l_ptr``, ``l2l_j``, ``l2l_d``, ``l2l_c``
+        For each k, entries (j, j - k, C(j, k)) with j >= k, |j| <= p.
+    """
+    if p < 2:
+        raise ValueError("expansion order must be at least 2")
+    midx = [(nx, d - nx - nz, nz) for d in range(p + 1) for nx in range(d, -1, -1)
+            for nz in range(0, d - nx + 1)]
+    index = {m: i for i, m in enumerate(midx)}
+    t = len(midx)
+    assert t == n_terms(p)
+    mi = np.array(midx, dtype=np.int64)
+    mono_parent = np.zeros(t, np.int64)
+    mono_dir = np.zeros(t, np.int64)
+    rec1 = np.full((t, 3), t, np.int64)
+    rec2 = np.full((t, 3), t, np.int64)
+    up = np.full((t, 3), -1, np.int64)
+    for i, m in enumerate(midx):
+        for d in range(3):
+            e = [0, 0, 0]
+            e[d] = 1
+            lower = tuple(a - b for a, b in zip(m, e))
+            lower2 = tuple(a - 2 * b for a, b in zip(m, e))
+            upper = tuple(a + b for a, b in zip(m, e))
+            if min(lower) >= 0:
+                rec1[i, d] = index[lower]
+                mono_parent[i] = index[lower]
+                mono_dir[i] = d
+            if min(lower2) >= 0:
+                rec2[i, d] = index[lower2]
+            if upper in index:
+                up[i, d] = index[upper]
+    sign = np.array([(-1.0) ** sum(m) for m in midx])
+
+    def cbin(a, b):
+        return comb(a[0], b[0]) * comb(a[1], b[1]) * comb(a[2], b[2])
+
+    def table(pairs_of):
+        ptr = [0]
+        cols = ([], [], [])
+        for i, m in enumerate(midx):
+            for a, b, c in pairs_of(m):
+                cols[0].append(a)
+                cols[1].append(b)
+                cols[2].append(c)
+            ptr.append(len(cols[0]))
+        return (np.array(ptr, np.int64), np.array(cols[0], np.int64),
+                np.array(cols[1], np.int64), np.array(cols[2], np.float64))
+
+    def m2l_entries(k):
+        out = []
+        for n in midx:
+            if sum(n) + sum(k) <= p:
+                s = tuple(a + b for a, b in zip(n, k))
+                out.append((index[n], index[s], float(cbin(s, n))))
+        return out
+
+    def m2m_entries(n):
+        return [(index[j], index[tuple(a - b for a, b in zip(n, j))], float(cbin(n, j)))
+                for j in midx if all(a <= b for a, b in zip(j, n))]
+
+    def l2l_entries(k):
+        return [(index[j], index[tuple(a - b for a, b in zip(j, k))], float(cbin(j, k)))
+                for j in midx if all(a >= b for a, b in zip(j, k))]
+
+    out = {"p": p, "midx": mi, "deg": mi.sum(axis=1), "mono_parent": mono_parent,
+           "mono_dir": mono_dir,
+           "rec1": rec1, "rec2": rec2, "sign": sign, "up": up}
+    for name, fn in (("m2l", m2l_entries), ("m2m", m2m_entries), ("l2l", l2l_entries)):
+        ptr, a, b, c = table(fn)
+        keys = ("n", "m", "c") if name == "m2l" else ("j", "d", "c")
+        out[f"{name}_ptr"] = ptr
+        for key, arr in zip(keys, (a, b, c)):
+            out[f"{name}_{key}"] = arr
+    return out
+
+
+# ----------------------------------------------------------------------------
+# small inline helpers
+# ----------------------------------------------------------------------------
+
+@njit(inline="always", cache=True)
+def _monomials(dx, dy, dz, parent, direction, mono):
+    """mono[m] = d^m for every multi-index m (len(mono) of them)."""
+    mono[0] = 1.0
+    for m in range(1, mono.shape[0]):
+        dd = direction[m]
+        f = dx if dd == 0 else (dy if dd == 1 else dz)
+        mono[m] = mono[parent[m]] * f
+
+
+@njit(inline="always", cache=True)
+def _add_point_moments(dx, dy, dz, wx, wy, wz, parent, direction, mono, mom):
+    """mom[l, n] += w_l d^n."""
+    _monomials(dx, dy, dz, parent, direction, mono)
+    for m in range(mono.shape[0]):
+        mom[0, m] += wx * mono[m]
+        mom[1, m] += wy * mono[m]
+        mom[2, m] += wz * mono[m]
+
+
+# ----------------------------------------------------------------------------
+# particle and segment moments (P2M), moment shifts (M2M)
+# ----------------------------------------------------------------------------
+
+@njit(parallel=True, cache=True, fastmath=_FASTMATH)
+def p2m_points(leaves, start, count, center, x, y, z, ax, ay, az, parent, direction,
+               moments):
+    """Moments of the point sources of each leaf about its centre.
+
+    ``moments`` (C, 3, T) is overwritten on the leaves listed in ``leaves``.
+    """
+    nt = moments.shape[2]
+    for li in prange(leaves.shape[0]):
+        c = leaves[li]
+        mono = np.empty(nt)
+        mom = moments[c]
+        mom[:, :] = 0.0
+        for j in range(start[c], start[c] + count[c]):
+            _add_point_moments(x[j] - center[c, 0], y[j] - center[c, 1], z[j] - center[c, 2],
+                               ax[j], ay[j], az[j], parent, direction, mono, mom)
+
+
+@njit(parallel=True, cache=True, fastmath=_FASTMATH)
+def p2m_segments(leaves, start, count, center, pax, pay, paz, pbx, pby, pbz, gam,
+                 gauss_x, gauss_w, parent, direction, moments):
+    """Moments of straight vortex segments about each leaf's centre.
+
+    A segment A->B of circulation Gamma is the line of vorticity
+    Gamma (B - A) ds' over s' in [0, 1]; its moments are the integrals of the
+    point moments along it, computed exactly by Gauss--Legendre quadrature
+    with nodes ``gauss_x`` in [-1/2, 1/2] about the midpoint and weights
+    ``gauss_w`` summing to one (exact for degree <= 2 len(gauss_x) - 1).
+    """
+    nt = moments.shape[2]
+    ng = gauss_x.shape[0]
+    for li in prange(leaves.shape[0]):
+        c = leaves[li]
+        mono = np.empty(nt)
+        mom = moments[c]
+        mom[:, :] = 0.0
+        for j in range(start[c], start[c] + count[c]):
+            ex = pbx[j] - pax[j]
+            ey = pby[j] - pay[j]
+            ez = pbz[j] - paz[j]
+            mx = 0.5 * (pax[j] + pbx[j]) - center[c, 0]
+            my = 0.5 * (pay[j] + pby[j]) - center[c, 1]
+            mz = 0.5 * (paz[j] + pbz[j]) - center[c, 2]
+            for g in range(ng):
+                w = gam[j] * gauss_w[g]
+                _add_point_moments(mx + gauss_x[g] * ex, my + gauss_x[g] * ey,
+                                   mz + gauss_x[g] * ez, w * ex, w * ey, w * ez,
+                                   parent, direction, mono, mom)
+
+
+@njit(parallel=True, cache=True, fastmath=_FASTMATH)
+def m2m(cells, first_child, n_child, center, ptr, j_idx, d_idx, coef, parent, direction,
+        moments):
+    """Moments of the internal cells in ``cells`` from their children's.
+
+    M_p^n = sum_{j <= n} C(n, j) M_c^j (z_c - z_p)^(n - j).
+    """
+    nt = moments.shape[2]
+    for ci in prange(cells.shape[0]):
+        c = cells[ci]
+        if n_child[c] == 0:
+            continue
+        mono = np.empty(nt)
+        out = moments[c]
+        out[:, :] = 0.0
+        for ch in range(first_child[c], first_child[c] + n_child[c]):
+            _monomials(center[ch, 0] - center[c, 0], center[ch, 1] - center[c, 1],
+                       center[ch, 2] - center[c, 2], parent, direction, mono)
+            mc = moments[ch]
+            for n in range(nt):
+                s0 = 0.0
+                s1 = 0.0
+                s2 = 0.0
+                for e in range(ptr[n], ptr[n + 1]):
+                    w = coef[e] * mono[d_idx[e]]
+                    j = j_idx[e]
+                    s0 += w * mc[0, j]
+                    s1 += w * mc[1, j]
+                    s2 += w * mc[2, j]
+                out[0, n] += s0
+                out[1, n] += s1
+                out[2, n] += s2
+
+
+# ----------------------------------------------------------------------------
+# moments to local coefficients (M2L)
+# ----------------------------------------------------------------------------
+
+@njit(inline="always", cache=True)
+def _taylor_coefficients(rx, ry, rz, inv_s, n_src, nu, deg, rec1, rec2, a):
+    """Taylor coefficients of (|R|^2 + delta^2)^(-nu) at R, for n_src points.
+
+    Recurrence (from s grad G = -2 nu R G, s = |R|^2 + delta^2):
+    s |m| a_m = -(2|m| - 2 + 2 nu) sum_i R_i a_{m-e_i} - (|m| - 2 + 2 nu) sum_i a_{m-2e_i}.
+    ``a`` (T + 1, chunk) on entry holds a_0 in row 0 and zero in row T.
+    """
+    nt = deg.shape[0]
+    for m in range(1, nt):
+        dm = deg[m]
+        c1 = -(2.0 * dm - 2.0 + 2.0 * nu) / dm
+        c2 = -(dm - 2.0 + 2.0 * nu) / dm
+        i0 = rec1[m, 0]
+        i1 = rec1[m, 1]
+        i2 = rec1[m, 2]
+        j0 = rec2[m, 0]
+        j1 = rec2[m, 1]
+        j2 = rec2[m, 2]
+        am = a[m]
+        a_i0 = a[i0]
+        a_i1 = a[i1]
+        a_i2 = a[i2]
+        a_j0 = a[j0]
+        a_j1 = a[j1]
+        a_j2 = a[j2]
+        for s in range(n_src):
+            am[s] = (c1 * (rx[s] * a_i0[s] + ry[s] * a_i1[s] + rz[s] * a_i2[s])
+                     + c2 * (a_j0[s] + a_j1[s] + a_j2[s])) * inv_s[s]
+
+
+@njit(parallel=True, cache=True, fastmath=_FASTMATH)
+def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
+        deg, rec1, rec2, sign, kptr, n_idx, m_idx, coef, local):
+    """Add the far source cells' potential to each target cell's local expansion.
+
+    Parameters
+    ----------
+    t_cells : (K,) int64
+        Target cells with a non-empty far list.
+    far_ptr, far_src : int64
+        CSR lists: source cells far_src[far_ptr[t]:far_ptr[t + 1]] of target t.
+    t_center, s_center : (C, 3) float64
+        Expansion centres.
+    moments : (Cs, 3, T) float64
+        Source moments.
+    delta2, wl_coef : float
+        Kernel potential G = s^(-1/2) + wl_coef s^(-3/2), s = |r|^2 + delta2
+        (0, 0 singular; sigma^2, 0 Rosenhead--Moore; sigma^2, sigma^2/2
+        Winckelmans--Leonard).
+    local : (Ct, 3, T) float64
+        Local coefficients, accumulated.
+    """
+    nt = moments.shape[2]
+    wl = wl_coef != 0.0
+    for ti in prange(t_cells.shape[0]):
+        t = t_cells[ti]
+        f0 = far_ptr[t]
+        f1 = far_ptr[t + 1]
+        a = np.empty((nt + 1, M2L_CHUNK))
+        b = np.empty((nt + 1, M2L_CHUNK))
+        mg = np.empty((3, nt, M2L_CHUNK))
+        rx = np.empty(M2L_CHUNK)
+        ry = np.empty(M2L_CHUNK)
+        rz = np.empty(M2L_CHUNK)
+        inv_s = np.empty(M2L_CHUNK)
+        acc = np.zeros((3, nt))
+        for c0 in range(f0, f1, M2L_CHUNK):
+            ns = min(M2L_CHUNK, f1 - c0)
+            for s in range(ns):
+                src = far_src[c0 + s]
+                rx[s] = t_center[t, 0] - s_center[src, 0]
+                ry[s] = t_center[t, 1] - s_center[src, 1]
+                rz[s] = t_center[t, 2] - s_center[src, 2]
+                s2 = rx[s] * rx[s] + ry[s] * ry[s] + rz[s] * rz[s] + delta2
+                inv_s[s] = 1.0 / s2
+                a[0, s] = np.sqrt(inv_s[s])
+                a[nt, s] = 0.0
+                if wl:
+                    b[0, s] = wl_coef * inv_s[s] * a[0, s]
+                    b[nt, s] = 0.0
+                for m in range(nt):
+                    sg = sign[m]
+                    mg[0, m, s] = sg * moments[src, 0, m]
+                    mg[1, m, s] = sg * moments[src, 1, m]
+                    mg[2, m, s] = sg * moments[src, 2, m]
+            _taylor_coefficients(rx, ry, rz, inv_s, ns, 0.5, deg, rec1, rec2, a)
+            if wl:
+                _taylor_coefficients(rx, ry, rz, inv_s, ns, 1.5, deg, rec1, rec2, b)
+                for m in range(nt):
+                    for s in range(ns):
+                        a[m, s] += b[m, s]
+            for k in range(nt):
+                s0 = 0.0
+                s1 = 0.0
+                s2 = 0.0
+                for e in range(kptr[k], kptr[k + 1]):
+                    c = coef[e]
+                    am = a[m_idx[e]]
+                    n = n_idx[e]
+                    m0 = mg[0, n]
+                    m1 = mg[1, n]
+                    m2 = mg[2, n]
+                    for s in range(ns):
+                        w = c * am[s]
+                        s0 += w * m0[s]
+                        s1 += w * m1[s]
+                        s2 += w * m2[s]
+                acc[0, k] += s0
+                acc[1, k] += s1
+                acc[2, k] += s2
+        for l in range(3):
+            for k in range(nt):
+                local[t, l, k] += acc[l, k]
+
+
+# ----------------------------------------------------------------------------
+# local shifts (L2L) and evaluation at the targets (L2P)
+# ----------------------------------------------------------------------------
+
+@njit(parallel=True, cache=True, fastmath=_FASTMATH)
+def l2l(cells, parent_of, center, ptr, j_idx, d_idx, coef, parent, direction, local):
+    """Add each cell's parent's local expansion, shifted to the cell's centre.
+
+    L_c^k += sum_{j >= k} C(j, k) L_p^j (w_c - w_p)^(j - k).
+    """
+    nt = local.shape[2]
+    for ci in prange(cells.shape[0]):
+        c = cells[ci]
+        pc = parent_of[c]
+        mono = np.empty(nt)
+        _monomials(center[c, 0] - center[pc, 0], center[c, 1] - center[pc, 1],
+                   center[c, 2] - center[pc, 2], parent, direction, mono)
+        lp = local[pc]
+        lc = local[c]
+        for k in range(nt):
+            s0 = 0.0
+            s1 = 0.0
+            s2 = 0.0
+            for e in range(ptr[k], ptr[k + 1]):
+                w = coef[e] * mono[d_idx[e]]
+                j = j_idx[e]
+                s0 += w * lp[0, j]
+                s1 += w * lp[1, j]
+                s2 += w * lp[2, j]
+            lc[0, k] += s0
+            lc[1, k] += s1
+            lc[2, k] += s2
+
+
+@njit(parallel=True, cache=True, fastmath=_FASTMATH)
+def l2p(leaves, start, count, center, tx, ty, tz, local, midx, up, parent, direction,
+        gradient, vel, grad):
+    """Evaluate the local expansions at the targets of each leaf.
+
+    The potential's local polynomial is turned once per leaf into the
+    velocity polynomial u = curl(psi) (degree p - 1) and, when asked, the
+    gradient polynomial (degree p - 2); each target then costs one set of
+    monomials and two dot products. Adds u / (4 pi) into ``vel`` (sorted
+    target order) and d u_j / d x_k / (4 pi) into ``grad[i, j, k]``.
+    """
+    nt = local.shape[2]
+    # number of multi-indices of degree <= p - 1 and <= p - 2
+    p = midx[nt - 1, 0] + midx[nt - 1, 1] + midx[nt - 1, 2]
+    n1 = p * (p + 1) * (p + 2) // 6
+    n2 = (p - 1) * p * (p + 1) // 6
+    for li in prange(leaves.shape[0]):
+        c = leaves[li]
+        lc = local[c]
+        uc = np.empty((3, n1))
+        for m in range(n1):
+            fx = midx[m, 0] + 1.0
+            fy = midx[m, 1] + 1.0
+            fz = midx[m, 2] + 1.0
+            ux_ = up[m, 0]
+            uy_ = up[m, 1]
+            uz_ = up[m, 2]
+            uc[0, m] = fy * lc[2, uy_] - fz * lc[1, uz_]
+            uc[1, m] = fz * lc[0, uz_] - fx * lc[2, ux_]
+            uc[2, m] = fx * lc[1, ux_] - fy * lc[0, uy_]
+        gc = np.empty((9, n2))
+        if gradient:
+            for m in range(n2):
+                for j in range(3):
+                    for k in range(3):
+                        gc[3 * j + k, m] = (midx[m, k] + 1.0) * uc[j, up[m, k]]
+        mono = np.empty(n1)
+        for i in range(start[c], start[c] + count[c]):
+            _monomials(tx[i] - center[c, 0], ty[i] - center[c, 1], tz[i] - center[c, 2],
+                       parent, direction, mono)
+            u0 = 0.0
+            u1 = 0.0
+            u2 = 0.0
+            for m in range(n1):
+                u0 += uc[0, m] * mono[m]
+                u1 += uc[1, m] * mono[m]
+                u2 += uc[2, m] * mono[m]
+            vel[i, 0] += u0 * INV_4PI
+            vel[i, 1] += u1 * INV_4PI
+            vel[i, 2] += u2 * INV_4PI
+            if gradient:
+                for jk in range(9):
+                    g = 0.0
+                    for m in range(n2):
+                        g += gc[jk, m] * mono[m]
+                    grad[i, jk // 3, jk % 3] += g * INV_4PI

@@ -1,0 +1,186 @@
+"""Treecode settings chosen from the requested tolerance.
+
+* Opening parameter theta and expansion order p: a table calibrated against
+  direct summation (see ``benchmarks/bench_tree.py`` and the tests) with a
+  safety margin; the relative L2 error of the velocity stays below the
+  tolerance and that of the gradient below ten times it.
+* Where a regularized kernel may be replaced by the singular one: the
+  smallest rho = |r|/sigma (or h/r_c for a filament core) beyond which the
+  two differ by less than a fraction of the tolerance, in the velocity and
+  in the gradient.
+* A memory estimate, checked before anything large is allocated.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from functools import lru_cache
+
+import numpy as np
+from scipy.optimize import brentq
+from scipy.special import erfc
+
+from .smoothing import (CORE_LAMB_OSEEN, CORE_RANKINE, CORE_SCULLY, CORE_SINGULAR,
+                        CORE_VATISTAS2, GAUSSIAN, LAMB_OSEEN_ALPHA, ROSENHEAD_MOORE, SINGULAR,
+                        WINCKELMANS_LEONARD)
+from .tree_expansion import n_terms
+
+# Share of the tolerance given to replacing a regularized kernel or a core
+# by the singular law in the far field; the expansion truncation takes the rest.
+REGULARIZATION_SHARE = 0.25
+
+# (largest tolerance, theta, order p): the first row whose tolerance is at
+# most the request... is chosen as the first row with row_tol <= request.
+_SETTINGS = (
+    (1e-2, 0.60, 4),
+    (1e-3, 0.55, 6),
+    (1e-4, 0.50, 8),
+    (1e-5, 0.50, 10),
+    (1e-6, 0.45, 12),
+    (1e-7, 0.40, 13),
+    (1e-8, 0.35, 14),
+    (1e-9, 0.30, 15),
+)
+LEAF_SIZE = 64  # points per leaf: balances near-field pairs against expansions
+
+
+def expansion_settings(tolerance: float) -> tuple[float, int]:
+    """Opening parameter theta and order p for a relative tolerance."""
+    for tol, theta, p in _SETTINGS:
+        if tolerance >= tol:
+            return theta, p
+    return _SETTINGS[-1][1], _SETTINGS[-1][2]
+
+
+def _kernel_excess(kernel: int, rho: float) -> tuple[float, float]:
+    """Relative change of the velocity and of the gradient pair law when a
+    particle kernel is replaced by the singular law, at rho = |r|/sigma.
+
+    With f = q(rho)/|r|^3 the pair velocity changes by (1 - q) and the
+    gradient by at most (1 - q) + rho q'(rho)/3 relative to the singular
+    pair (the gradient holds f and 2 f' r^2 = (rho q' - 3 q)/|r|^3).
+    """
+    if kernel == ROSENHEAD_MOORE:
+        s = rho * rho + 1.0
+        one_minus_q = 1.0 - rho**3 * s**-1.5
+        dq = 3.0 * rho * rho * s**-2.5
+    elif kernel == WINCKELMANS_LEONARD:
+        s = rho * rho + 1.0
+        # 1 - q = ((r^2+1)^(5/2) - rho^3 (rho^2 + 5/2)) / (r^2+1)^(5/2), exact to round-off
+        # only while 1 - q >> 1e-16; beyond, the asymptote 15/(8 rho^4) is used.
+        one_minus_q = (1.0 - rho**3 * (rho * rho + 2.5) * s**-2.5) if rho < 50 else \
+            15.0 / (8.0 * rho**4)
+        dq = 7.5 * rho * rho * s**-3.5
+    else:  # GAUSSIAN
+        one_minus_q = erfc(rho / math.sqrt(2.0)) + math.sqrt(2.0 / math.pi) * rho * \
+            math.exp(-0.5 * rho * rho)
+        dq = math.sqrt(2.0 / math.pi) * rho * rho * math.exp(-0.5 * rho * rho)
+    return one_minus_q, one_minus_q + rho * dq / 3.0
+
+
+def _core_excess(core: int, x: float) -> tuple[float, float]:
+    """Relative change of the segment law's velocity and gradient when the
+    core factor F(h) is dropped, at x = h/r_c: (1 - F) and (1 - F) + x F'(x)."""
+    if core == CORE_LAMB_OSEEN:
+        e = math.exp(-LAMB_OSEEN_ALPHA * x * x)
+        return e, e + 2.0 * LAMB_OSEEN_ALPHA * x * x * e
+    if core == CORE_SCULLY:
+        one_minus_f = 1.0 / (1.0 + x * x)
+        return one_minus_f, one_minus_f + 2.0 * x * x / (1.0 + x * x) ** 2
+    # CORE_VATISTAS2
+    s = math.sqrt(1.0 + x**4)
+    one_minus_f = 1.0 - x * x / s
+    return one_minus_f, one_minus_f + 2.0 * x * x / s**3
+
+
+def _solve_reach(excess, velocity_limit: float, gradient_limit: float) -> float:
+    def worst(r):
+        ev, eg = excess(r)
+        return max(ev / velocity_limit, eg / gradient_limit) - 1.0
+
+    lo, hi = 2.0, 2.0
+    while worst(hi) > 0.0:
+        lo, hi = hi, 2.0 * hi
+    if hi == 2.0:
+        return 2.0
+    return brentq(worst, lo, hi, xtol=1e-6, rtol=1e-10)
+
+
+@lru_cache(maxsize=None)
+def particle_reach(kernel: int, tolerance: float) -> float:
+    """rho_far: beyond |r| = rho_far * sigma the singular law may stand in
+    for the kernel (0 for the singular kernel itself)."""
+    if kernel == SINGULAR:
+        return 0.0
+    share = REGULARIZATION_SHARE * tolerance
+    return _solve_reach(lambda r: _kernel_excess(kernel, r), share, 10.0 * share)
+
+
+@lru_cache(maxsize=None)
+def core_reach(core: int, tolerance: float) -> float:
+    """h_far / r_c: beyond this distance from a segment's line the core
+    factor may be dropped (0 for the singular core, 1 for Rankine, where the
+    factor is exactly one outside the core)."""
+    if core == CORE_SINGULAR:
+        return 0.0
+    if core == CORE_RANKINE:
+        return 1.0
+    share = REGULARIZATION_SHARE * tolerance
+    return _solve_reach(lambda x: _core_excess(core, x), share, 10.0 * share)
+
+
+def available_memory() -> int:
+    """Bytes of memory available to this process (MemAvailable on Linux)."""
+    try:
+        with open("/proc/meminfo") as fh:
+            for line in fh:
+                if line.startswith("MemAvailable:"):
+                    return int(line.split()[1]) * 1024
+    except OSError:
+        pass
+    return os.sysconf("SC_AVPHYS_PAGES") * os.sysconf("SC_PAGE_SIZE")
+
+
+def estimated_bytes(n_targets: int, source_counts: list[int], order: int,
+                    gradient: bool) -> int:
+    """Rough upper estimate of the treecode's peak memory [bytes].
+
+    Targets: sorted copies, keys, accumulators and the result; each source
+    set: sorted copies and keys; cells: about 4 N / LEAF_SIZE per tree, each
+    with 3 T(p) moment or local coefficients and of order a few hundred list
+    entries.
+    """
+    per_target = 8 * (3 + 3 + 2 * (3 + (9 if gradient else 0)))
+    per_source = 8 * (3 + 8 + 3)
+    coeff = 8 * 3 * n_terms(order)
+    cells_t = 4 * n_targets // LEAF_SIZE + 8
+    total = n_targets * per_target + cells_t * (coeff + 300 * 16)
+    for n in source_counts:
+        cells_s = 4 * n // LEAF_SIZE + 8
+        total += n * per_source + cells_s * (coeff + 128)
+    return int(total)
+
+
+def kernel_far_potential(kernel: int, sigma: np.ndarray) -> tuple[bool, float, float]:
+    """Whether a particle set's kernel itself can be expanded in the far field.
+
+    The algebraic kernels with one common smoothing radius sigma have the
+    potentials (r^2 + s^2)^(-1/2) (Rosenhead--Moore) and (r^2 + s^2)^(-1/2) +
+    s^2/2 (r^2 + s^2)^(-3/2) (Winckelmans--Leonard), expanded exactly; any
+    other case expands the singular potential (0, 0).
+
+    Returns
+    -------
+    exact : bool
+        True if the far field uses the kernel itself.
+    delta2, wl_coef : float
+        Parameters of :func:`wakes.induction.tree_expansion.m2l`.
+    """
+    if kernel == SINGULAR:
+        return True, 0.0, 0.0
+    if kernel in (ROSENHEAD_MOORE, WINCKELMANS_LEONARD) and sigma.size \
+            and sigma.max() == sigma.min():
+        s2 = float(sigma[0]) ** 2
+        return True, s2, (0.5 * s2 if kernel == WINCKELMANS_LEONARD else 0.0)
+    return False, 0.0, 0.0
