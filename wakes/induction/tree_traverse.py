@@ -49,7 +49,7 @@ def _is_far(t, s, t_center, t_radius, s_center, s_radius, theta2, kind, reach, a
     rz = t_center[t, 2] - s_center[s, 2]
     d2 = rx * rx + ry * ry + rz * rz
     rsum = t_radius[t] + s_radius[s]
-    if rsum * rsum > theta2 * d2:
+    if rsum * rsum >= theta2 * d2:  # strict: two one-point cells at one spot are near
         return False
     if kind == MAC_ONLY or reach[s] == 0.0:
         return True
