@@ -24,8 +24,15 @@ Here u_p is the induced velocity at particle p and omega(x) the smoothed
 vorticity sum_q alpha_q zeta_sigma_q(x - x_q) the particles carry. The
 energy uses the identity E = int u . (x x omega) dV of an unbounded fluid at
 rest at infinity (Saffman 1992, *Vortex Dynamics*, ch. 3; memory for the
-chapter); the energy, enstrophy and helicity sums are particle quadratures
-of the field integrals, accurate when the particles overlap.
+chapter). The energy, enstrophy and helicity sums are point quadratures of
+the field integrals: they weight the field by the particles, not by the
+smoothed vorticity, and converge to the field values only as the particles
+become fine next to the scale of the vorticity. For a thin Gaussian ring
+(R/sigma = 10) with a core of 4 and 6 particle layers the energy sum reads
+26 % and 14 % above the thin-ring energy (1/2) Gamma^2 R [ln(8R/a) + C - 3/2]
+(measured); read the energy as a monitor of drift, not as an absolute value.
+The helicity of two linked thin rings comes out within 1e-3 of
+2 Gamma_1 Gamma_2 (tested).
 """
 
 from __future__ import annotations
@@ -73,11 +80,27 @@ def field_diagnostics(particles: Particles, velocity: np.ndarray) -> dict:
                                        PARTICLE_KERNELS[particles.kernel].code)
     out["enstrophy"] = float(np.einsum("ij,ij->", alpha, omega))
     out["helicity"] = float(np.einsum("ij,ij->", velocity, alpha))
-    out["max_speed"] = float(np.sqrt((velocity ** 2).sum(axis=1).max())) if len(x) else 0.0
-    w_rms = np.sqrt(np.mean((omega ** 2).sum(axis=1))) if len(x) else 0.0
-    d_rms = np.sqrt(np.mean((particles.radii * div) ** 2)) if len(x) else 0.0
+    out["max_speed"] = float(_norms(velocity).max()) if len(x) else 0.0
+    w_rms = _rms(_norms(omega))
+    d_rms = _rms(particles.radii * div)
     out["divergence"] = float(d_rms / w_rms) if w_rms > 0.0 else 0.0
     return out
+
+
+def _norms(v: np.ndarray) -> np.ndarray:
+    """Row norms of (N, 3) ``v``, scaled so that squares cannot overflow."""
+    s = np.abs(v).max() if v.size else 0.0
+    if not (0.0 < s < np.inf):
+        return np.linalg.norm(v, axis=1)
+    return s * np.linalg.norm(v / s, axis=1)
+
+
+def _rms(v: np.ndarray) -> float:
+    """Root mean square of ``v``, scaled so that squares cannot overflow."""
+    s = np.abs(v).max() if v.size else 0.0
+    if not (0.0 < s < np.inf):
+        return float(s)
+    return float(s * np.sqrt(np.mean((v / s) ** 2)))
 
 
 def ring_centroid(particles: Particles, center=(0.0, 0.0, 0.0),

@@ -1,5 +1,7 @@
 """Shared fixtures of the particle-flow tests."""
 
+from contextlib import contextmanager
+
 import numba
 import numpy as np
 import pytest
@@ -9,19 +11,28 @@ import wakes
 RNG_SEED = 31415
 
 
-@pytest.fixture
-def one_thread():
-    """Run tiny problems on one thread.
+@contextmanager
+def single_thread():
+    """Run tiny problems on one numba thread, restoring the count afterwards.
 
     On a shared two-core machine an OpenMP barrier costs about 15 ms when the
     other core is busy (measured), some 60 times the work of one induction
     over 126 particles; long runs of tiny flows would spend their time
-    waiting. Restores the previous thread count afterwards.
+    waiting.
     """
     old = numba.get_num_threads()
     numba.set_num_threads(1)
-    yield
-    numba.set_num_threads(old)
+    try:
+        yield
+    finally:
+        numba.set_num_threads(old)
+
+
+@pytest.fixture
+def one_thread():
+    """:func:`single_thread` as a fixture."""
+    with single_thread():
+        yield
 
 
 def random_cloud(n: int, seed: int = RNG_SEED, kernel: str = "winckelmans-leonard",
