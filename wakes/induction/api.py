@@ -11,10 +11,10 @@ import numpy as np
 from .._validate import as_float_array, choice
 from ..elements import Filaments, Particles
 from ..errors import InputError
-from . import direct
+from . import direct, tree, tree_params
 from .smoothing import CORE_MODELS, PARTICLE_KERNELS
 
-METHODS = ("direct",)
+METHODS = ("direct", "tree", "auto")
 
 
 def _as_source_list(sources) -> list:
@@ -30,7 +30,8 @@ def _as_source_list(sources) -> list:
                      f"got {type(sources).__name__}")
 
 
-def induce(sources, targets, *, gradient: bool = False, method: str = "direct"):
+def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
+           tolerance: float = 1e-6):
     """Velocity (and its gradient) induced by vortex elements at target points.
 
     Parameters
@@ -41,8 +42,22 @@ def induce(sources, targets, *, gradient: bool = False, method: str = "direct"):
         Points where the velocity is wanted [m].
     gradient : bool, default False
         Also return the velocity gradient.
-    method : {"direct"}
-        Summation method; "direct" sums every pair.
+    method : {"direct", "tree", "auto"}
+        Summation method. "direct" sums every pair. "tree" uses the
+        treecode (:mod:`wakes.induction.tree`) to the requested
+        ``tolerance``; a source set with fewer than
+        ``tree_params.MIN_TREE_SOURCES`` (128) elements, or a tolerance
+        below ``tree_params.MIN_TREE_TOLERANCE`` (1e-10), is summed
+        directly instead (exactly). "auto" is "direct" below
+        ``tree_params.AUTO_CROSSOVER_PAIRS`` source-target pairs (the
+        measured break-even) and "tree" above.
+    tolerance : float, default 1e-6
+        For "tree" and "auto": the relative L2 error of the velocity aimed
+        at (the gradient's is at most ten times it), 0 < tolerance < 1.
+        It is met for targets among or near the sources; at targets far
+        from all sources where the field is a small residual of cancelling
+        contributions the error is of the same absolute size, so larger
+        relative to that residual.
 
     Returns
     -------
@@ -73,9 +88,16 @@ def induce(sources, targets, *, gradient: bool = False, method: str = "direct"):
     src = _as_source_list(sources)
     tgt = as_float_array("targets", targets, (None, 3))
     choice("method", method, METHODS)
+    tol = tree_params.check_tolerance(tolerance)
     if not isinstance(gradient, (bool, np.bool_)):
         raise InputError(f"gradient must be True or False; got {gradient!r}")
     m = tgt.shape[0]
+    counts = [s.count if isinstance(s, Particles) else s.segment_count for s in src]
+    use_tree = tree_params.use_tree(method, counts, m, tol)
+    tree_params.check_memory(m, counts, bool(gradient), use_tree, tol)
+    if use_tree:
+        vel, grad = tree.tree_induce(tgt, _tree_sets(src), bool(gradient), tol)
+        return (vel, grad) if gradient else vel
     vel = np.zeros((m, 3))
     grad = np.zeros((m, 3, 3) if gradient else (0, 3, 3))
     if m:
@@ -83,6 +105,21 @@ def induce(sources, targets, *, gradient: bool = False, method: str = "direct"):
         for s in src:
             _add_direct(s, tx, ty, tz, bool(gradient), vel, grad)
     return (vel, grad) if gradient else vel
+
+
+def _tree_sets(src) -> list:
+    """The non-empty source sets as the treecode's plain-array records."""
+    sets = []
+    for s in src:
+        if isinstance(s, Particles):
+            if s.count:
+                sets.append(tree.ParticleSet(s.positions, s.strengths, s.radii,
+                                             PARTICLE_KERNELS[s.kernel].code))
+        elif s.segment_count:
+            pa, pb = s.endpoints()
+            sets.append(tree.SegmentSet(pa, pb, s.circulation, s.core_radius,
+                                        CORE_MODELS[s.core].code))
+    return sets
 
 
 def _add_direct(s, tx, ty, tz, gradient, vel, grad) -> None:

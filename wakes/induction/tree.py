@@ -26,6 +26,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import numba
 import numpy as np
 
 from . import tree_build, tree_expansion, tree_near, tree_params, tree_traverse
@@ -55,7 +56,8 @@ class _Tree:
 
 
 def _build(points_x, points_y, points_z, leaf_size) -> _Tree:
-    order, cells = tree_build.build_tree(points_x, points_y, points_z, leaf_size)
+    order, cells = tree_build.build_tree(points_x, points_y, points_z, leaf_size,
+                                         tree_params.SPLIT_BITS)
     return _Tree(order, *cells)
 
 
@@ -91,16 +93,52 @@ def _far_and_near(target: _Tree, source: _Tree, theta, kind, reach, axis, cos_ha
     return far, near
 
 
-def _apply_far(target: _Tree, source: _Tree, far, moments, tables, delta2, wl_coef,
-               local) -> None:
-    ptr, src = far
-    t_cells = np.flatnonzero(np.diff(ptr))
-    if t_cells.size == 0:
-        return
-    tree_expansion.m2l(t_cells, ptr, src, target.center, source.center, moments, delta2,
-                       wl_coef, tables["deg"], tables["rec1"], tables["rec2"],
-                       tables["sign"], tables["m2l_ptr"], tables["m2l_n"], tables["m2l_m"],
-                       tables["m2l_c"], local)
+class _Locals:
+    """Local expansions of the target cells, kept in two parts.
+
+    Far fields of harmonic potentials (1/|r|: singular particles, any
+    kernel whose far field is taken as singular, segments) are summed with
+    the reduced tables on the coefficients with k_z <= 1 and completed by
+    Laplace's equation once at the end; those of regularized potentials
+    (uniform-radius algebraic kernels) are summed in full, separately.
+    """
+
+    def __init__(self, n_cells: int, tables: dict):
+        self.tables = tables
+        self.harmonic = np.zeros((n_cells, 3, tables["midx"].shape[0]))
+        self.full = None
+
+    def add_far(self, target: _Tree, source: _Tree, far, moments, delta2, wl_coef) -> None:
+        """Add the far pairs of one source set (moments (Cs, 3, T))."""
+        ptr, src = far
+        t_cells = np.flatnonzero(np.diff(ptr))
+        if t_cells.size == 0:
+            return
+        tb = self.tables
+        if delta2 == 0.0:
+            m2l_tab = tb["harmonic"]
+            moments = tree_expansion.reduce_moments(moments, tb["reduce_ptr"], tb["reduce_n"],
+                                                    tb["reduce_c"])
+            local = self.harmonic
+        else:
+            m2l_tab = tb["full"]
+            if self.full is None:
+                self.full = np.zeros_like(self.harmonic)
+            local = self.full
+        tree_expansion.m2l(t_cells, ptr, src, target.center, source.center, moments, delta2,
+                           wl_coef, tb["deg"], tb["rec1"], tb["rec2"], m2l_tab["rec_list"],
+                           m2l_tab["k_list"], m2l_tab["ptr"], m2l_tab["n_idx"],
+                           m2l_tab["m_idx"], m2l_tab["coef"], 16 * numba.get_num_threads(),
+                           local)
+
+    def total(self) -> np.ndarray:
+        """The complete local coefficients (C, 3, T)."""
+        tb = self.tables
+        tree_expansion.complete_harmonic(self.harmonic, tb["fill_k"], tb["fill_i"],
+                                         tb["fill_c"])
+        if self.full is not None:
+            self.harmonic += self.full
+        return self.harmonic
 
 
 @dataclass(frozen=True)
@@ -152,7 +190,6 @@ def tree_induce(targets: np.ndarray, sources: list, gradient: bool, tolerance: f
     """
     theta, p = tree_params.expansion_settings(tolerance)
     tables = tree_expansion.expansion_tables(p)
-    nt = tree_expansion.n_terms(p)
     m = targets.shape[0]
     tx0, ty0, tz0 = (np.ascontiguousarray(targets[:, k]) for k in range(3))
     target = _build(tx0, ty0, tz0, leaf_size)
@@ -160,7 +197,7 @@ def tree_induce(targets: np.ndarray, sources: list, gradient: bool, tolerance: f
     target.center, target.radius = tree_build.point_cell_geometry(target.start, target.count,
                                                                   tx, ty, tz)
     t_leaves = target.leaves
-    local = np.zeros((target.n_cells, 3, nt))
+    local = _Locals(target.n_cells, tables)
     vel = np.zeros((m, 3))
     grad = np.zeros((m, 3, 3) if gradient else (0, 3, 3))
     for s in sources:
@@ -170,6 +207,7 @@ def tree_induce(targets: np.ndarray, sources: list, gradient: bool, tolerance: f
         else:
             _add_segments(s, target, tx, ty, tz, t_leaves, tables, theta, tolerance,
                           leaf_size, gradient, local, vel, grad)
+    local = local.total()
     parent = _parent_array(target)
     for d in range(1, target.depth_ptr.shape[0] - 1):
         cells = np.arange(target.depth_ptr[d], target.depth_ptr[d + 1])
@@ -217,7 +255,7 @@ def _add_particles(s: ParticleSet, targets, target: _Tree, tx, ty, tz, t_leaves,
             tree_build.cell_max(source.start, source.count, sig)
     far, near = _far_and_near(target, source, theta, kind, reach, np.zeros((1, 3)),
                               np.ones(1))
-    _apply_far(target, source, far, moments, tables, delta2, wl_coef, local)
+    local.add_far(target, source, far, moments, delta2, wl_coef)
     tree_near.particles_near(s.kernel, gradient, t_leaves, target.start, target.count,
                              near[0], near[1], source.start, source.count, tx, ty, tz,
                              sx, sy, sz, ax, ay, az, sig * sig, vel, grad)
@@ -244,7 +282,7 @@ def _add_segments(s: SegmentSet, target: _Tree, tx, ty, tz, t_leaves, tables, th
     reach = tree_params.core_reach(s.core, tolerance) * \
         tree_build.cell_max(source.start, source.count, rc)
     far, near = _far_and_near(target, source, theta, TUBE, reach, axis, cos_half)
-    _apply_far(target, source, far, moments, tables, 0.0, 0.0, local)
+    local.add_far(target, source, far, moments, 0.0, 0.0)
     tree_near.segments_near(s.core, gradient, t_leaves, target.start, target.count,
                             near[0], near[1], source.start, source.count, tx, ty, tz,
                             pax, pay, paz, pbx, pby, pbz, gam, rc * rc, vel, grad)

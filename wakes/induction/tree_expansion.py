@@ -30,7 +30,7 @@ the tables that drive the kernels are built once per order in
 """
 
 from functools import lru_cache
-from math import comb
+from math import comb, factorial
 
 import numpy as np
 from numba import njit, prange
@@ -51,25 +51,27 @@ def expansion_tables(p: int) -> dict:
 
     Returns a dict of int64/float64 arrays; ``T = n_terms(p)``:
 
-    ``midx`` (T, 3)
-        The multi-indices.
+    ``midx`` (T, 3), ``deg`` (T,)
+        The multi-indices and their total degrees.
     ``mono_parent``, ``mono_dir`` (T,)
         m = mono_parent[m] + e_{mono_dir[m]}, to build monomials in order.
     ``rec1``, ``rec2`` (T, 3)
         Index of m - e_i and of m - 2 e_i, or T (a slot holding zero).
-    ``deg`` (T,)
-        Total degree |m|.
-    ``sign`` (T,)
-        (-1)^|m|.
     ``up`` (T, 3)
         Index of m + e_i (valid for |m| < p), or -1.
-    ``m2l_ptr`` (T + 1,), ``m2l_n``, ``m2l_m``, ``m2l_c``
-        For each local index k, entries (n, m = n + k, C(n + k, n)) with
-        |n| + |k| <= p.
     ``m2m_ptr``, ``m2m_j``, ``m2m_d``, ``m2m_c``
         For each n, entries (j, n - j, C(n, j)) with j <= n.
     ``l2l_ptr``, ``l2l_j``, ``l2l_d``, ``l2l_c``
         For each k, entries (j, j - k, C(j, k)) with j >= k, |j| <= p.
+    ``full``, ``harmonic`` : dict
+        M2L tables (see :func:`_m2l_tables`) for any kernel, and the reduced
+        ones valid for the harmonic potential 1/|r|.
+    ``reduce_ptr``, ``reduce_n``, ``reduce_c``
+        Harmonic reduction of moments onto the multi-indices with n_z <= 1
+        (CSR over the reduced list).
+    ``fill_k``, ``fill_i``, ``fill_c`` : (F,), (F, 2), (F, 2)
+        L^k = fill_c[., 0] L^fill_i[., 0] + fill_c[., 1] L^fill_i[., 1] for
+        every k with k_z >= 2, in an order that only reads finished entries.
     """
     if p < 2:
         raise ValueError("expansion order must be at least 2")
@@ -99,49 +101,118 @@ def expansion_tables(p: int) -> dict:
                 rec2[i, d] = index[lower2]
             if upper in index:
                 up[i, d] = index[upper]
-    sign = np.array([(-1.0) ** sum(m) for m in midx])
 
-    def cbin(a, b):
-        return comb(a[0], b[0]) * comb(a[1], b[1]) * comb(a[2], b[2])
+    def csr(rows):
+        ptr = np.zeros(len(rows) + 1, np.int64)
+        ptr[1:] = np.cumsum([len(r) for r in rows])
+        cols = list(zip(*[e for r in rows for e in r])) or [(), (), ()]
+        return (ptr,) + tuple(np.array(c, dtype=np.int64 if i < len(cols) - 1 else np.float64)
+                              for i, c in enumerate(cols))
 
-    def table(pairs_of):
-        ptr = [0]
-        cols = ([], [], [])
-        for i, m in enumerate(midx):
-            for a, b, c in pairs_of(m):
-                cols[0].append(a)
-                cols[1].append(b)
-                cols[2].append(c)
-            ptr.append(len(cols[0]))
-        return (np.array(ptr, np.int64), np.array(cols[0], np.int64),
-                np.array(cols[1], np.int64), np.array(cols[2], np.float64))
-
-    def m2l_entries(k):
-        out = []
-        for n in midx:
-            if sum(n) + sum(k) <= p:
-                s = tuple(a + b for a, b in zip(n, k))
-                out.append((index[n], index[s], float(cbin(s, n))))
-        return out
-
-    def m2m_entries(n):
-        return [(index[j], index[tuple(a - b for a, b in zip(n, j))], float(cbin(n, j)))
-                for j in midx if all(a <= b for a, b in zip(j, n))]
-
-    def l2l_entries(k):
-        return [(index[j], index[tuple(a - b for a, b in zip(j, k))], float(cbin(j, k)))
-                for j in midx if all(a >= b for a, b in zip(j, k))]
+    def sub(a, b):
+        return tuple(x - y for x, y in zip(a, b))
 
     out = {"p": p, "midx": mi, "deg": mi.sum(axis=1), "mono_parent": mono_parent,
-           "mono_dir": mono_dir,
-           "rec1": rec1, "rec2": rec2, "sign": sign, "up": up}
-    for name, fn in (("m2l", m2l_entries), ("m2m", m2m_entries), ("l2l", l2l_entries)):
-        ptr, a, b, c = table(fn)
-        keys = ("n", "m", "c") if name == "m2l" else ("j", "d", "c")
-        out[f"{name}_ptr"] = ptr
-        for key, arr in zip(keys, (a, b, c)):
-            out[f"{name}_{key}"] = arr
+           "mono_dir": mono_dir, "rec1": rec1, "rec2": rec2, "up": up}
+    rows = [[(index[j], index[sub(n, j)], float(_cbin(n, j))) for j in midx
+             if all(a <= b for a, b in zip(j, n))] for n in midx]
+    out["m2m_ptr"], out["m2m_j"], out["m2m_d"], out["m2m_c"] = csr(rows)
+    rows = [[(index[j], index[sub(j, k)], float(_cbin(j, k))) for j in midx
+             if all(a >= b for a, b in zip(j, k))] for k in midx]
+    out["l2l_ptr"], out["l2l_j"], out["l2l_d"], out["l2l_c"] = csr(rows)
+    out["full"] = _m2l_tables(midx, index, p, harmonic=False)
+    out["harmonic"] = _m2l_tables(midx, index, p, harmonic=True)
+    # harmonic reduction of moments: D^n = (-1)^q sum_i C(q, i) D^(nx+2i, ny+2q-2i, r)
+    # for n_z = 2q + r, so M~^n' = sum_n (-1)^q C(q, i) (n'!/n!) M^n
+    red = out["harmonic"]["n_list"]
+    pos = {midx[n]: r for r, n in enumerate(red)}
+    rows = [[] for _ in red]
+    for n in midx:
+        q, r = divmod(n[2], 2)
+        for i in range(q + 1):
+            target = (n[0] + 2 * i, n[1] + 2 * (q - i), r)
+            c = (-1) ** q * comb(q, i) * _mfact(target) / _mfact(n)
+            rows[pos[target]].append((index[n], c))
+    ptr = np.zeros(len(rows) + 1, np.int64)
+    ptr[1:] = np.cumsum([len(r) for r in rows])
+    out["reduce_ptr"] = ptr
+    out["reduce_n"] = np.array([e[0] for r in rows for e in r], np.int64)
+    out["reduce_c"] = np.array([e[1] for r in rows for e in r], np.float64)
+    # Laplace's equation on the local polynomial gives the k_z >= 2 coefficients
+    fk, fi, fc = [], [], []
+    for k in midx:
+        if k[2] >= 2:
+            j = sub(k, (0, 0, 2))
+            den = (j[2] + 2) * (j[2] + 1)
+            fk.append(index[k])
+            fi.append((index[(j[0] + 2, j[1], j[2])], index[(j[0], j[1] + 2, j[2])]))
+            fc.append((-(j[0] + 2) * (j[0] + 1) / den, -(j[1] + 2) * (j[1] + 1) / den))
+    out["fill_k"] = np.array(fk, np.int64)
+    out["fill_i"] = np.array(fi, np.int64).reshape(-1, 2)
+    out["fill_c"] = np.array(fc, np.float64).reshape(-1, 2)
     return out
+
+
+def _cbin(a, b) -> int:
+    return comb(a[0], b[0]) * comb(a[1], b[1]) * comb(a[2], b[2])
+
+
+def _mfact(m) -> int:
+    return factorial(m[0]) * factorial(m[1]) * factorial(m[2])
+
+
+def _m2l_tables(midx, index, p, harmonic) -> dict:
+    """Entries of the M2L sum L^k = sum_n c(n, k) a_{n+k} M^n.
+
+    With ``harmonic`` the sum runs over moments and local coefficients with
+    a z-index of at most one (2|n| + 1 per degree instead of (|n|+1)(|n|+2)/2),
+    valid when the potential is harmonic: moments reduced by ``reduce_*``,
+    local coefficients completed by ``fill_*`` (Laplace's equation).
+
+    Returns ``k_list`` (local indices computed), ``n_list`` (moment indices
+    used; ``n_idx`` of an entry is its position in this list), ``ptr``
+    (CSR over k_list), ``n_idx``, ``m_idx`` (index of n + k), ``coef``
+    ((-1)^|n| C(n + k, n)) and ``rec_list`` (Taylor coefficients needed, in
+    an order the recurrence can follow).
+    """
+    keep = (lambda m: m[2] <= 1) if harmonic else (lambda m: True)
+    k_list = [i for i, m in enumerate(midx) if keep(m)]
+    n_list = list(k_list)
+    npos = {n: r for r, n in enumerate(n_list)}
+    rows = []
+    needed = set()
+    for k in k_list:
+        row = []
+        for n in n_list:
+            mk, mn = midx[k], midx[n]
+            if sum(mk) + sum(mn) <= p:
+                s = tuple(a + b for a, b in zip(mk, mn))
+                row.append((npos[n], index[s], (-1.0) ** sum(mn) * _cbin(s, mn)))
+                needed.add(index[s])
+        rows.append(row)
+    ptr = np.zeros(len(rows) + 1, np.int64)
+    ptr[1:] = np.cumsum([len(r) for r in rows])
+    flat = [e for r in rows for e in r]
+    # the recurrence for a_m reads m - e_i and m - 2 e_i: close the set downwards
+    closed = set()
+    for m in needed:
+        stack = [m]
+        while stack:
+            c = stack.pop()
+            if c in closed:
+                continue
+            closed.add(c)
+            for d in range(3):
+                for step in (1, 2):
+                    lower = list(midx[c])
+                    lower[d] -= step
+                    if min(lower) >= 0:
+                        stack.append(index[tuple(lower)])
+    return {"k_list": np.array(k_list, np.int64), "n_list": np.array(n_list, np.int64),
+            "ptr": ptr, "n_idx": np.array([e[0] for e in flat], np.int64),
+            "m_idx": np.array([e[1] for e in flat], np.int64),
+            "coef": np.array([e[2] for e in flat], np.float64),
+            "rec_list": np.array(sorted(closed - {0}), np.int64)}
 
 
 # ----------------------------------------------------------------------------
@@ -261,31 +332,26 @@ def m2m(cells, first_child, n_child, center, ptr, j_idx, d_idx, coef, parent, di
 # ----------------------------------------------------------------------------
 
 @njit(inline="always", cache=True)
-def _taylor_coefficients(rx, ry, rz, inv_s, n_src, nu, deg, rec1, rec2, a):
+def _taylor_coefficients(rx, ry, rz, inv_s, n_src, nu, deg, rec1, rec2, rec_list, a):
     """Taylor coefficients of (|R|^2 + delta^2)^(-nu) at R, for n_src points.
 
     Recurrence (from s grad G = -2 nu R G, s = |R|^2 + delta^2):
-    s |m| a_m = -(2|m| - 2 + 2 nu) sum_i R_i a_{m-e_i} - (|m| - 2 + 2 nu) sum_i a_{m-2e_i}.
-    ``a`` (T + 1, chunk) on entry holds a_0 in row 0 and zero in row T.
+    s |m| a_m = -(2|m| - 2 + 2 nu) sum_i R_i a_{m-e_i} - (|m| - 2 + 2 nu) sum_i a_{m-2e_i},
+    evaluated for the indices of ``rec_list`` in order. ``a`` (T + 1, chunk)
+    holds a_0 in row 0 and zero in row T on entry.
     """
-    nt = deg.shape[0]
-    for m in range(1, nt):
+    for r in range(rec_list.shape[0]):
+        m = rec_list[r]
         dm = deg[m]
         c1 = -(2.0 * dm - 2.0 + 2.0 * nu) / dm
         c2 = -(dm - 2.0 + 2.0 * nu) / dm
-        i0 = rec1[m, 0]
-        i1 = rec1[m, 1]
-        i2 = rec1[m, 2]
-        j0 = rec2[m, 0]
-        j1 = rec2[m, 1]
-        j2 = rec2[m, 2]
         am = a[m]
-        a_i0 = a[i0]
-        a_i1 = a[i1]
-        a_i2 = a[i2]
-        a_j0 = a[j0]
-        a_j1 = a[j1]
-        a_j2 = a[j2]
+        a_i0 = a[rec1[m, 0]]
+        a_i1 = a[rec1[m, 1]]
+        a_i2 = a[rec1[m, 2]]
+        a_j0 = a[rec2[m, 0]]
+        a_j1 = a[rec2[m, 1]]
+        a_j2 = a[rec2[m, 2]]
         for s in range(n_src):
             am[s] = (c1 * (rx[s] * a_i0[s] + ry[s] * a_i1[s] + rz[s] * a_i2[s])
                      + c2 * (a_j0[s] + a_j1[s] + a_j2[s])) * inv_s[s]
@@ -293,7 +359,7 @@ def _taylor_coefficients(rx, ry, rz, inv_s, n_src, nu, deg, rec1, rec2, a):
 
 @njit(parallel=True, cache=True, fastmath=_FASTMATH)
 def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
-        deg, rec1, rec2, sign, kptr, n_idx, m_idx, coef, local):
+        deg, rec1, rec2, rec_list, k_list, kptr, n_idx, m_idx, coef, n_blocks, local):
     """Add the far source cells' potential to each target cell's local expansion.
 
     Parameters
@@ -304,76 +370,123 @@ def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
         CSR lists: source cells far_src[far_ptr[t]:far_ptr[t + 1]] of target t.
     t_center, s_center : (C, 3) float64
         Expansion centres.
-    moments : (Cs, 3, T) float64
-        Source moments.
+    moments : (Cs, 3, R) float64
+        Source moments on the table's moment list (reduced ones for the
+        harmonic tables).
     delta2, wl_coef : float
         Kernel potential G = s^(-1/2) + wl_coef s^(-3/2), s = |r|^2 + delta2
         (0, 0 singular; sigma^2, 0 Rosenhead--Moore; sigma^2, sigma^2/2
         Winckelmans--Leonard).
+    deg, rec1, rec2
+        Multi-index tables of :func:`expansion_tables`.
+    rec_list, k_list, kptr, n_idx, m_idx, coef
+        One M2L table of :func:`_m2l_tables`.
+    n_blocks : int
+        Target cells are shared out in this many blocks (a few per thread),
+        each reusing one set of scratch arrays.
     local : (Ct, 3, T) float64
-        Local coefficients, accumulated.
+        Local coefficients, accumulated on the indices of ``k_list``.
     """
-    nt = moments.shape[2]
+    nt = deg.shape[0]
+    nr = moments.shape[2]
+    nk = k_list.shape[0]
     wl = wl_coef != 0.0
-    for ti in prange(t_cells.shape[0]):
-        t = t_cells[ti]
-        f0 = far_ptr[t]
-        f1 = far_ptr[t + 1]
+    n_t = t_cells.shape[0]
+    n_blocks = max(1, min(n_t, n_blocks))
+    for blk in prange(n_blocks):
         a = np.empty((nt + 1, M2L_CHUNK))
         b = np.empty((nt + 1, M2L_CHUNK))
-        mg = np.empty((3, nt, M2L_CHUNK))
+        mg = np.empty((nr, 3, M2L_CHUNK))
         rx = np.empty(M2L_CHUNK)
         ry = np.empty(M2L_CHUNK)
         rz = np.empty(M2L_CHUNK)
         inv_s = np.empty(M2L_CHUNK)
-        acc = np.zeros((3, nt))
-        for c0 in range(f0, f1, M2L_CHUNK):
-            ns = min(M2L_CHUNK, f1 - c0)
-            for s in range(ns):
-                src = far_src[c0 + s]
-                rx[s] = t_center[t, 0] - s_center[src, 0]
-                ry[s] = t_center[t, 1] - s_center[src, 1]
-                rz[s] = t_center[t, 2] - s_center[src, 2]
-                s2 = rx[s] * rx[s] + ry[s] * ry[s] + rz[s] * rz[s] + delta2
-                inv_s[s] = 1.0 / s2
-                a[0, s] = np.sqrt(inv_s[s])
-                a[nt, s] = 0.0
+        acc = np.empty((3, nk))
+        for ti in range(blk * n_t // n_blocks, (blk + 1) * n_t // n_blocks):
+            t = t_cells[ti]
+            f0 = far_ptr[t]
+            f1 = far_ptr[t + 1]
+            acc[:, :] = 0.0
+            for c0 in range(f0, f1, M2L_CHUNK):
+                ns = min(M2L_CHUNK, f1 - c0)
+                for s in range(ns):
+                    src = far_src[c0 + s]
+                    rx[s] = t_center[t, 0] - s_center[src, 0]
+                    ry[s] = t_center[t, 1] - s_center[src, 1]
+                    rz[s] = t_center[t, 2] - s_center[src, 2]
+                    inv_s[s] = 1.0 / (rx[s] * rx[s] + ry[s] * ry[s] + rz[s] * rz[s] + delta2)
+                    a[0, s] = np.sqrt(inv_s[s])
+                    a[nt, s] = 0.0
+                    if wl:
+                        b[0, s] = wl_coef * inv_s[s] * a[0, s]
+                        b[nt, s] = 0.0
+                    for n in range(nr):
+                        mg[n, 0, s] = moments[src, 0, n]
+                        mg[n, 1, s] = moments[src, 1, n]
+                        mg[n, 2, s] = moments[src, 2, n]
+                _taylor_coefficients(rx, ry, rz, inv_s, ns, 0.5, deg, rec1, rec2, rec_list, a)
                 if wl:
-                    b[0, s] = wl_coef * inv_s[s] * a[0, s]
-                    b[nt, s] = 0.0
-                for m in range(nt):
-                    sg = sign[m]
-                    mg[0, m, s] = sg * moments[src, 0, m]
-                    mg[1, m, s] = sg * moments[src, 1, m]
-                    mg[2, m, s] = sg * moments[src, 2, m]
-            _taylor_coefficients(rx, ry, rz, inv_s, ns, 0.5, deg, rec1, rec2, a)
-            if wl:
-                _taylor_coefficients(rx, ry, rz, inv_s, ns, 1.5, deg, rec1, rec2, b)
-                for m in range(nt):
+                    _taylor_coefficients(rx, ry, rz, inv_s, ns, 1.5, deg, rec1, rec2, rec_list,
+                                         b)
+                    for r in range(rec_list.shape[0]):
+                        m = rec_list[r]
+                        for s in range(ns):
+                            a[m, s] += b[m, s]
                     for s in range(ns):
-                        a[m, s] += b[m, s]
-            for k in range(nt):
-                s0 = 0.0
-                s1 = 0.0
-                s2 = 0.0
-                for e in range(kptr[k], kptr[k + 1]):
-                    c = coef[e]
-                    am = a[m_idx[e]]
-                    n = n_idx[e]
-                    m0 = mg[0, n]
-                    m1 = mg[1, n]
-                    m2 = mg[2, n]
-                    for s in range(ns):
-                        w = c * am[s]
-                        s0 += w * m0[s]
-                        s1 += w * m1[s]
-                        s2 += w * m2[s]
-                acc[0, k] += s0
-                acc[1, k] += s1
-                acc[2, k] += s2
+                        a[0, s] += b[0, s]
+                for kk in range(nk):
+                    s0 = 0.0
+                    s1 = 0.0
+                    s2 = 0.0
+                    for e in range(kptr[kk], kptr[kk + 1]):
+                        c = coef[e]
+                        am = a[m_idx[e]]
+                        mn = mg[n_idx[e]]
+                        for s in range(ns):
+                            w = c * am[s]
+                            s0 += w * mn[0, s]
+                            s1 += w * mn[1, s]
+                            s2 += w * mn[2, s]
+                    acc[0, kk] += s0
+                    acc[1, kk] += s1
+                    acc[2, kk] += s2
+            for kk in range(nk):
+                k = k_list[kk]
+                local[t, 0, k] += acc[0, kk]
+                local[t, 1, k] += acc[1, kk]
+                local[t, 2, k] += acc[2, kk]
+
+
+@njit(parallel=True, cache=True)
+def reduce_moments(moments, ptr, n_idx, coef):
+    """Harmonic reduction of moments (C, 3, T) onto the n_z <= 1 list (C, 3, R)."""
+    n_cells = moments.shape[0]
+    nr = ptr.shape[0] - 1
+    out = np.empty((n_cells, 3, nr))
+    for c in prange(n_cells):
+        for r in range(nr):
+            s0 = 0.0
+            s1 = 0.0
+            s2 = 0.0
+            for e in range(ptr[r], ptr[r + 1]):
+                n = n_idx[e]
+                s0 += coef[e] * moments[c, 0, n]
+                s1 += coef[e] * moments[c, 1, n]
+                s2 += coef[e] * moments[c, 2, n]
+            out[c, 0, r] = s0
+            out[c, 1, r] = s1
+            out[c, 2, r] = s2
+    return out
+
+
+@njit(parallel=True, cache=True)
+def complete_harmonic(local, fill_k, fill_i, fill_c):
+    """Set the k_z >= 2 local coefficients from Laplace's equation."""
+    for c in prange(local.shape[0]):
         for l in range(3):
-            for k in range(nt):
-                local[t, l, k] += acc[l, k]
+            lc = local[c, l]
+            for f in range(fill_k.shape[0]):
+                lc[fill_k[f]] = fill_c[f, 0] * lc[fill_i[f, 0]] + fill_c[f, 1] * lc[fill_i[f, 1]]
 
 
 # ----------------------------------------------------------------------------

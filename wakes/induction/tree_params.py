@@ -24,6 +24,7 @@ from scipy.special import erfc
 from .smoothing import (CORE_LAMB_OSEEN, CORE_RANKINE, CORE_SCULLY, CORE_SINGULAR,
                         CORE_VATISTAS2, GAUSSIAN, LAMB_OSEEN_ALPHA, ROSENHEAD_MOORE, SINGULAR,
                         WINCKELMANS_LEONARD)
+from ..errors import InputError
 from .tree_expansion import n_terms
 
 # Share of the tolerance given to replacing a regularized kernel or a core
@@ -43,6 +44,7 @@ _SETTINGS = (
     (1e-9, 0.30, 15),
 )
 LEAF_SIZE = 64  # points per leaf: balances near-field pairs against expansions
+SPLIT_BITS = 3  # 3: octree, 1: binary tree
 
 
 def expansion_settings(tolerance: float) -> tuple[float, int]:
@@ -128,6 +130,66 @@ def core_reach(core: int, tolerance: float) -> float:
         return 1.0
     share = REGULARIZATION_SHARE * tolerance
     return _solve_reach(lambda x: _core_excess(core, x), share, 10.0 * share)
+
+
+# A source set smaller than this fits in a couple of leaves: the tree would be
+# a direct sum with overhead, so "tree" sums it directly (exactly) instead.
+MIN_TREE_SOURCES = 2 * LEAF_SIZE
+# Below this tolerance the expansions would need orders whose round-off
+# competes with the request; "tree" sums directly (exactly) instead.
+MIN_TREE_TOLERANCE = 1e-10
+# "auto" uses the tree when (sources x targets) exceeds this many pairs:
+# the measured break-even of direct and tree summation (benchmarks/bench_tree.py).
+AUTO_CROSSOVER_PAIRS = 4e8
+
+
+def check_tolerance(tolerance) -> float:
+    """Return ``tolerance`` as a float in (0, 1) or raise InputError."""
+    try:
+        tol = float(tolerance)
+    except (TypeError, ValueError):
+        raise InputError(f"tolerance must be a number between 0 and 1 (exclusive); "
+                         f"got {tolerance!r}") from None
+    if not (0.0 < tol < 1.0):
+        raise InputError(f"tolerance must be between 0 and 1 (exclusive); got {tolerance!r}")
+    return tol
+
+
+def use_tree(method: str, source_counts: list[int], n_targets: int, tolerance: float) -> bool:
+    """Whether a request is summed by the tree.
+
+    "direct" never; "tree" unless the source set is too small to gain
+    (fewer than ``MIN_TREE_SOURCES`` elements in all) or the tolerance is
+    below ``MIN_TREE_TOLERANCE``; "auto" like "tree" and only above
+    ``AUTO_CROSSOVER_PAIRS`` source-target pairs.
+    """
+    n_src = sum(source_counts)
+    if method == "direct" or n_targets == 0 or n_src < MIN_TREE_SOURCES \
+            or tolerance < MIN_TREE_TOLERANCE:
+        return False
+    return method == "tree" or n_src * n_targets >= AUTO_CROSSOVER_PAIRS
+
+
+def check_memory(n_targets: int, source_counts: list[int], gradient: bool, tree: bool,
+                 tolerance: float) -> None:
+    """Raise InputError if a request would not fit in the available memory.
+
+    Called before anything large is allocated; the estimate covers the
+    result arrays and, for the tree, its cells and lists.
+    """
+    if tree:
+        need = estimated_bytes(n_targets, source_counts,
+                               expansion_settings(tolerance)[1], gradient)
+    else:
+        need = 8 * n_targets * (3 + (9 if gradient else 0))
+    have = available_memory()
+    if need > have:
+        what = "tree summation" if tree else "the result"
+        raise InputError(
+            f"targets: {n_targets} targets and {sum(source_counts)} source elements "
+            f"(gradient={gradient}) need about {need / 2**30:.2f} GiB for {what}; only "
+            f"{have / 2**30:.2f} GiB of memory is available. Evaluate the targets in "
+            f"chunks or free memory.")
 
 
 def available_memory() -> int:
