@@ -1,0 +1,271 @@
+"""Airfoil polars: section lift and drag coefficients against angle of attack.
+
+Two kinds, both evaluated on arrays of angles in radians:
+
+* :class:`ThinAirfoilPolar` -- cl = a (alpha - alpha_0) with a = 2 pi by
+  default (thin-airfoil theory; Glauert 1926, *The Elements of Aerofoil and
+  Airscrew Theory*), and a simple drag polar cd = cd0 + cd2 cl^2.
+* :class:`TablePolar` -- a CSV table of cl and cd against alpha, linearly
+  interpolated. Outside the table an angle is an error, or, if asked, the
+  table is extended towards flat-plate values (see :class:`TablePolar`).
+
+Every polar returns ``(cl, cd, dcl_dalpha)`` so the lifting-line solver can
+build its Newton Jacobian.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import CaseError, InputError
+from ..io.tables import read_numeric_table
+
+POLAR_COLUMNS = ("alpha_deg", "cl", "cd")
+OUT_OF_RANGE_MODES = ("error", "flat-plate")
+FLAT_PLATE_BLEND = np.radians(10.0)  # angle over which a table blends into flat-plate values
+
+
+class PolarRangeError(InputError):
+    """An angle of attack fell outside a polar table.
+
+    Attributes
+    ----------
+    index : int
+        Index of the first offending section in the evaluated array.
+    alpha_deg : float
+        The offending angle [deg].
+    """
+
+    def __init__(self, message: str, index: int, alpha_deg: float):
+        super().__init__(message)
+        self.index = index
+        self.alpha_deg = alpha_deg
+
+
+@dataclass(frozen=True)
+class ThinAirfoilPolar:
+    """Thin-airfoil lift with a parabolic drag polar.
+
+    Parameters
+    ----------
+    lift_slope : float
+        Section lift-curve slope a [1/rad]; 2 pi for a thin airfoil.
+    zero_lift_angle : float
+        alpha_0 [rad].
+    cd0, cd2 : float
+        Drag polar cd = cd0 + cd2 cl^2 (zero: inviscid).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> cl, cd, dcl = ThinAirfoilPolar().evaluate(np.radians([5.0]))
+    >>> round(float(cl[0]), 4)
+    0.5483
+    """
+
+    lift_slope: float = 2.0 * np.pi
+    zero_lift_angle: float = 0.0
+    cd0: float = 0.0
+    cd2: float = 0.0
+
+    @property
+    def name(self) -> str:
+        return "thin airfoil"
+
+    def evaluate(self, alpha: np.ndarray):
+        """Return cl, cd and dcl/dalpha [1/rad] at angles ``alpha`` [rad], each shape of alpha."""
+        alpha = np.asarray(alpha, dtype=np.float64)
+        cl = self.lift_slope * (alpha - self.zero_lift_angle)
+        cd = self.cd0 + self.cd2 * cl * cl
+        return cl, cd, np.full_like(alpha, self.lift_slope)
+
+    def alpha_for_cl(self, cl: np.ndarray) -> np.ndarray:
+        """Angle [rad] at which the polar gives lift coefficient ``cl``."""
+        return self.zero_lift_angle + np.asarray(cl, dtype=np.float64) / self.lift_slope
+
+
+class TablePolar:
+    """A tabulated polar read from CSV, linearly interpolated.
+
+    Parameters
+    ----------
+    alpha : array_like, shape (K,)
+        Angles of attack [rad], strictly increasing, K >= 2.
+    cl, cd : array_like, shape (K,)
+        Lift and drag coefficients at those angles.
+    name : str
+        Where the table came from (file name), for messages.
+    out_of_range : {"error", "flat-plate"}
+        "error" raises :class:`PolarRangeError` for an angle outside the
+        table. "flat-plate" blends linearly, over 10 degrees beyond each end,
+        from the end value to the flat-plate coefficients cl = sin 2 alpha,
+        cd = 2 sin^2 alpha (normal-force coefficient 2 sin alpha; common
+        practice for post-stall estimates), and uses those beyond.
+
+    Notes
+    -----
+    The CSV file has a header row naming at least ``alpha_deg``, ``cl`` and
+    ``cd``; ``#`` starts a comment line. Use :func:`load_polar_table`.
+    """
+
+    def __init__(self, alpha, cl, cd, *, name: str = "table", out_of_range: str = "error"):
+        self.alpha = np.ascontiguousarray(alpha, dtype=np.float64)
+        self.cl = np.ascontiguousarray(cl, dtype=np.float64)
+        self.cd = np.ascontiguousarray(cd, dtype=np.float64)
+        self.name = name
+        if out_of_range not in OUT_OF_RANGE_MODES:
+            raise InputError(f"out_of_range must be one of {', '.join(map(repr, OUT_OF_RANGE_MODES))}; "
+                             f"got {out_of_range!r}")
+        self.out_of_range = out_of_range
+        n = self.alpha.shape[0]
+        if n < 2 or self.cl.shape != (n,) or self.cd.shape != (n,):
+            raise InputError(f"polar '{name}' needs at least two rows of alpha, cl and cd of one length")
+        steps = np.diff(self.alpha)
+        if (steps <= 0).any():
+            k = int(np.argmax(steps <= 0)) + 1
+            raise InputError(f"polar '{name}': alpha_deg must increase strictly; row {k + 1} "
+                             f"({np.degrees(self.alpha[k]):g}) follows row {k} "
+                             f"({np.degrees(self.alpha[k - 1]):g})")
+        self._slope_cl = np.diff(self.cl) / steps
+
+    def __repr__(self) -> str:
+        lo, hi = np.degrees(self.alpha[[0, -1]])
+        return f"TablePolar({self.name!r}, {lo:g} to {hi:g} deg, out_of_range={self.out_of_range!r})"
+
+    @property
+    def alpha_range(self) -> tuple[float, float]:
+        """First and last tabulated angle [rad]."""
+        return float(self.alpha[0]), float(self.alpha[-1])
+
+    def evaluate(self, alpha: np.ndarray):
+        """Return cl, cd and dcl/dalpha [1/rad] at angles ``alpha`` [rad].
+
+        Raises
+        ------
+        PolarRangeError
+            With ``out_of_range = "error"``, for the first angle outside the table.
+        """
+        a = np.asarray(alpha, dtype=np.float64)
+        lo, hi = self.alpha[0], self.alpha[-1]
+        outside = (a < lo) | (a > hi)
+        if outside.any() and self.out_of_range == "error":
+            i = int(np.argmax(outside.ravel()))
+            bad = float(np.degrees(a.ravel()[i]))
+            raise PolarRangeError(
+                f"polar '{self.name}' covers {np.degrees(lo):g} to {np.degrees(hi):g} deg; "
+                f"an angle of {bad:.3g} deg was met (extend the table or set "
+                f"out_of_range = \"flat-plate\")", i, bad)
+        k = np.clip(np.searchsorted(self.alpha, a, side="right") - 1, 0, self.alpha.shape[0] - 2)
+        cl = np.interp(a, self.alpha, self.cl)
+        cd = np.interp(a, self.alpha, self.cd)
+        dcl = self._slope_cl[k]
+        if outside.any():
+            cl, cd, dcl = self._extend(a, cl, cd, dcl, a < lo, a > hi)
+        return cl, cd, dcl
+
+    def _extend(self, a, cl, cd, dcl, below, above):
+        """Blend into flat-plate coefficients beyond the table ends."""
+        cl, cd, dcl = cl.copy(), cd.copy(), dcl.copy()
+        for mask, end, sign in ((below, 0, -1.0), (above, -1, 1.0)):
+            if not mask.any():
+                continue
+            x = a[mask]
+            w = np.clip(sign * (x - self.alpha[end]) / FLAT_PLATE_BLEND, 0.0, 1.0)
+            dw = np.where(w < 1.0, sign / FLAT_PLATE_BLEND, 0.0)
+            cl_fp, dcl_fp = np.sin(2 * x), 2 * np.cos(2 * x)
+            cd_fp = 2 * np.sin(x) ** 2
+            cl[mask] = (1 - w) * self.cl[end] + w * cl_fp
+            cd[mask] = (1 - w) * self.cd[end] + w * cd_fp
+            dcl[mask] = dw * (cl_fp - self.cl[end]) + w * dcl_fp
+        return cl, cd, dcl
+
+    def alpha_for_cl(self, cl: np.ndarray) -> np.ndarray:
+        """Angle [rad] giving lift coefficient ``cl`` on the table's rising lift curve.
+
+        Uses the run of strictly rising cl that contains the smallest |cl|;
+        a cl beyond that run takes the angle at its end (used only to pick
+        the profile drag of vortex-lattice strips).
+        """
+        rising = np.diff(self.cl) > 0
+        k0 = int(np.argmin(np.abs(self.cl)))
+        k0 = min(k0, rising.shape[0] - 1)
+        lo = k0
+        while lo > 0 and rising[lo - 1]:
+            lo -= 1
+        hi = k0
+        while hi < rising.shape[0] and rising[hi]:
+            hi += 1
+        if hi == lo:  # no rising part at all: fall back to the whole table
+            lo, hi = 0, rising.shape[0]
+        return np.interp(np.asarray(cl, dtype=np.float64), self.cl[lo:hi + 1], self.alpha[lo:hi + 1])
+
+
+def load_polar_table(path, *, out_of_range: str = "error") -> TablePolar:
+    """Read a polar CSV (columns ``alpha_deg``, ``cl``, ``cd``) into a :class:`TablePolar`.
+
+    Parameters
+    ----------
+    path : str or Path
+        The CSV file.
+    out_of_range : {"error", "flat-plate"}
+        What to do with angles outside the table (see :class:`TablePolar`).
+
+    Raises
+    ------
+    wakes.errors.CaseError
+        Missing file or columns, non-numeric values, fewer than two rows or
+        angles that do not increase strictly; the message names the file.
+    """
+    cols = read_numeric_table(path, POLAR_COLUMNS, what="polar table")
+    try:
+        return TablePolar(np.radians(cols["alpha_deg"]), cols["cl"], cols["cd"],
+                          name=Path(path).name, out_of_range=out_of_range)
+    except InputError as exc:
+        raise CaseError(f"polar table '{path}': {exc}") from None
+
+
+class SectionPolars:
+    """The polars of all sections of one lifting surface, evaluated together.
+
+    Parameters
+    ----------
+    polars : sequence of polar objects
+        Distinct polars (ThinAirfoilPolar or TablePolar).
+    index : array_like of int, shape (n,)
+        Which polar each of the n sections uses.
+    """
+
+    def __init__(self, polars, index):
+        self.polars = tuple(polars)
+        self.index = np.asarray(index, dtype=np.int64)
+
+    @classmethod
+    def uniform(cls, polar, n: int) -> "SectionPolars":
+        """All ``n`` sections use one polar."""
+        return cls((polar,), np.zeros(n, dtype=np.int64))
+
+    def evaluate(self, alpha: np.ndarray):
+        """cl, cd, dcl/dalpha for every section, shape (n,); errors carry the section index."""
+        if len(self.polars) == 1:
+            return self.polars[0].evaluate(alpha)
+        cl, cd, dcl = (np.empty_like(alpha) for _ in range(3))
+        for k, polar in enumerate(self.polars):
+            sel = np.flatnonzero(self.index == k)
+            if sel.size == 0:
+                continue
+            try:
+                cl[sel], cd[sel], dcl[sel] = polar.evaluate(alpha[sel])
+            except PolarRangeError as exc:
+                raise PolarRangeError(str(exc), int(sel[exc.index]), exc.alpha_deg) from None
+        return cl, cd, dcl
+
+    def alpha_for_cl(self, cl: np.ndarray) -> np.ndarray:
+        """Angle [rad] per section giving ``cl`` (see the polar classes)."""
+        out = np.empty_like(cl)
+        for k, polar in enumerate(self.polars):
+            sel = self.index == k
+            out[sel] = polar.alpha_for_cl(cl[sel])
+        return out

@@ -1,0 +1,210 @@
+"""The wake one lifting surface sheds: a free vortex lattice, optionally turned into particles.
+
+Each step the surface's shedding row (its trailing edge) releases a new row
+of wake nodes; the ring between that row and the previous one carries the
+surface's strip circulation at shedding time, so the lattice holds the shed
+(spanwise) vorticity -- the change of bound circulation in time -- and the
+trailed (streamwise) vorticity -- its change along the span (Katz & Plotkin
+2001, *Low-Speed Aerodynamics*, 2nd ed., sec. 13.8).
+
+Storage: ``rows`` (R, n + 1, 3), newest (at the trailing edge) first; ring
+k lies between rows k and k + 1 with circulation ``gamma[k]``. With the
+particle model, rings older than ``near_wake_steps`` are converted into
+vortex particles with strength alpha = Gamma (B - A) placed at each net
+segment's midpoint, and the lattice's far end is left open with ``tail``
+holding the circulation of the last converted ring, so the vortex lines
+continue into the particles. Core radii grow with age as
+r_c = sqrt(r_0^2 + 4 a delta nu age), a = 1.25643 (Squire 1965, Aeronaut.
+Q. 16; Lamb--Oseen constant).
+
+The spanwise segments of the attached row (at the shedding row) get a
+vanishing core: they lie on the surface's trailing-edge closure, which the
+circulation solve treats as a singular line, and the two must cancel
+exactly when the circulation is steady. The vorticity they carry takes the
+ordinary core once the row is released.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..elements import Filaments, Particles
+from ..induction.smoothing import LAMB_OSEEN_ALPHA
+from .vortex_lattice import lattice_filaments, lattice_segments
+
+ATTACHED_CORE_FRACTION = 1e-6  # attached row's core radius / core_radius: a singular line in effect
+
+
+@dataclass(frozen=True)
+class WakeSettings:
+    """How wakes are stored and moved.
+
+    Parameters
+    ----------
+    model : {"filaments", "particles"}
+        Keep the whole wake as a vortex lattice, or convert rings older than
+        ``near_wake_steps`` into particles.
+    motion : {"free", "frozen"}
+        Free: nodes and particles move with the local velocity (freestream
+        plus everything induced). Frozen: they move with the freestream.
+    core : str
+        Filament core model (:data:`wakes.induction.smoothing.CORE_MODELS`).
+    core_radius : float
+        Initial core radius r_0 [m]; also the smallest particle radius.
+    core_growth : float
+        Eddy-viscosity factor delta in the core growth law (1: laminar).
+    viscosity : float
+        Kinematic viscosity nu [m^2/s].
+    particle_kernel : str
+        Particle smoothing kernel.
+    particle_overlap : float
+        Particle radius as a multiple of the length of the segment it
+        replaces (at least ``core_radius``).
+    near_wake_steps : int
+        Rings kept as filaments before conversion (particle model).
+    max_age : float
+        Wake older than this [s] is removed (inf: kept).
+    """
+
+    model: str = "filaments"
+    motion: str = "free"
+    core: str = "lamb-oseen"
+    core_radius: float = 0.05
+    core_growth: float = 1.0
+    viscosity: float = 1.5e-5
+    particle_kernel: str = "gaussian"
+    particle_overlap: float = 1.3
+    near_wake_steps: int = 8
+    max_age: float = float("inf")
+
+    def core_at_age(self, age: np.ndarray) -> np.ndarray:
+        """Core radius [m] of vorticity of the given ``age`` [s] (Squire's growth law)."""
+        age = np.maximum(np.asarray(age, dtype=np.float64), 0.0)
+        return np.sqrt(self.core_radius ** 2
+                       + 4.0 * LAMB_OSEEN_ALPHA * self.core_growth * self.viscosity * age)
+
+
+class WakeSheet:
+    """The wake of one lifting surface.
+
+    Parameters
+    ----------
+    te_nodes : ndarray, shape (n + 1, 3)
+        The surface's shedding row at the start [m].
+    time : float
+        Start time [s].
+    settings : WakeSettings
+        Storage and motion options.
+    """
+
+    def __init__(self, te_nodes: np.ndarray, time: float, settings: WakeSettings):
+        self.settings = settings
+        te = np.asarray(te_nodes, dtype=np.float64)
+        self.n_span = te.shape[0] - 1
+        self.rows = te[None].copy()
+        self.row_time = np.array([float(time)])
+        self.gamma = np.zeros((0, self.n_span))
+        self.tail = np.zeros(self.n_span)
+        self.positions = np.zeros((0, 3))
+        self.strengths = np.zeros((0, 3))
+        self.radii = np.zeros(0)
+        self.birth = np.zeros(0)
+
+    # ------------------------------------------------------------------ views
+    @property
+    def node_count(self) -> int:
+        return self.rows.shape[0] * self.rows.shape[1]
+
+    @property
+    def particle_count(self) -> int:
+        return self.positions.shape[0]
+
+    def filaments(self, time: float) -> Filaments:
+        """The lattice as filaments at ``time`` [s], cores grown to each row's age."""
+        rc = self.settings.core_at_age(time - self.row_time)
+        stream = 0.5 * (rc[:-1] + rc[1:])
+        rc[0] = ATTACHED_CORE_FRACTION * self.settings.core_radius
+        return lattice_filaments(self.rows, self.gamma, core=self.settings.core, core_radius=rc,
+                                 stream_core=stream, after=self.tail)
+
+    def particles(self) -> Particles:
+        """The converted far wake as particles."""
+        return Particles(self.positions, self.strengths, self.radii, kernel=self.settings.particle_kernel)
+
+    def sources(self, time: float) -> list:
+        """Every vortex element of this wake, for :func:`wakes.induce`."""
+        out = [self.filaments(time)]
+        if self.particle_count:
+            out.append(self.particles())
+        return out
+
+    # ---------------------------------------------------------------- updates
+    def move(self, node_velocity: np.ndarray, dt: float, particle_velocity=None,
+             particle_stretching=None) -> None:
+        """Advance nodes (R (n + 1), 3) and particles (P, 3) by one forward-Euler step of ``dt`` [s].
+
+        ``particle_stretching`` is d alpha/dt (P, 3) [m^3/s^2], or None.
+        """
+        self.rows = self.rows + dt * node_velocity.reshape(self.rows.shape)
+        if self.particle_count:
+            self.positions = self.positions + dt * particle_velocity
+            if particle_stretching is not None:
+                self.strengths = self.strengths + dt * particle_stretching
+
+    def shed(self, te_nodes: np.ndarray, strip_gamma: np.ndarray, time: float) -> None:
+        """Attach a new row at the shedding row ``te_nodes`` (n + 1, 3) at ``time`` [s].
+
+        The new ring between it and the previous (already moved) row gets
+        the circulation ``strip_gamma`` (n,) the surface had when it was shed.
+        """
+        self.rows = np.concatenate([np.asarray(te_nodes, dtype=np.float64)[None], self.rows])
+        self.row_time = np.concatenate([[float(time)], self.row_time])
+        self.gamma = np.concatenate([np.asarray(strip_gamma, dtype=np.float64)[None], self.gamma])
+
+    def age_out(self, time: float) -> None:
+        """Convert old rings to particles (particle model) and drop wake older than ``max_age``."""
+        s = self.settings
+        if s.model == "particles":
+            while self.gamma.shape[0] > s.near_wake_steps:
+                self._convert_oldest_ring(time)
+        if np.isfinite(s.max_age):
+            while self.gamma.shape[0] > 0 and time - self.row_time[-1] > s.max_age:
+                self._drop_oldest_ring()
+            keep = time - self.birth <= s.max_age
+            if not keep.all():
+                self.positions, self.strengths = self.positions[keep], self.strengths[keep]
+                self.radii, self.birth = self.radii[keep], self.birth[keep]
+
+    def _convert_oldest_ring(self, time: float) -> None:
+        """Turn the oldest ring's net segments into particles; leave the lattice open."""
+        last = self.rows[-2:]
+        nodes, seg, circ, _ = lattice_segments(last, self.gamma[-1:], after=self.tail)
+        # keep the far row's spanwise segments and the streamwise ones: the
+        # near row's spanwise segments stay in the lattice.
+        far_row = (seg[:, 0] >= last.shape[1]) & (seg[:, 1] >= last.shape[1])
+        streamwise = (seg[:, 0] < last.shape[1]) != (seg[:, 1] < last.shape[1])
+        take = (far_row | streamwise) & (circ != 0.0)
+        a, b = nodes[seg[take, 0]], nodes[seg[take, 1]]
+        length = np.linalg.norm(b - a, axis=1)
+        born = 0.5 * (self.row_time[-1] + self.row_time[-2])
+        s = self.settings
+        radius = np.maximum(s.core_at_age(np.full(length.shape, time - born)),
+                            s.particle_overlap * length)
+        self.positions = np.vstack([self.positions, 0.5 * (a + b)])
+        self.strengths = np.vstack([self.strengths, circ[take, None] * (b - a)])
+        self.radii = np.concatenate([self.radii, radius])
+        self.birth = np.concatenate([self.birth, np.full(length.shape, born)])
+        self.tail = self.gamma[-1].copy()
+        self._pop_oldest()
+
+    def _drop_oldest_ring(self) -> None:
+        """Remove the oldest ring and close the lattice there."""
+        self.tail = np.zeros(self.n_span)
+        self._pop_oldest()
+
+    def _pop_oldest(self) -> None:
+        self.rows = self.rows[:-1]
+        self.row_time = self.row_time[:-1]
+        self.gamma = self.gamma[:-1]

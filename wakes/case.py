@@ -1,0 +1,692 @@
+"""Case files: a TOML schema in frozen dataclasses, checked key by key.
+
+A case file describes one simulation: the fluid, the freestream, named
+bodies, the wake model, the time stepping, the solver and the outputs. It
+is read with :mod:`tomllib`; every key is checked for type, unit and range,
+unknown keys are rejected with a "did you mean", and defaults (some worked
+out from the rest of the case, such as the time step) are filled in. The
+resolved case can be written back as TOML (:meth:`Case.to_toml`), which is
+what a run folder records.
+
+Units are SI; angles are in degrees. Example::
+
+    title = "elliptic wing"
+    [freestream]
+    speed = 10.0
+    angle_of_attack = 5.0
+    [bodies.wing]
+    type = "wing"
+    span = 8.0
+    chord = {law = "elliptic", root = 1.2732}
+
+Body types are registered in :data:`BODY_TYPES` (name -> spec class); a
+spec class is a frozen dataclass with a ``type`` field and the hooks
+``check``, ``resolve``, ``suggest_dt`` and ``suggest_steps``.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import difflib
+import math
+import re
+import tomllib
+from dataclasses import dataclass, field, fields
+from pathlib import Path
+
+import numpy as np
+
+from .aero.geometry import DISTRIBUTION_LAWS, SPACINGS, Distribution, WingPlanform
+from .aero.polars import OUT_OF_RANGE_MODES, load_polar_table
+from .errors import CaseError
+from .induction.api import METHODS
+from .induction.smoothing import CORE_MODELS, PARTICLE_KERNELS
+
+WAKE_MODELS = ("filaments", "particles")
+WAKE_MOTIONS = ("free", "frozen")
+WING_MODELS = ("lifting-line", "vortex-lattice")
+DEFAULT_CORE_CHORDS = 0.1   # initial core radius / smallest mean chord (common practice, 5-20 %)
+DEFAULT_WAKE_SPANS = 3.0    # default run length: wake this many spans long (downwash within ~1 %)
+_NAME = re.compile(r"^[A-Za-z0-9_-]+$")
+
+
+def key(default=dataclasses.MISSING, doc: str = "", unit: str = "", *, kind: str = "float",
+        minimum=None, maximum=None, above=None, choices=None, resolved: bool = False,
+        allow_inf: bool = False):
+    """A schema field: default, documentation, unit and accepted range.
+
+    ``kind`` is one of float, int, bool, str, vec3, distribution, path,
+    table. ``above`` is an exclusive lower bound, ``minimum``/``maximum``
+    inclusive bounds. ``resolved`` marks a field whose default is worked
+    out from the rest of the case.
+    """
+    meta = dict(doc=doc, unit=unit, kind=kind, minimum=minimum, maximum=maximum, above=above,
+                choices=tuple(choices) if choices is not None else None, resolved=resolved)
+    return field(default=default, metadata=meta)
+
+
+# ----------------------------------------------------------------- sections
+
+@dataclass(frozen=True, kw_only=True)
+class FluidSpec:
+    """[fluid]: the fluid at rest far away."""
+
+    density: float = key(1.225, "fluid density (ISA sea level by default)", "kg/m^3", above=0.0)
+    kinematic_viscosity: float = key(1.4607e-5, "kinematic viscosity nu (ISA sea level)", "m^2/s",
+                                     minimum=0.0)
+
+
+@dataclass(frozen=True, kw_only=True)
+class FreestreamSpec:
+    """[freestream]: the undisturbed flow, by speed and angles or as a vector.
+
+    velocity = speed (cos a cos b, -sin b, sin a cos b) in the global frame:
+    a positive angle of attack a brings the flow from below, a positive
+    sideslip b from the right (+y).
+    """
+
+    speed: float = key(0.0, "freestream speed", "m/s", minimum=0.0)
+    angle_of_attack: float = key(0.0, "angle of the flow above the x axis", "deg",
+                                 minimum=-90.0, maximum=90.0)
+    sideslip: float = key(0.0, "angle of the flow from the right (+y) side", "deg",
+                          minimum=-90.0, maximum=90.0)
+    velocity: tuple | None = key(None, "freestream velocity vector instead of speed and angles",
+                                 "m/s", kind="vec3")
+
+    def vector(self) -> np.ndarray:
+        """Freestream velocity in the global frame [m/s], shape (3,)."""
+        if self.velocity is not None:
+            return np.asarray(self.velocity, dtype=np.float64)
+        a, b = math.radians(self.angle_of_attack), math.radians(self.sideslip)
+        return self.speed * np.array([math.cos(a) * math.cos(b), -math.sin(b), math.sin(a) * math.cos(b)])
+
+    def omitted(self) -> set:
+        return {"speed", "angle_of_attack", "sideslip"} if self.velocity is not None else {"velocity"}
+
+
+@dataclass(frozen=True, kw_only=True)
+class TimeSpec:
+    """[time]: time stepping."""
+
+    dt: float | None = key(None, "time step (default: a wake panel of a quarter mean chord)", "s",
+                           above=0.0, resolved=True)
+    steps: int | None = key(None, "number of time steps (default: a wake three spans long)",
+                            kind="int", minimum=1, resolved=True)
+
+
+@dataclass(frozen=True, kw_only=True)
+class SolverSpec:
+    """[solver]: the bound-circulation solve at each step."""
+
+    tolerance: float = key(1e-6, "largest scaled residual accepted (circulation / (c V / 2))",
+                           above=0.0, maximum=0.1)
+    max_iterations: int = key(50, "Newton iterations allowed per step", kind="int", minimum=1)
+    relaxation: float = key(1.0, "under-relaxation factor of each Newton step", above=0.0, maximum=1.0)
+
+
+@dataclass(frozen=True, kw_only=True)
+class WakeSpec:
+    """[wake]: how the shed wake is stored and moved."""
+
+    model: str = key("filaments", "keep the wake as a vortex lattice, or convert it to particles",
+                     kind="str", choices=WAKE_MODELS)
+    motion: str = key("free", "free: moves with the local velocity; frozen: with the freestream",
+                      kind="str", choices=WAKE_MOTIONS)
+    core: str = key("lamb-oseen", "filament core model", kind="str", choices=CORE_MODELS)
+    core_radius: float | None = key(None, "initial core radius (default: 0.1 x smallest mean chord)",
+                                    "m", above=0.0, resolved=True)
+    core_growth: float = key(1.0, "eddy-viscosity factor delta of the core growth law (1: laminar)",
+                             minimum=0.0)
+    particle_kernel: str = key("gaussian", "particle smoothing kernel", kind="str",
+                               choices=PARTICLE_KERNELS)
+    particle_overlap: float = key(1.3, "particle radius / length of the segment it replaces",
+                                  above=0.0)
+    near_wake_steps: int = key(8, "wake rows kept as filaments before conversion (particles)",
+                               kind="int", minimum=1)
+    max_age: float = key(float("inf"), "wake older than this is removed (inf: kept)", "s", above=0.0,
+                         allow_inf=True)
+    induction: str = key("direct", "summation method of wakes.induce", kind="str", choices=METHODS)
+
+
+@dataclass(frozen=True, kw_only=True)
+class OutputSpec:
+    """[output]: what a run writes besides loads.csv, sections.csv and summary.json."""
+
+    wake: bool = key(True, "write the final wake (wake_segments.csv, wake_particles.csv)", kind="bool")
+
+
+@dataclass(frozen=True, kw_only=True)
+class AirfoilSpec:
+    """[bodies.NAME.airfoil]: the section polar, a CSV table or thin-airfoil theory."""
+
+    polar: str | None = key(None, "CSV polar table (alpha_deg, cl, cd), relative to the case file",
+                            kind="path")
+    out_of_range: str = key("error", "angles outside the table: error, or blend to flat plate",
+                            kind="str", choices=OUT_OF_RANGE_MODES)
+    lift_slope: float = key(2 * math.pi, "thin airfoil: section lift slope", "1/rad", above=0.0)
+    zero_lift_angle: float = key(0.0, "thin airfoil: zero-lift angle", "deg",
+                                 minimum=-30.0, maximum=30.0)
+    cd0: float = key(0.0, "thin airfoil: drag polar cd = cd0 + cd2 cl^2", minimum=0.0)
+    cd2: float = key(0.0, "thin airfoil: drag polar cd = cd0 + cd2 cl^2", minimum=0.0)
+
+    _THIN = ("lift_slope", "zero_lift_angle", "cd0", "cd2")
+
+    def after_parse(self, raw: dict, where: str, ctx) -> "AirfoilSpec":
+        if self.polar is not None:
+            both = [k for k in self._THIN if k in raw]
+            if both:
+                ctx.fail(f"{where}.{both[0]}: give either a polar table or thin-airfoil "
+                         f"coefficients, not both (polar = {raw['polar']!r})")
+            load_polar_table(self.polar, out_of_range=self.out_of_range)
+        elif "out_of_range" in raw:
+            ctx.fail(f"{where}.out_of_range applies to a polar table only; set {where}.polar")
+        return self
+
+    def omitted(self) -> set:
+        return set(self._THIN) if self.polar is not None else {"polar", "out_of_range"}
+
+
+@dataclass(frozen=True, kw_only=True)
+class WingSpec:
+    """[bodies.NAME] with type = "wing": a fixed wing in the freestream."""
+
+    type: str = key("wing", "body type", kind="str", choices=("wing",))
+    model: str = key("lifting-line", "nonlinear lifting line with polars, or vortex lattice",
+                     kind="str", choices=WING_MODELS)
+    span: float = key(doc="tip-to-tip span, projected on the body y axis", unit="m", above=0.0)
+    chord: Distribution = key(doc="chord along the span", unit="m", kind="distribution", above=0.0)
+    twist: Distribution = key(Distribution.constant(0.0), "section incidence, nose up positive",
+                              "deg", kind="distribution", minimum=-45.0, maximum=45.0)
+    sweep: Distribution = key(Distribution.constant(0.0), "quarter-chord sweep, tips aft positive",
+                              "deg", kind="distribution", minimum=-75.0, maximum=75.0)
+    dihedral: Distribution = key(Distribution.constant(0.0), "quarter-chord dihedral, tips up positive",
+                                 "deg", kind="distribution", minimum=-75.0, maximum=75.0)
+    symmetric: bool = key(True, "tables give the right half (eta 0..1), mirrored to the left",
+                          kind="bool")
+    spanwise_panels: int = key(24, "panels over the full span", kind="int", minimum=2, maximum=400)
+    spacing: str = key("cosine", "spanwise node spacing", kind="str", choices=SPACINGS)
+    chordwise_panels: int | None = key(None, "panels along the chord (lifting line: 1; lattice: 4)",
+                                       kind="int", minimum=1, maximum=64, resolved=True)
+    position: tuple = key((0.0, 0.0, 0.0), "root quarter-chord point in the global frame", "m",
+                          kind="vec3")
+    orientation: tuple = key((0.0, 0.0, 0.0), "rotation about global x, then y (nose up), then z",
+                             "deg", kind="vec3")
+    reference_area: float | None = key(None, "area for coefficients (default: planform area)", "m^2",
+                                       above=0.0, resolved=True)
+    airfoil: AirfoilSpec = key(AirfoilSpec(), "section polar", kind="table")
+    name: str = field(default="wing", metadata=dict(internal=True))
+
+    def planform(self) -> WingPlanform:
+        """The wing's planform laws."""
+        return WingPlanform(self.span, self.chord, self.twist, self.sweep, self.dihedral, self.symmetric)
+
+    def mean_chord(self) -> float:
+        """Planform area over span [m]."""
+        return self.planform().area() / self.span
+
+    def after_parse(self, raw: dict, where: str, ctx) -> "WingSpec":
+        for name in ("chord", "twist", "sweep", "dihedral"):
+            problem = getattr(self, name).problem(self.symmetric)
+            if problem:
+                ctx.fail(f"{where}.{name}: {problem}")
+        if self.model == "lifting-line" and self.chordwise_panels not in (None, 1):
+            ctx.fail(f"{where}.chordwise_panels must be 1 for model = \"lifting-line\"; got "
+                     f"{self.chordwise_panels} (use model = \"vortex-lattice\" for chordwise panels)")
+        return self
+
+    def check(self, case: "Case", where: str, ctx) -> None:
+        if np.linalg.norm(case.freestream.vector()) == 0.0:
+            ctx.fail(f"{where}: a wing needs a freestream; [freestream] speed must be positive "
+                     "(or velocity nonzero), got zero")
+
+    def resolve(self, case: "Case") -> "WingSpec":
+        n_c = self.chordwise_panels or (1 if self.model == "lifting-line" else 4)
+        area = self.reference_area or self.planform().area()
+        return dataclasses.replace(self, chordwise_panels=n_c, reference_area=area)
+
+    def suggest_dt(self, case: "Case") -> float:
+        speed = float(np.linalg.norm(case.freestream.vector()))
+        return self.mean_chord() / (max(4, self.chordwise_panels or 1) * speed)
+
+    def suggest_steps(self, case: "Case", dt: float) -> int:
+        speed = float(np.linalg.norm(case.freestream.vector()))
+        return int(math.ceil(DEFAULT_WAKE_SPANS * self.span / (speed * dt)))
+
+    def omitted(self) -> set:
+        return set()
+
+
+BODY_TYPES: dict[str, type] = {"wing": WingSpec}
+
+
+@dataclass(frozen=True, kw_only=True)
+class Case:
+    """A fully checked case. Build it with :func:`load_case` or :func:`parse_case`.
+
+    Attributes
+    ----------
+    title : str
+        Free text naming the case.
+    fluid, freestream, time, solver, wake, output
+        The sections of the case file.
+    bodies : tuple
+        Body specs (e.g. :class:`WingSpec`), each with its ``name``.
+    source : str
+        Where the case came from (file path or ``"<dict>"``).
+    """
+
+    title: str = key("", "free text naming the case", kind="str")
+    fluid: FluidSpec = key(FluidSpec(), kind="table")
+    freestream: FreestreamSpec = key(FreestreamSpec(), kind="table")
+    time: TimeSpec = key(TimeSpec(), kind="table")
+    solver: SolverSpec = key(SolverSpec(), kind="table")
+    wake: WakeSpec = key(WakeSpec(), kind="table")
+    output: OutputSpec = key(OutputSpec(), kind="table")
+    bodies: tuple = field(default=(), metadata=dict(kind="bodies"))
+    source: str = field(default="<dict>", metadata=dict(internal=True))
+
+    def body(self, name: str):
+        """The body spec called ``name``."""
+        for b in self.bodies:
+            if b.name == name:
+                return b
+        raise KeyError(name)
+
+    def to_dict(self) -> dict:
+        """The case as nested plain data (what :meth:`to_toml` writes)."""
+        return _to_plain(self)
+
+    def to_toml(self, header: str = "") -> str:
+        """The resolved case as TOML text that :func:`load_case` reads back."""
+        return _dump_toml(self.to_dict(), header)
+
+
+# ----------------------------------------------------------------- parsing
+
+class _Context:
+    """Where a case comes from, for messages."""
+
+    def __init__(self, source: str, base_dir: Path):
+        self.source = source
+        self.base_dir = base_dir
+
+    def fail(self, message: str):
+        raise CaseError(f"{self.source}: {message}")
+
+
+def _number(value, where, ctx, meta, integer=False):
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        kind = "an integer" if integer else "a number"
+        ctx.fail(f"{where} must be {kind}{_unit_text(meta)}; got {value!r}")
+    if integer and not isinstance(value, int):
+        ctx.fail(f"{where} must be an integer; got {value!r}")
+    if isinstance(value, float) and math.isnan(value):
+        ctx.fail(f"{where} must be a number; got nan")
+    if isinstance(value, float) and math.isinf(value) and not (meta.get("allow_inf") and value > 0):
+        ctx.fail(f"{where} must be finite; got {value!r}")
+    _check_range(value, where, ctx, meta)
+    return int(value) if integer else float(value)
+
+
+def _check_range(value, where, ctx, meta):
+    lo, hi, above = meta.get("minimum"), meta.get("maximum"), meta.get("above")
+    if above is not None and not value > above:
+        ctx.fail(f"{where} must be greater than {above:g}{_unit_text(meta)}; got {value!r}")
+    if lo is not None and value < lo or hi is not None and value > hi:
+        rng = (f"between {lo:g} and {hi:g}" if lo is not None and hi is not None
+               else f"at least {lo:g}" if lo is not None else f"at most {hi:g}")
+        ctx.fail(f"{where} must be {rng}{_unit_text(meta)}; got {value!r}")
+
+
+def _unit_text(meta) -> str:
+    return f" [{meta['unit']}]" if meta.get("unit") else ""
+
+
+def _distribution(value, where, ctx, meta) -> Distribution:
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        d = Distribution.constant(_number(value, where, ctx, meta))
+        return d
+    if not isinstance(value, dict):
+        ctx.fail(f"{where} must be a number or a table such as {{law = \"linear\", root = 1.0, "
+                 f"tip = 0.5}}; got {value!r}")
+    law = value.get("law")
+    if law not in DISTRIBUTION_LAWS:
+        ctx.fail(f"{where}.law must be one of {', '.join(map(repr, DISTRIBUTION_LAWS))}; got {law!r}")
+    accepted = {"constant": ("value",), "linear": ("root", "tip"), "elliptic": ("root",),
+                "table": ("eta", "values")}[law]
+    _reject_unknown(value, ("law",) + accepted, where, ctx)
+    for k in accepted:
+        if k not in value:
+            ctx.fail(f"{where}: law \"{law}\" needs key '{k}' (keys: {', '.join(accepted)})")
+    if law == "table":
+        eta = _number_list(value["eta"], f"{where}.eta", ctx, {})
+        vals = _number_list(value["values"], f"{where}.values", ctx, {})
+        for i, v in enumerate(vals):
+            _check_range(v, f"{where}.values[{i}]", ctx, meta)
+        return Distribution("table", eta=tuple(eta), values=tuple(vals))
+    nums = {k: _number(value[k], f"{where}.{k}", ctx, meta) for k in accepted}
+    return Distribution(law, **nums)
+
+
+def _number_list(value, where, ctx, meta, length=None):
+    if not isinstance(value, list) or (length is not None and len(value) != length):
+        what = f"a list of {length} numbers" if length else "a list of numbers"
+        ctx.fail(f"{where} must be {what}{_unit_text(meta)}; got {value!r}")
+    return [_number(v, f"{where}[{i}]", ctx, {}) for i, v in enumerate(value)]
+
+
+def _reject_unknown(table: dict, accepted, where: str, ctx) -> None:
+    for k in table:
+        if k not in accepted:
+            close = difflib.get_close_matches(k, accepted, n=1, cutoff=0.6)
+            hint = f"did you mean '{close[0]}'? " if close else ""
+            prefix = f"{where}." if where else ""
+            ctx.fail(f"unknown key '{prefix}{k}'; {hint}(accepted: {', '.join(accepted)})")
+
+
+def _convert(f, value, where, ctx):
+    meta = f.metadata
+    kind = meta["kind"]
+    if kind in ("float", "int"):
+        return _number(value, where, ctx, meta, integer=kind == "int")
+    if kind == "bool":
+        if not isinstance(value, bool):
+            ctx.fail(f"{where} must be true or false; got {value!r}")
+        return value
+    if kind == "str":
+        if not isinstance(value, str):
+            ctx.fail(f"{where} must be a string; got {value!r}")
+        if meta["choices"] is not None and value not in meta["choices"]:
+            close = difflib.get_close_matches(value, meta["choices"], n=1, cutoff=0.6)
+            hint = f" (did you mean {close[0]!r}?)" if close else ""
+            ctx.fail(f"{where} must be one of {', '.join(map(repr, meta['choices']))}; "
+                     f"got {value!r}{hint}")
+        return value
+    if kind == "vec3":
+        return tuple(_number_list(value, where, ctx, meta, length=3))
+    if kind == "distribution":
+        return _distribution(value, where, ctx, meta)
+    if kind == "path":
+        if not isinstance(value, str) or not value:
+            ctx.fail(f"{where} must be a file path string; got {value!r}")
+        p = Path(value)
+        return str(p if p.is_absolute() else (ctx.base_dir / p).resolve())
+    if kind == "table":
+        default = f.default
+        return _parse_section(type(default), value, where, ctx)
+    raise AssertionError(kind)
+
+
+def _public_fields(cls):
+    return [f for f in fields(cls) if not f.metadata.get("internal") and f.metadata.get("kind") != "bodies"]
+
+
+def _parse_section(cls, table, where: str, ctx, extra=None):
+    if not isinstance(table, dict):
+        ctx.fail(f"[{where}] must be a table of keys; got {table!r}")
+    fl = _public_fields(cls)
+    _reject_unknown(table, [f.name for f in fl], where, ctx)
+    kwargs = dict(extra or {})
+    for f in fl:
+        if f.name in table:
+            kwargs[f.name] = _convert(f, table[f.name], f"{where}.{f.name}" if where else f.name, ctx)
+        elif f.default is dataclasses.MISSING:
+            ctx.fail(f"{where}: missing key '{f.name}'{_unit_text(f.metadata)} ({f.metadata['doc']})")
+    obj = cls(**kwargs)
+    hook = getattr(obj, "after_parse", None)
+    return hook(table, where, ctx) if hook else obj
+
+
+def _parse_bodies(table, ctx) -> tuple:
+    if not isinstance(table, dict) or not table:
+        ctx.fail("the case needs at least one body: a table [bodies.NAME] with type = "
+                 f"{' or '.join(map(repr, BODY_TYPES))}")
+    out = []
+    for name, body in table.items():
+        where = f"bodies.{name}"
+        if not _NAME.match(name):
+            ctx.fail(f"body name {name!r} may hold only letters, digits, '-' and '_'")
+        if not isinstance(body, dict):
+            ctx.fail(f"[{where}] must be a table; got {body!r}")
+        btype = body.get("type")
+        if btype not in BODY_TYPES:
+            close = difflib.get_close_matches(str(btype), BODY_TYPES, n=1, cutoff=0.6)
+            hint = f" (did you mean {close[0]!r}?)" if close else ""
+            ctx.fail(f"{where}.type must be one of {', '.join(map(repr, BODY_TYPES))}; "
+                     f"got {btype!r}{hint}")
+        out.append(_parse_section(BODY_TYPES[btype], body, where, ctx, extra={"name": name}))
+    return tuple(out)
+
+
+def parse_case(data: dict, *, source: str = "<dict>", base_dir=".") -> Case:
+    """Check a case given as nested data (as :mod:`tomllib` returns it) and resolve defaults.
+
+    Parameters
+    ----------
+    data : dict
+        The case's tables and keys.
+    source : str
+        Name used in error messages (the file path).
+    base_dir : str or Path
+        Directory that relative file paths (polar tables) are taken from.
+
+    Returns
+    -------
+    Case
+        With every default filled in.
+
+    Raises
+    ------
+    wakes.errors.CaseError
+        Naming the source, the key, the bad value and what is accepted.
+    """
+    ctx = _Context(source, Path(base_dir))
+    if not isinstance(data, dict):
+        ctx.fail(f"a case must be a table of keys; got {type(data).__name__}")
+    data = dict(data)
+    bodies_raw = data.pop("bodies", None)
+    case = _parse_section(Case, data, "", ctx)
+    if "title" not in data and source != "<dict>":
+        case = dataclasses.replace(case, title=Path(source).stem)
+    fs = case.freestream
+    raw_fs = data.get("freestream", {})
+    if fs.velocity is not None:
+        both = [k for k in ("speed", "angle_of_attack", "sideslip") if k in raw_fs]
+        if both:
+            ctx.fail(f"freestream: give either velocity or {both[0]} (speed and angles), not both")
+    bodies = _parse_bodies(bodies_raw, ctx)
+    case = dataclasses.replace(case, bodies=bodies, source=source)
+    for b in bodies:
+        b.check(case, f"bodies.{b.name}", ctx)
+    return _resolve(case)
+
+
+def _resolve(case: Case) -> Case:
+    """Fill the defaults that depend on the rest of the case."""
+    bodies = tuple(b.resolve(case) for b in case.bodies)
+    case = dataclasses.replace(case, bodies=bodies)
+    wake = case.wake
+    if wake.core_radius is None:
+        chord = min(b.mean_chord() for b in bodies)
+        wake = dataclasses.replace(wake, core_radius=DEFAULT_CORE_CHORDS * chord)
+    time = case.time
+    dt = time.dt if time.dt is not None else min(b.suggest_dt(case) for b in bodies)
+    steps = time.steps if time.steps is not None else max(b.suggest_steps(case, dt) for b in bodies)
+    return dataclasses.replace(case, wake=wake, time=TimeSpec(dt=dt, steps=steps))
+
+
+def _merge(base: dict, overrides: dict) -> dict:
+    out = dict(base)
+    for k, v in overrides.items():
+        out[k] = _merge(out[k], v) if isinstance(v, dict) and isinstance(out.get(k), dict) else v
+    return out
+
+
+def read_toml(path) -> dict:
+    """Read a TOML file; a syntax error names the file, line and column."""
+    p = Path(path)
+    if not p.is_file():
+        raise CaseError(f"case file '{p}' not found")
+    try:
+        with open(p, "rb") as fh:
+            return tomllib.load(fh)
+    except tomllib.TOMLDecodeError as exc:
+        msg = str(exc)
+        m = re.search(r"\(at line (\d+), column (\d+)\)", msg)
+        if m:
+            text = msg[:m.start()].strip()
+            raise CaseError(f"{p}: invalid TOML at line {m.group(1)}, column {m.group(2)}: {text}") from None
+        raise CaseError(f"{p}: invalid TOML: {msg}") from None
+    except UnicodeDecodeError as exc:
+        raise CaseError(f"{p}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
+
+
+def load_case(path, overrides: dict | None = None) -> Case:
+    """Read, check and resolve a case file.
+
+    Parameters
+    ----------
+    path : str or Path
+        The TOML case file.
+    overrides : dict, optional
+        Nested keys merged over the file's before checking, e.g.
+        ``{"time": {"dt": 0.01}, "bodies": {"wing": {"spanwise_panels": 48}}}``.
+
+    Returns
+    -------
+    Case
+
+    Raises
+    ------
+    wakes.errors.CaseError
+        Missing file, TOML syntax error (with line and column), unknown key,
+        wrong type or out-of-range value; the message names file and key.
+
+    Examples
+    --------
+    >>> import wakes.case
+    >>> case = wakes.case.load_case("cases/validation/elliptic-wing.toml")  # doctest: +SKIP
+    >>> case.body("wing").span                                               # doctest: +SKIP
+    8.0
+    """
+    data = read_toml(path)
+    if overrides:
+        data = _merge(data, overrides)
+    return parse_case(data, source=str(path), base_dir=Path(path).resolve().parent)
+
+
+# ----------------------------------------------------------------- writing
+
+def _plain_value(v):
+    if isinstance(v, Distribution):
+        if v.law == "constant":
+            return v.value
+        if v.law == "table":
+            return {"law": "table", "eta": list(v.eta), "values": list(v.values)}
+        keys = {"linear": ("root", "tip"), "elliptic": ("root",)}[v.law]
+        return {"law": v.law, **{k: getattr(v, k) for k in keys}}
+    if dataclasses.is_dataclass(v):
+        return _to_plain(v)
+    if isinstance(v, tuple):
+        return list(v)
+    return v
+
+
+def _to_plain(obj) -> dict:
+    out = {}
+    omit = obj.omitted() if hasattr(obj, "omitted") else set()
+    for f in fields(obj):
+        if f.metadata.get("internal") or f.name in omit:
+            continue
+        v = getattr(obj, f.name)
+        if f.metadata.get("kind") == "bodies":
+            out["bodies"] = {b.name: _to_plain(b) for b in v}
+        elif v is not None:
+            out[f.name] = _plain_value(v)
+    return out
+
+
+def _toml_scalar(v) -> str:
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, int):
+        return str(v)
+    if isinstance(v, float):
+        if math.isinf(v):
+            return "inf" if v > 0 else "-inf"
+        return repr(v)
+    if isinstance(v, str):
+        return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
+    if isinstance(v, list):
+        return "[" + ", ".join(_toml_scalar(x) for x in v) + "]"
+    if isinstance(v, dict):
+        return "{" + ", ".join(f"{k} = {_toml_scalar(x)}" for k, x in v.items()) + "}"
+    raise TypeError(type(v))
+
+
+def _is_section(v) -> bool:
+    return isinstance(v, dict) and not ("law" in v)
+
+
+def _dump_toml(data: dict, header: str = "") -> str:
+    lines = [f"# {h}" for h in header.splitlines()] if header else []
+
+    def emit(table: dict, name: str):
+        scalars = [(k, v) for k, v in table.items() if not _is_section(v)]
+        subs = [(k, v) for k, v in table.items() if _is_section(v)]
+        if name and (scalars or not subs):
+            lines.append("")
+            lines.append(f"[{name}]")
+        for k, v in scalars:
+            lines.append(f"{k} = {_toml_scalar(v)}")
+        for k, v in subs:
+            emit(v, f"{name}.{k}" if name else k)
+
+    emit(data, "")
+    return "\n".join(lines).lstrip("\n") + "\n"
+
+
+# ----------------------------------------------------------------- reference
+
+def case_reference() -> str:
+    """Markdown reference of every case key, generated from the schema."""
+    sections = [("", Case), ("fluid", FluidSpec), ("freestream", FreestreamSpec), ("time", TimeSpec),
+                ("solver", SolverSpec), ("wake", WakeSpec), ("output", OutputSpec)]
+    sections += [(f"bodies.NAME] (type = \"{t}\")", cls) for t, cls in BODY_TYPES.items()]
+    sections += [("bodies.NAME.airfoil", AirfoilSpec)]
+    out = []
+    for name, cls in sections:
+        out.append(f"\n### [{name}" + ("" if name.endswith(")") else "]") if name else "\n### top level")
+        out.append("")
+        out.append("| key | unit | default | accepted | meaning |")
+        out.append("|---|---|---|---|---|")
+        for f in _public_fields(cls):
+            m = f.metadata
+            if m.get("kind") == "table":
+                continue
+            if f.default is dataclasses.MISSING:
+                default = "required"
+            elif m.get("resolved"):
+                default = "worked out"
+            else:
+                default = f"`{_toml_scalar(_plain_value(f.default))}`" if f.default is not None else "none"
+            out.append(f"| `{f.name}` | {m.get('unit', '')} | {default} | {_accepted(m)} | {m.get('doc', '')} |")
+    return "\n".join(out).lstrip("\n") + "\n"
+
+
+def _accepted(meta) -> str:
+    if meta.get("choices"):
+        return ", ".join(f"`{c}`" for c in meta["choices"])
+    parts = []
+    if meta.get("above") is not None:
+        parts.append(f"> {meta['above']:g}")
+    if meta.get("minimum") is not None:
+        parts.append(f">= {meta['minimum']:g}")
+    if meta.get("maximum") is not None:
+        parts.append(f"<= {meta['maximum']:g}")
+    kind = meta.get("kind")
+    extra = {"vec3": "3 numbers", "distribution": "number or law table", "path": "file path",
+             "bool": "true/false", "int": "integer"}.get(kind)
+    if extra:
+        parts.insert(0, extra)
+    return ", ".join(parts)

@@ -1,0 +1,330 @@
+"""The time loop: bodies shed wakes, circulation is solved, loads are recorded.
+
+One step at time t (see :func:`run_case`):
+
+1. the bodies place their lifting surfaces at t;
+2. the wakes induce velocity at the surfaces' evaluation points;
+3. the bound circulation is solved (:mod:`wakes.aero.lifting_line`);
+4. loads and coefficients of every body make a row of the loads table;
+5. the wake nodes and particles move (free: local velocity; frozen:
+   freestream), particles stretch, and each surface sheds a new row at its
+   trailing edge carrying the circulation it had at t;
+6. old wake is converted to particles or removed.
+
+Every velocity comes from :func:`wakes.induce`.
+"""
+
+from __future__ import annotations
+
+import time as _time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from .aero.bodies import BODY_MODELS
+from .aero.lifting_line import LinearCache, SolverSettings, solve_circulation
+from .aero.loads import strip_loads, trefftz_induced_drag
+from .aero.vortex_lattice import influence_matrix, surface_filaments
+from .aero.wake import WakeSettings, WakeSheet
+from .case import Case
+from .elements import Particles
+from .errors import NumericalError
+from .induction.api import induce
+from .io.tables import write_json, write_table
+
+
+def _version() -> str:
+    from . import __version__
+    return __version__
+
+
+@dataclass
+class Run:
+    """The result of a run.
+
+    Attributes
+    ----------
+    case : Case
+        The resolved case that was run.
+    loads : pandas.DataFrame
+        One row per step and body: ``step``, ``time_s``, ``body``, forces
+        [N] and coefficients, solver ``iterations`` and ``residual``, wake
+        element counts.
+    sections : pandas.DataFrame
+        Spanwise distribution of every body at the last step.
+    summary : dict
+        ``{"bodies": {name: {...}}, "case": {...}, "version": ..., "run": {...}}``.
+    wake : dict
+        Final wake of every surface: ``{surface: list of Filaments/Particles}``.
+    wall_time_s : float
+        Run time [s].
+    """
+
+    case: Case
+    loads: pd.DataFrame
+    sections: pd.DataFrame
+    summary: dict
+    wake: dict = field(repr=False)
+    wall_time_s: float = 0.0
+
+    def write(self, out_dir) -> list[Path]:
+        """Write the run folder: loads.csv, sections.csv, summary.json, case.toml and the wake.
+
+        Returns the paths written. The folder is created if needed.
+        """
+        out = Path(out_dir)
+        out.mkdir(parents=True, exist_ok=True)
+        paths = [out / "loads.csv", out / "sections.csv", out / "summary.json", out / "case.toml"]
+        write_table(self.loads, paths[0])
+        write_table(self.sections, paths[1])
+        write_json(self.summary, paths[2])
+        header = (f"Resolved case written by wakes {_version()}; every default filled in.\n"
+                  f"Source: {self.case.source}")
+        paths[3].write_text(self.case.to_toml(header), encoding="utf-8")
+        if self.case.output.wake:
+            seg, par = wake_tables(self.wake)
+            for name, table in (("wake_segments.csv", seg), ("wake_particles.csv", par)):
+                if len(table):
+                    write_table(table, out / name)
+                    paths.append(out / name)
+        return paths
+
+    def short_report(self) -> str:
+        """A few lines summarising each body, for the console."""
+        lines = [f"{self.case.title}: {self.case.time.steps} steps of {self.case.time.dt:.4g} s "
+                 f"in {self.wall_time_s:.1f} s"]
+        for name, b in self.summary["bodies"].items():
+            lines.append(f"  {name}: CL = {b['CL']:.4f}  CDi = {b['CDi']:.5f}  "
+                         f"e = {b['span_efficiency']:.4f}  lift = {b['lift_N']:.4g} N  "
+                         f"induced drag = {b['induced_drag_N']:.4g} N  "
+                         f"(Trefftz {100 * b['trefftz_difference']:+.2f} %)  "
+                         f"profile drag = {b['profile_drag_N']:.4g} N")
+        return "\n".join(lines)
+
+
+def wake_tables(wake: dict) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """The final wake as two tables: filament segments and particles."""
+    segs, parts = [], []
+    for name, sources in wake.items():
+        for s in sources:
+            if isinstance(s, Particles):
+                p, a = s.positions, s.strengths
+                parts.append(pd.DataFrame({"surface": name, "x_m": p[:, 0], "y_m": p[:, 1],
+                                           "z_m": p[:, 2], "alpha_x_m3_s": a[:, 0],
+                                           "alpha_y_m3_s": a[:, 1], "alpha_z_m3_s": a[:, 2],
+                                           "radius_m": s.radii}))
+            else:
+                a, b = s.endpoints()
+                segs.append(pd.DataFrame({"surface": name, "x0_m": a[:, 0], "y0_m": a[:, 1],
+                                          "z0_m": a[:, 2], "x1_m": b[:, 0], "y1_m": b[:, 1],
+                                          "z1_m": b[:, 2], "gamma_m2_s": s.circulation,
+                                          "core_radius_m": s.core_radius}))
+    empty = pd.DataFrame()
+    return (pd.concat(segs, ignore_index=True) if segs else empty,
+            pd.concat(parts, ignore_index=True) if parts else empty)
+
+
+def wake_settings(case: Case) -> WakeSettings:
+    """The wake options of a case."""
+    w = case.wake
+    return WakeSettings(model=w.model, motion=w.motion, core=w.core, core_radius=w.core_radius,
+                        core_growth=w.core_growth, viscosity=case.fluid.kinematic_viscosity,
+                        particle_kernel=w.particle_kernel, particle_overlap=w.particle_overlap,
+                        near_wake_steps=w.near_wake_steps, max_age=w.max_age)
+
+
+class _InfluenceCache:
+    """Influence matrices, rebuilt only when the surfaces move."""
+
+    def __init__(self, method: str):
+        self.method = method
+        self._key = None
+        self._value = None
+
+    def get(self, surfaces, eval_points, load_points):
+        key = [s.corners for s in surfaces]
+        if self._key is not None and len(key) == len(self._key) and all(
+                a.shape == b.shape and np.array_equal(a, b) for a, b in zip(key, self._key)):
+            return self._value
+        aic = influence_matrix(surfaces, eval_points, method=self.method)
+        aic_load = influence_matrix(surfaces, load_points, method=self.method) if len(load_points) else None
+        self._key = [k.copy() for k in key]
+        self._value = (aic, aic_load)
+        return self._value
+
+
+def run_case(case: Case, *, progress=None) -> Run:
+    """Run a resolved case.
+
+    Parameters
+    ----------
+    case : Case
+        From :func:`wakes.case.load_case`.
+    progress : callable, optional
+        Called as ``progress(step, steps)`` after every step.
+
+    Returns
+    -------
+    Run
+        Loads per step, final sections, summary and final wake. Nothing is
+        written; call :meth:`Run.write`.
+
+    Raises
+    ------
+    wakes.errors.NumericalError
+        If a circulation solve does not converge or the wake blows up.
+    wakes.aero.polars.PolarRangeError
+        If a section leaves its polar table.
+
+    Examples
+    --------
+    >>> from wakes.case import load_case
+    >>> from wakes.simulate import run_case
+    >>> run = run_case(load_case("cases/validation/elliptic-wing.toml"))  # doctest: +SKIP
+    >>> run.summary["bodies"]["wing"]["CL"]                                # doctest: +SKIP
+    """
+    started = _time.perf_counter()
+    bodies = [BODY_MODELS[spec.type](spec, case) for spec in case.bodies]
+    settings = wake_settings(case)
+    solver = SolverSettings(case.solver.tolerance, case.solver.max_iterations, case.solver.relaxation)
+    v_inf = case.freestream.vector()
+    rho, dt, steps, method = case.fluid.density, case.time.dt, case.time.steps, case.wake.induction
+    cache = _InfluenceCache(method)
+    linear = LinearCache()
+
+    t = 0.0
+    layout = [(b, b.surfaces(t)) for b in bodies]
+    wakes = [WakeSheet(s.te_nodes, t, settings) for _, ss in layout for s in ss]
+    gamma = np.zeros(sum(s.n_unknowns for _, ss in layout for s in ss))
+    gamma_prev = None
+    rows = []
+    strips = []
+    for step in range(steps):
+        t = step * dt
+        layout = [(b, b.surfaces(t)) for b in bodies]
+        surfaces = [s for _, ss in layout for s in ss]
+        eval_pts = np.vstack([s.eval_points() for s in surfaces])
+        vlm = [s for s in surfaces if not s.lifting_line]
+        load_pts = (np.vstack([s.bound_midpoints().reshape(-1, 3) for s in vlm]) if vlm
+                    else np.zeros((0, 3)))
+        wake_src = [e for w in wakes for e in w.sources(t)]
+        v_wake = induce(wake_src, np.vstack([eval_pts, load_pts]), method=method)
+        motion_eval = np.vstack([s.velocity_of(s.eval_points()) for s in surfaces])
+        onset = v_inf - motion_eval + v_wake[:eval_pts.shape[0]]
+        aic, aic_load = cache.get(surfaces, eval_pts, load_pts)
+        sol = solve_circulation(surfaces, aic, onset, gamma, solver, step=step, time=t,
+                                linear_cache=linear)
+        gamma = np.concatenate([g.ravel() for g in sol.gamma])
+
+        strips = _strip_loads(surfaces, sol, gamma, aic_load, v_wake[eval_pts.shape[0]:], v_inf,
+                              gamma_prev, dt, rho)
+        drags = _trefftz(layout, strips, v_inf, rho)
+        k = 0
+        n_seg = sum(e.segment_count for e in wake_src if not isinstance(e, Particles))
+        n_par = sum(e.count for e in wake_src if isinstance(e, Particles))
+        for body, ss in layout:
+            mine = strips[k:k + len(ss)]
+            row = {"step": step, "time_s": t, "body": body.name}
+            row.update(body.loads_row(mine, sum(drags[k:k + len(ss)])))
+            row.update({"iterations": sol.iterations, "residual": sol.residual,
+                        "wake_segments": n_seg, "wake_particles": n_par})
+            rows.append(row)
+            k += len(ss)
+        if step < steps - 1:
+            _advance_wakes(wakes, surfaces, sol.gamma, settings, v_inf, dt, t, method)
+            new_surfaces = [s for b in bodies for s in b.surfaces(t + dt)]
+            for w, s, g in zip(wakes, new_surfaces, sol.gamma):
+                w.shed(s.te_nodes, g[-1], t + dt)
+                w.age_out(t + dt)
+        gamma_prev = gamma
+        if progress is not None:
+            progress(step + 1, steps)
+
+    loads = pd.DataFrame(rows)
+    k = 0
+    tables = []
+    for body, ss in layout:
+        tables.append(body.section_table(strips[k:k + len(ss)]))
+        k += len(ss)
+    sections = pd.concat(tables, ignore_index=True)
+    summary = {"bodies": {b.name: b.summary(loads) for b in bodies},
+               "case": case.to_dict(), "version": _version(),
+               "run": {"steps": steps, "dt_s": dt, "final_time_s": (steps - 1) * dt,
+                       "wall_time_s": _time.perf_counter() - started}}
+    final_wake = {s.name: w.sources(t) for s, w in zip(surfaces, wakes)}
+    wall = _time.perf_counter() - started
+    summary["run"]["wall_time_s"] = wall
+    return Run(case, loads, sections, summary, final_wake, wall)
+
+
+def _strip_loads(surfaces, sol, gamma, aic_load, v_wake_load, v_inf, gamma_prev, dt, rho):
+    """Strip loads of every surface from a converged solution."""
+    out = []
+    k_eval = 0
+    k_load = 0
+    k_unk = 0
+    for si, s in enumerate(surfaces):
+        m = s.n_unknowns
+        g_prev = None if gamma_prev is None else gamma_prev[k_unk:k_unk + m]
+        onset_sec = v_inf - s.velocity_of(s.section_points)
+        if s.lifting_line:
+            sl = slice(k_eval, k_eval + m)
+            v_load = sol.velocity[sl].reshape(1, s.n_span, 3)
+            out.append(strip_loads(s, sol.gamma[si], g_prev, dt, v_load, onset_sec, rho,
+                                   ll_alpha=sol.alpha[sl], ll_cl=sol.cl[sl], ll_cd=sol.cd[sl]))
+        else:
+            pts = s.bound_midpoints().reshape(-1, 3)
+            v = (v_inf - s.velocity_of(pts) + v_wake_load[k_load:k_load + m]
+                 + np.einsum("ikn,n->ik", aic_load[k_load:k_load + m], gamma))
+            out.append(strip_loads(s, sol.gamma[si], g_prev, dt, v.reshape(s.n_chord, s.n_span, 3),
+                                   onset_sec, rho))
+            k_load += m
+        k_eval += m
+        k_unk += m
+    return out
+
+
+def _trefftz(layout, strips, v_inf, rho):
+    """Trefftz-plane induced drag of each surface (zero for bodies that do not take part)."""
+    flat = [(body, s) for body, ss in layout for s in ss]
+    take = [i for i, (body, _) in enumerate(flat) if body.trefftz]
+    drags = [0.0] * len(flat)
+    if take:
+        groups = [(flat[i][1].te_nodes, strips[i].gamma, flat[i][1].section_fraction) for i in take]
+        for i, d in zip(take, trefftz_induced_drag(groups, v_inf, rho)):
+            drags[i] = d
+    return drags
+
+
+def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method):
+    """Move every wake node and particle one step (free or frozen), stretching particles."""
+    nodes = np.vstack([w.rows.reshape(-1, 3) for w in wakes])
+    parts = [w.positions for w in wakes]
+    n_par = sum(p.shape[0] for p in parts)
+    u_nodes = np.broadcast_to(v_inf, nodes.shape).copy()
+    u_par = np.broadcast_to(v_inf, (n_par, 3)).copy()
+    stretch = None
+    if settings.motion == "free":
+        src = [surface_filaments(s, g, core=settings.core, core_radius=settings.core_radius)
+               for s, g in zip(surfaces, gammas)]
+        src += [e for w in wakes for e in w.sources(t)]
+        u_nodes += induce(src, nodes, method=method)
+        if n_par:
+            vel, grad = induce(src, np.vstack(parts), gradient=True, method=method)
+            u_par += vel
+            alpha = np.vstack([w.strengths for w in wakes])
+            stretch = np.einsum("ijk,ik->ij", grad, alpha)  # (alpha . grad) u, grad[i,j,k] = du_j/dx_k
+    if not (np.isfinite(u_nodes).all() and np.isfinite(u_par).all()):
+        raise NumericalError(f"the wake velocity is not finite at t = {t:.6g} s; likely cause: a time "
+                             "step too large for the wake spacing or a core radius too small "
+                             "([time] dt, [wake] core_radius)")
+    k = 0
+    p = 0
+    for w in wakes:
+        m = w.node_count
+        q = w.particle_count
+        w.move(u_nodes[k:k + m], dt, u_par[p:p + q], None if stretch is None else stretch[p:p + q])
+        k += m
+        p += q
