@@ -249,8 +249,6 @@ class ParticleDynamics:
         self.stretching = STRETCHING_SCHEMES[stretching]
         self.viscosity = viscosity
         self.viscous = VISCOUS_SCHEMES[viscous_scheme] if viscosity > 0.0 else None
-        self.method = method
-        self.tolerance = tolerance
         self.volumes = volumes
         self._induce_options = {"method": method}
         if _INDUCE_TAKES_TOLERANCE and method != "direct":
