@@ -143,9 +143,14 @@ class WakeSpec:
                                   above=0.0)
     near_wake_steps: int = key(8, "wake rows kept as filaments before conversion (particles)",
                                kind="int", minimum=1)
+    cores_at_surfaces: bool = key(False, "surfaces see wake filament cores (false: singular lines)",
+                                  kind="bool")
     max_age: float = key(float("inf"), "wake older than this is removed (inf: kept)", "s", above=0.0,
                          allow_inf=True)
-    induction: str = key("direct", "summation method of wakes.induce", kind="str", choices=METHODS)
+    induction: str = key("auto", "summation method of wakes.induce for the wake", kind="str",
+                         choices=METHODS)
+    induction_tolerance: float = key(1e-6, "relative velocity error aimed at by the treecode",
+                                     above=0.0, maximum=0.1)
 
 
 @dataclass(frozen=True, kw_only=True)

@@ -132,14 +132,14 @@ def wake_settings(case: Case) -> WakeSettings:
     return WakeSettings(model=w.model, motion=w.motion, core=w.core, core_radius=w.core_radius,
                         core_growth=w.core_growth, viscosity=case.fluid.kinematic_viscosity,
                         particle_kernel=w.particle_kernel, particle_overlap=w.particle_overlap,
-                        near_wake_steps=w.near_wake_steps, max_age=w.max_age)
+                        near_wake_steps=w.near_wake_steps, max_age=w.max_age,
+                        cores_at_surfaces=w.cores_at_surfaces)
 
 
 class _InfluenceCache:
-    """Influence matrices, rebuilt only when the surfaces move."""
+    """Influence matrices (exact, direct sums), rebuilt only when the surfaces move."""
 
-    def __init__(self, method: str):
-        self.method = method
+    def __init__(self):
         self._key = None
         self._value = None
 
@@ -148,8 +148,8 @@ class _InfluenceCache:
         if self._key is not None and len(key) == len(self._key) and all(
                 a.shape == b.shape and np.array_equal(a, b) for a, b in zip(key, self._key)):
             return self._value
-        aic = influence_matrix(surfaces, eval_points, method=self.method)
-        aic_load = influence_matrix(surfaces, load_points, method=self.method) if len(load_points) else None
+        aic = influence_matrix(surfaces, eval_points)
+        aic_load = influence_matrix(surfaces, load_points) if len(load_points) else None
         self._key = [k.copy() for k in key]
         self._value = (aic, aic_load)
         return self._value
@@ -190,8 +190,9 @@ def run_case(case: Case, *, progress=None) -> Run:
     settings = wake_settings(case)
     solver = SolverSettings(case.solver.tolerance, case.solver.max_iterations, case.solver.relaxation)
     v_inf = case.freestream.vector()
-    rho, dt, steps, method = case.fluid.density, case.time.dt, case.time.steps, case.wake.induction
-    cache = _InfluenceCache(method)
+    rho, dt, steps = case.fluid.density, case.time.dt, case.time.steps
+    method = {"method": case.wake.induction, "tolerance": case.wake.induction_tolerance}
+    cache = _InfluenceCache()
     linear = LinearCache()
 
     t = 0.0
@@ -209,8 +210,8 @@ def run_case(case: Case, *, progress=None) -> Run:
         vlm = [s for s in surfaces if not s.lifting_line]
         load_pts = (np.vstack([s.bound_midpoints().reshape(-1, 3) for s in vlm]) if vlm
                     else np.zeros((0, 3)))
-        wake_src = [e for w in wakes for e in w.sources(t)]
-        v_wake = induce(wake_src, np.vstack([eval_pts, load_pts]), method=method)
+        wake_src = [e for w in wakes for e in w.sources(t, at_surfaces=True)]
+        v_wake = induce(wake_src, np.vstack([eval_pts, load_pts]), **method)
         motion_eval = np.vstack([s.velocity_of(s.eval_points()) for s in surfaces])
         onset = v_inf - motion_eval + v_wake[:eval_pts.shape[0]]
         aic, aic_load = cache.get(surfaces, eval_pts, load_pts)
@@ -299,7 +300,11 @@ def _trefftz(layout, strips, v_inf, rho):
 
 
 def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method):
-    """Move every wake node and particle one step (free or frozen), stretching particles."""
+    """Move every wake node and particle one step (free or frozen), stretching particles.
+
+    ``method`` holds the keyword arguments ``method`` and ``tolerance`` of
+    :func:`wakes.induce`.
+    """
     nodes = np.vstack([w.rows.reshape(-1, 3) for w in wakes])
     parts = [w.positions for w in wakes]
     n_par = sum(p.shape[0] for p in parts)
@@ -307,12 +312,13 @@ def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method):
     u_par = np.broadcast_to(v_inf, (n_par, 3)).copy()
     stretch = None
     if settings.motion == "free":
-        src = [surface_filaments(s, g, core=settings.core, core_radius=settings.core_radius)
+        src = [surface_filaments(s, g, core=settings.core, core_radius=settings.core_radius,
+                                 te_core_radius=settings.attached_core_radius)
                for s, g in zip(surfaces, gammas)]
         src += [e for w in wakes for e in w.sources(t)]
-        u_nodes += induce(src, nodes, method=method)
+        u_nodes += induce(src, nodes, **method)
         if n_par:
-            vel, grad = induce(src, np.vstack(parts), gradient=True, method=method)
+            vel, grad = induce(src, np.vstack(parts), gradient=True, **method)
             u_par += vel
             alpha = np.vstack([w.strengths for w in wakes])
             stretch = np.einsum("ijk,ik->ij", grad, alpha)  # (alpha . grad) u, grad[i,j,k] = du_j/dx_k

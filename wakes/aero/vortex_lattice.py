@@ -105,10 +105,20 @@ def lattice_filaments(rows, gamma, *, core: str, core_radius, stream_core=None, 
     return Filaments(nodes, seg, circ, rcs, core=core)
 
 
-def surface_filaments(surface, gamma, *, core: str, core_radius: float) -> Filaments:
-    """The closed vortex rings of one lifting surface with circulations ``gamma`` (n_chord, n_span)."""
+def surface_filaments(surface, gamma, *, core: str, core_radius: float,
+                      te_core_radius: float | None = None) -> Filaments:
+    """The closed vortex rings of one lifting surface with circulations ``gamma`` (n_chord, n_span).
+
+    ``te_core_radius`` (default ``core_radius``) is the core of the
+    shedding-row segments, which coincide with the wake's attached row.
+    """
+    rows = surface.n_chord + 1
+    span_core = np.full(rows, float(core_radius))
+    if te_core_radius is not None:
+        span_core[-1] = te_core_radius
     return lattice_filaments(surface.corners, np.asarray(gamma, dtype=np.float64).reshape(
-        surface.n_chord, surface.n_span), core=core, core_radius=core_radius)
+        surface.n_chord, surface.n_span), core=core, core_radius=span_core,
+        stream_core=np.full(rows - 1, float(core_radius)))
 
 
 def influence_matrix(surfaces, targets: np.ndarray, *, method: str = "direct") -> np.ndarray:

@@ -19,9 +19,10 @@ Q. 16; Lamb--Oseen constant).
 
 The spanwise segments of the attached row (at the shedding row) get a
 vanishing core: they lie on the surface's trailing-edge closure, which the
-circulation solve treats as a singular line, and the two must cancel
-exactly when the circulation is steady. The vorticity they carry takes the
-ordinary core once the row is released.
+circulation solve treats as a singular line and the wake motion gives the
+same vanishing core, and the two must cancel exactly when the circulation
+is steady. The vorticity they carry takes the ordinary core once the row
+is released.
 """
 
 from __future__ import annotations
@@ -66,6 +67,13 @@ class WakeSettings:
         Rings kept as filaments before conversion (particle model).
     max_age : float
         Wake older than this [s] is removed (inf: kept).
+    cores_at_surfaces : bool
+        False: the lifting surfaces see the wake filaments as singular
+        lines, as Prandtl's and Weissinger's models assume (needed when
+        spanwise panels are finer than the core, e.g. at an elliptic tip);
+        the cores then only regularize the wake's own motion. True: the
+        surfaces see the cores too (a blade passing a tip vortex meets its
+        finite core).
     """
 
     model: str = "filaments"
@@ -78,6 +86,12 @@ class WakeSettings:
     particle_overlap: float = 1.3
     near_wake_steps: int = 8
     max_age: float = float("inf")
+    cores_at_surfaces: bool = False
+
+    @property
+    def attached_core_radius(self) -> float:
+        """Core radius [m] of the attached row and of the surface's trailing-edge closure."""
+        return ATTACHED_CORE_FRACTION * self.core_radius
 
     def core_at_age(self, age: np.ndarray) -> np.ndarray:
         """Core radius [m] of vorticity of the given ``age`` [s] (Squire's growth law)."""
@@ -121,11 +135,14 @@ class WakeSheet:
     def particle_count(self) -> int:
         return self.positions.shape[0]
 
-    def filaments(self, time: float) -> Filaments:
-        """The lattice as filaments at ``time`` [s], cores grown to each row's age."""
+    def filaments(self, time: float, *, singular: bool = False) -> Filaments:
+        """The lattice as filaments at ``time`` [s], cores grown to each row's age (or singular)."""
+        if singular:
+            return lattice_filaments(self.rows, self.gamma, core="singular", core_radius=1.0,
+                                     after=self.tail)
         rc = self.settings.core_at_age(time - self.row_time)
         stream = 0.5 * (rc[:-1] + rc[1:])
-        rc[0] = ATTACHED_CORE_FRACTION * self.settings.core_radius
+        rc[0] = self.settings.attached_core_radius
         return lattice_filaments(self.rows, self.gamma, core=self.settings.core, core_radius=rc,
                                  stream_core=stream, after=self.tail)
 
@@ -133,9 +150,13 @@ class WakeSheet:
         """The converted far wake as particles."""
         return Particles(self.positions, self.strengths, self.radii, kernel=self.settings.particle_kernel)
 
-    def sources(self, time: float) -> list:
-        """Every vortex element of this wake, for :func:`wakes.induce`."""
-        out = [self.filaments(time)]
+    def sources(self, time: float, *, at_surfaces: bool = False) -> list:
+        """Every vortex element of this wake, for :func:`wakes.induce`.
+
+        With ``at_surfaces`` the filaments are singular unless
+        ``settings.cores_at_surfaces``; particles keep their kernel.
+        """
+        out = [self.filaments(time, singular=at_surfaces and not self.settings.cores_at_surfaces)]
         if self.particle_count:
             out.append(self.particles())
         return out
