@@ -58,10 +58,11 @@ def key(default=dataclasses.MISSING, doc: str = "", unit: str = "", *, kind: str
     ``kind`` is one of float, int, bool, str, vec3, distribution, path,
     table. ``above`` is an exclusive lower bound, ``minimum``/``maximum``
     inclusive bounds. ``resolved`` marks a field whose default is worked
-    out from the rest of the case.
+    out from the rest of the case; ``allow_inf`` accepts ``inf``.
     """
     meta = dict(doc=doc, unit=unit, kind=kind, minimum=minimum, maximum=maximum, above=above,
-                choices=tuple(choices) if choices is not None else None, resolved=resolved)
+                choices=tuple(choices) if choices is not None else None, resolved=resolved,
+                allow_inf=allow_inf)
     return field(default=default, metadata=meta)
 
 
