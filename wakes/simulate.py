@@ -16,6 +16,7 @@ Every velocity comes from :func:`wakes.induce`.
 
 from __future__ import annotations
 
+import subprocess
 import time as _time
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -38,6 +39,18 @@ from .io.tables import write_json, write_table
 def _version() -> str:
     from . import __version__
     return __version__
+
+
+def _revision() -> str | None:
+    """The git commit of the package source, or None outside a git checkout."""
+    try:
+        out = subprocess.run(["git", "rev-parse", "--short", "HEAD"], cwd=Path(__file__).parent,
+                             capture_output=True, text=True, timeout=5)
+    except (OSError, subprocess.SubprocessError):
+        return None
+    if out.returncode != 0:
+        return None
+    return out.stdout.strip() or None
 
 
 @dataclass
@@ -80,15 +93,18 @@ class Run:
         write_table(self.loads, paths[0])
         write_table(self.sections, paths[1])
         write_json(self.summary, paths[2])
-        header = (f"Resolved case written by wakes {_version()}; every default filled in.\n"
-                  f"Source: {self.case.source}")
+        revision = self.summary["run"].get("revision")
+        header = (f"Resolved case written by wakes {_version()}"
+                  + (f" (revision {revision})" if revision else "")
+                  + f"; every default filled in.\nSource: {self.case.source}")
         paths[3].write_text(self.case.to_toml(header), encoding="utf-8")
-        if self.case.output.wake:
-            seg, par = wake_tables(self.wake)
-            for name, table in (("wake_segments.csv", seg), ("wake_particles.csv", par)):
-                if len(table):
-                    write_table(table, out / name)
-                    paths.append(out / name)
+        seg, par = wake_tables(self.wake) if self.case.output.wake else (pd.DataFrame(), pd.DataFrame())
+        for name, table in (("wake_segments.csv", seg), ("wake_particles.csv", par)):
+            if len(table):
+                write_table(table, out / name)
+                paths.append(out / name)
+            elif (out / name).exists():  # left by an earlier run in this folder
+                (out / name).unlink()
         return paths
 
     def short_report(self) -> str:
@@ -253,7 +269,7 @@ def run_case(case: Case, *, progress=None) -> Run:
     summary = {"bodies": {b.name: b.summary(loads) for b in bodies},
                "case": case.to_dict(), "version": _version(),
                "run": {"steps": steps, "dt_s": dt, "final_time_s": (steps - 1) * dt,
-                       "wall_time_s": _time.perf_counter() - started}}
+                       "wall_time_s": _time.perf_counter() - started, "revision": _revision()}}
     final_wake = {s.name: w.sources(t) for s, w in zip(surfaces, wakes)}
     wall = _time.perf_counter() - started
     summary["run"]["wall_time_s"] = wall
