@@ -3,12 +3,23 @@
 The public API is re-exported here; see the README for a tour.
 """
 
+import os as _os
+
+# OpenMP threads that spin and yield between parallel regions cost about
+# 20 ms per region on a loaded 2-core machine (measured: 20 ms against
+# 0.6 ms passive for a 32-target induction); sleeping idle threads cost
+# nothing measurable. A user's own setting wins.
+_os.environ.setdefault("OMP_WAIT_POLICY", "PASSIVE")
+
 from .elements import Filaments, Particles
 from . import exact
 from .errors import CaseError, InputError, NumericalError, WakesError
 from .induction.api import induce
 from .flow import ParticleFlow
 from .initial import lamb_oseen_ring, vortex_ring
+from .case import load_case
+from .simulate import Run, run_case
+from .sweep import sweep
 
 __version__ = "0.1.0"
 
@@ -16,4 +27,5 @@ __all__ = [
     "CaseError", "Filaments", "InputError", "NumericalError", "Particles",
     "WakesError", "exact", "induce", "__version__",
     "ParticleFlow", "lamb_oseen_ring", "vortex_ring",
+    "Run", "load_case", "run_case", "sweep",
 ]

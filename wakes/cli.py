@@ -32,6 +32,29 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("case", metavar="CASE", help="case file (TOML)")
     run.add_argument("--out", required=True, metavar="DIR", help="results folder (created)")
     run.add_argument("--quiet", action="store_true", help="print nothing but errors")
+
+    verify = sub.add_parser("verify", help="run the classical checks and print their table",
+                            description="Compute ring, segment, Lamb-Oseen and other classical "
+                                        "quantities with the library and compare them with "
+                                        "closed forms and published values. Exit status 1 if "
+                                        "any check fails.")
+    verify.add_argument("--csv", metavar="FILE", help="also write the table as CSV")
+
+    sweep = sub.add_parser("sweep", help="run a case over a grid of values on Dask workers",
+                           description="Run CASE once per point of a grid of values and write "
+                                       "one run folder per point, sweep.csv and sweep.png.")
+    sweep.add_argument("case", metavar="CASE", help="case file (TOML)")
+    sweep.add_argument("--vary", action="append", required=True, metavar="KEY=VALUES",
+                       help="dotted case key and its values: a list 4,6,8 or an inclusive "
+                            "range 4:14:2; repeat for a grid")
+    sweep.add_argument("--zip", action="store_true",
+                       help="pair the --vary lists element by element instead of a full grid")
+    sweep.add_argument("--scheduler", metavar="ADDRESS",
+                       help="address of a running Dask scheduler (default: a local cluster)")
+    sweep.add_argument("--workers", type=int, metavar="N",
+                       help="worker processes of the local cluster (default: one per core)")
+    sweep.add_argument("--out", default="sweep", metavar="DIR", help="sweep folder (default: sweep)")
+    sweep.add_argument("--quiet", action="store_true", help="print nothing but errors")
     return parser
 
 
@@ -55,12 +78,51 @@ def _run(args) -> int:
     return 0
 
 
+def _verify(args) -> int:
+    import pandas as pd
+
+    from .verify import run_checks
+
+    table = run_checks()
+    shown = table.assign(error=table["error"].map(lambda e: f"{e:.1e}"),
+                         passed=table["passed"].map({True: "pass", False: "FAIL"}))
+    with pd.option_context("display.max_colwidth", 70, "display.width", 250):
+        print(shown.to_string(index=False))
+    if args.csv:
+        table.to_csv(args.csv, index=False)
+    failed = int((~table["passed"]).sum())
+    print(f"{len(table) - failed} of {len(table)} checks passed")
+    return 1 if failed else 0
+
+
+def _sweep(args) -> int:
+    from .sweep import parse_vary, sweep
+
+    vary = dict(parse_vary(v) for v in args.vary)
+    if args.workers is not None and args.workers < 1:
+        raise WakesError(f"--workers must be at least 1; got {args.workers}")
+    table = sweep(args.case, vary, out=args.out, zipped=args.zip, scheduler=args.scheduler,
+                  workers=args.workers, progress=not args.quiet and sys.stderr.isatty())
+    if not args.quiet:
+        with_cols = [c for c in table.columns if c not in ("folder", "error")]
+        print(table[with_cols].to_string(index=False))
+        failed = table[table["status"] == "failed"]
+        for row in failed.itertuples():
+            print(f"point {row.Index} failed: {row.error}", file=sys.stderr)
+        print(f"results in {args.out}/sweep.csv")
+    return 0
+
+
 def main(argv=None) -> int:
     """Entry point of the ``wakes`` console script; returns the exit status."""
     args = _parser().parse_args(argv)
     try:
         if args.command == "run":
             return _run(args)
+        if args.command == "verify":
+            return _verify(args)
+        if args.command == "sweep":
+            return _sweep(args)
     except WakesError as exc:
         print(f"wakes: error: {exc}", file=sys.stderr)
         return EXIT_USER_ERROR

@@ -1,0 +1,430 @@
+"""Parameter sweeps: one ordinary run per point of a grid, spread over Dask workers.
+
+A sweep varies dotted case-file keys (``bodies.wing.angle_of_attack`` is not
+a key; ``freestream.angle_of_attack`` is) over lists or ranges, as a full
+grid or zipped. Every point becomes its own run folder under the sweep
+folder; the sweep table has one row per point with the varied values, the
+point's status and every summary coefficient.
+
+Points are checked before anything runs: an unknown key stops the sweep with
+a "did you mean"; a value the schema rejects marks that point failed and the
+others run. A point whose run fails is recorded with its message. A point
+whose folder already holds a finished run of the same resolved case (same
+SHA-256 of its resolved TOML) is reused, so an interrupted sweep resumes.
+
+Work is spread with Dask (``dask.distributed``): by default a local cluster
+of worker processes, one thread each, one per core; or any running cluster
+given by its scheduler address.
+"""
+
+from __future__ import annotations
+
+import copy
+import difflib
+import hashlib
+import itertools
+import json
+import math
+import os
+import sys
+import time
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from .case import Case, parse_case, read_toml
+from .errors import CaseError, InputError, WakesError
+from .io import atomic
+
+POINT_RECORD = "point.json"
+SCHEDULER_TIMEOUT_S = 10.0
+# Coefficients plotted against the first varied key, in this order, when present.
+PLOTTED = ("CT", "CP", "FM", "efficiency", "CQ", "CL", "CDi", "span_efficiency")
+
+
+@dataclass(frozen=True)
+class Point:
+    """One point of a sweep: its varied values, resolved case and run folder."""
+
+    index: int
+    values: dict
+    data: dict | None
+    case_hash: str | None
+    folder: Path
+    error: str | None = None
+
+
+def parse_values(text: str) -> list:
+    """Parse a VALUES string: ``4,6,8`` or an inclusive range ``start:stop:step``.
+
+    Numbers become floats (or ints when every item is an integer); other
+    items stay strings (``filaments,particles``); ``true``/``false`` become
+    booleans.
+
+    Examples
+    --------
+    >>> parse_values("4:10:2")
+    [4, 6, 8, 10]
+    >>> parse_values("0.5,1")
+    [0.5, 1.0]
+    """
+    text = text.strip()
+    if not text:
+        raise InputError("VALUES must not be empty; give a list like 4,6,8 or a range like 4:14:2")
+    if ":" in text:
+        parts = text.split(":")
+        try:
+            start, stop, step = (float(p) for p in parts) if len(parts) == 3 else (None,) * 3
+        except ValueError:
+            start = None
+        if start is None:
+            raise InputError(f"range {text!r} must be start:stop:step with three numbers, "
+                             "e.g. 4:14:2")
+        if step == 0 or (stop - start) / step < 0 or not all(map(math.isfinite, (start, stop, step))):
+            raise InputError(f"range {text!r} must step from start toward stop with a non-zero step")
+        n = int(math.floor((stop - start) / step + 1e-9)) + 1
+        if n > 100_000:
+            raise InputError(f"range {text!r} has {n} points; at most 100000 are accepted")
+        vals = [start + k * step for k in range(n)]
+        if all(float(v).is_integer() for v in (start, step)):
+            return [int(round(v)) for v in vals]
+        return [round(v, 12) for v in vals]
+    items = [s.strip() for s in text.split(",")]
+    if any(not s for s in items):
+        raise InputError(f"list {text!r} has an empty item; give values like 4,6,8")
+    return _typed(items)
+
+
+def _typed(items: list[str]) -> list:
+    low = [s.lower() for s in items]
+    if all(s in ("true", "false") for s in low):
+        return [s == "true" for s in low]
+    try:
+        nums = [float(s) for s in items]
+    except ValueError:
+        return items
+    if all(s.lstrip("+-").isdigit() for s in items):
+        return [int(s) for s in items]
+    return nums
+
+
+def parse_vary(option: str) -> tuple[str, list]:
+    """Split a ``KEY=VALUES`` command-line option into the key and its values."""
+    if "=" not in option:
+        raise InputError(f"--vary {option!r} must be KEY=VALUES, e.g. "
+                         "freestream.angle_of_attack=2,4,6")
+    key, values = option.split("=", 1)
+    key = key.strip()
+    if not key or any(not part for part in key.split(".")):
+        raise InputError(f"--vary {option!r}: KEY must be a dotted case-file path such as "
+                         "bodies.rotor.collective")
+    return key, parse_values(values)
+
+
+def _grid(vary: dict, zipped: bool) -> list[dict]:
+    keys = list(vary)
+    lists = [list(vary[k]) for k in keys]
+    if any(len(v) == 0 for v in lists):
+        raise InputError("every varied key needs at least one value")
+    if zipped:
+        lengths = {k: len(v) for k, v in zip(keys, lists)}
+        if len(set(lengths.values())) != 1:
+            raise InputError(f"zipped lists must have equal lengths; got {lengths}")
+        combos = zip(*lists)
+    else:
+        combos = itertools.product(*lists)
+    return [dict(zip(keys, c)) for c in combos]
+
+
+def _check_key(raw: dict, key: str, source: str) -> None:
+    """An unknown body name gets a did-you-mean here; the schema checks the rest."""
+    parts = key.split(".")
+    if parts[0] == "bodies":
+        bodies = raw.get("bodies", {})
+        if len(parts) < 3:
+            raise CaseError(f"{source}: --vary key {key!r} must name a body's key, "
+                            f"e.g. bodies.{next(iter(bodies), 'NAME')}.KEY")
+        if parts[1] not in bodies:
+            close = difflib.get_close_matches(parts[1], list(bodies), n=1)
+            hint = f" (did you mean {close[0]!r}?)" if close else ""
+            raise CaseError(f"{source}: --vary key {key!r} names no body {parts[1]!r}{hint}; "
+                            f"bodies are {', '.join(map(repr, bodies))}")
+
+
+def _set(data: dict, key: str, value) -> dict:
+    out = copy.deepcopy(data)
+    node = out
+    parts = key.split(".")
+    for p in parts[:-1]:
+        nxt = node.get(p)
+        if not isinstance(nxt, dict):
+            nxt = {}
+            node[p] = nxt
+        node = nxt
+    node[parts[-1]] = value
+    return out
+
+
+def case_hash(case: Case) -> str:
+    """SHA-256 of a resolved case's TOML: equal hashes, equal runs."""
+    return hashlib.sha256(case.to_toml().encode("utf-8")).hexdigest()
+
+
+def _folder_name(index: int, values: dict) -> str:
+    label = "_".join(f"{k.split('.')[-1]}={v}" for k, v in values.items())
+    label = "".join(c if c.isalnum() or c in "=._-" else "-" for c in label)[:80]
+    return f"{index:04d}_{label}"
+
+
+def plan(raw: dict, vary: dict, out_dir, *, source: str = "<dict>", base_dir=".",
+         zipped: bool = False) -> list[Point]:
+    """Check every point of the sweep before anything runs.
+
+    Raises
+    ------
+    wakes.errors.CaseError
+        For a key the schema does not know (with a did-you-mean); the same
+        key would fail at every point.
+    """
+    if not vary:
+        raise InputError("a sweep needs at least one varied key")
+    for key in vary:
+        _check_key(raw, key, source)
+    points = []
+    for index, values in enumerate(_grid(vary, zipped)):
+        data = raw
+        for k, v in values.items():
+            data = _set(data, k, v)
+        folder = Path(out_dir) / _folder_name(index, values)
+        try:
+            case = parse_case(data, source=source, base_dir=base_dir)
+        except CaseError as exc:
+            if "did you mean" in str(exc) or "unknown key" in str(exc):
+                raise
+            points.append(Point(index, values, None, None, folder, str(exc)))
+            continue
+        points.append(Point(index, values, data, case_hash(case), folder))
+    return points
+
+
+def _finished(point: Point) -> dict | None:
+    """The summary of an earlier finished run of this very point, if any."""
+    try:
+        record = json.loads((point.folder / POINT_RECORD).read_text(encoding="utf-8"))
+        summary = json.loads((point.folder / "summary.json").read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        return None
+    return summary if record.get("case_sha256") == point.case_hash else None
+
+
+def run_point(data: dict, source: str, base_dir: str, folder: str, expected_hash: str,
+              numba_threads: int | None) -> dict:
+    """Run one point in a worker and write its folder; returns the summary.
+
+    The point record (with the case hash) is written last, so a folder
+    without it is an unfinished run and is run again on resume.
+    """
+    from .simulate import run_case
+
+    if numba_threads:
+        import numba
+
+        numba.set_num_threads(min(numba_threads, numba.config.NUMBA_NUM_THREADS))
+    case = parse_case(data, source=source, base_dir=base_dir)
+    if case_hash(case) != expected_hash:   # a worker with another wakes version
+        raise WakesError(f"point resolved differently on the worker ({folder})")
+    run = run_case(case)
+    run.write(folder)
+    atomic.write_text(Path(folder) / POINT_RECORD,
+                      json.dumps({"case_sha256": expected_hash}, indent=2) + "\n")
+    return run.summary
+
+
+def _flatten(summary: dict) -> dict:
+    bodies = summary.get("bodies", {})
+    row = {}
+    for name, figures in bodies.items():
+        for k, v in figures.items():
+            if isinstance(v, (int, float)) and not isinstance(v, bool):
+                row[k if len(bodies) == 1 else f"{name}.{k}"] = v
+    return row
+
+
+class _Progress:
+    """One line on the terminal: points done, failed, time left."""
+
+    def __init__(self, total: int, enabled: bool):
+        self.total, self.enabled = total, enabled
+        self.done = self.failed = 0
+        self.start = time.perf_counter()
+
+    def update(self, ok: bool) -> None:
+        self.done += 1
+        self.failed += not ok
+        if not self.enabled:
+            return
+        elapsed = time.perf_counter() - self.start
+        left = elapsed / self.done * (self.total - self.done)
+        width = 24
+        fill = int(width * self.done / self.total)
+        print(f"\rsweep [{'#' * fill}{'.' * (width - fill)}] {self.done}/{self.total} points, "
+              f"{self.failed} failed, {left:5.0f} s left", end="", file=sys.stderr, flush=True)
+        if self.done == self.total:
+            print(file=sys.stderr)
+
+
+def _connect(client, scheduler, workers):
+    """Return (client, owned): a client to use and whether we must close it."""
+    import distributed
+
+    if client is not None:
+        return client, None
+    if scheduler:
+        try:
+            return distributed.Client(scheduler, timeout=SCHEDULER_TIMEOUT_S), None
+        except (OSError, TimeoutError) as exc:
+            raise WakesError(f"--scheduler {scheduler}: no Dask scheduler answered within "
+                             f"{SCHEDULER_TIMEOUT_S:.0f} s ({type(exc).__name__}); start one "
+                             "with `dask scheduler` and `dask worker ADDRESS`") from None
+    n = workers or os.cpu_count() or 1
+    cluster = distributed.LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
+                                       dashboard_address=None)
+    return distributed.Client(cluster), cluster
+
+
+def sweep(case, vary: dict, *, out="sweep", zipped: bool = False, client=None,
+          scheduler: str | None = None, workers: int | None = None,
+          progress: bool = False) -> pd.DataFrame:
+    """Run a case over a grid of values and tabulate every point's coefficients.
+
+    Parameters
+    ----------
+    case : str, Path or dict
+        A case file, or a case as nested data (``base_dir`` is then the
+        current folder).
+    vary : dict
+        ``{dotted key: list of values}``, e.g.
+        ``{"bodies.rotor.collective": [4, 6, 8]}``.
+    out : str or Path
+        Sweep folder: one run folder per point, plus ``sweep.csv`` and
+        ``sweep.png``.
+    zipped : bool
+        Pair the lists element by element instead of forming the full grid.
+    client : dask.distributed.Client, optional
+        Use this client. Otherwise ``scheduler`` is connected to, or a local
+        cluster of ``workers`` single-threaded processes is started.
+    scheduler : str, optional
+        Address of a running Dask scheduler, e.g. ``tcp://10.0.0.5:8786``.
+    workers : int, optional
+        Worker processes of the local cluster (default: one per core).
+    progress : bool
+        Draw a progress line on standard error.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per point: the varied keys, ``status`` ("ran", "reused" or
+        "failed"), ``error``, ``folder`` and every numeric summary figure
+        (prefixed ``BODY.`` when the case has several bodies).
+
+    Examples
+    --------
+    >>> import wakes
+    >>> table = wakes.sweep("cases/validation/elliptic-wing.toml",
+    ...                     {"freestream.angle_of_attack": [2, 4]})   # doctest: +SKIP
+    """
+    if isinstance(case, (str, Path)):
+        source, base_dir, raw = str(case), str(Path(case).resolve().parent), read_toml(case)
+    elif isinstance(case, dict):
+        source, base_dir, raw = "<dict>", str(Path.cwd()), case
+    else:
+        raise InputError(f"case must be a case file path or a dict; got {type(case).__name__}")
+    out = Path(out)
+    points = plan(raw, vary, out, source=source, base_dir=base_dir, zipped=zipped)
+    rows: dict[int, dict] = {}
+    bar = _Progress(len(points), progress)
+    todo = []
+    for p in points:
+        if p.error is not None:
+            rows[p.index] = {"status": "failed", "error": p.error}
+            bar.update(False)
+        elif (summary := _finished(p)) is not None:
+            rows[p.index] = {"status": "reused", "error": "", **_flatten(summary)}
+            bar.update(True)
+        else:
+            todo.append(p)
+    if todo:
+        _run_all(todo, rows, bar, client, scheduler, workers, source, base_dir)
+    table = pd.DataFrame([{**p.values, **rows[p.index], "folder": str(p.folder)}
+                          for p in points])
+    _write_outputs(table, list(vary), out)
+    return table
+
+
+def _run_all(todo, rows, bar, client, scheduler, workers, source, base_dir) -> None:
+    from distributed import as_completed
+
+    client, cluster = _connect(client, scheduler, workers)
+    local = cluster is not None
+    try:
+        futures = {client.submit(run_point, p.data, source, base_dir, str(p.folder), p.case_hash,
+                                 1 if local else None, pure=False): p for p in todo}
+        for fut in as_completed(futures):
+            p = futures[fut]
+            try:
+                rows[p.index] = {"status": "ran", "error": "", **_flatten(fut.result())}
+                bar.update(True)
+            except Exception as exc:   # any failure of one point is that point's result
+                rows[p.index] = {"status": "failed", "error": f"{type(exc).__name__}: {exc}"}
+                bar.update(False)
+    finally:
+        if local:
+            client.close()
+            cluster.close()
+
+
+def _write_outputs(table: pd.DataFrame, keys: list, out: Path) -> None:
+    out.mkdir(parents=True, exist_ok=True)
+    atomic.write_text(out / "sweep.csv", table.to_csv(index=False, float_format="%.10g"))
+    try:
+        import io
+
+        import pyarrow  # noqa: F401
+
+        buf = io.BytesIO()
+        table.to_parquet(buf, index=False)
+        atomic.write_bytes(out / "sweep.parquet", buf.getvalue())
+    except ImportError:
+        pass
+    _plot(table, keys[0], out / "sweep.png")
+
+
+def _plot(table: pd.DataFrame, key: str, path: Path) -> None:
+    import io
+
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    ok = table[table["status"] != "failed"]
+    cols = [c for c in table.columns for base in PLOTTED
+            if c == base or c.endswith("." + base)][:4]
+    if not cols or not len(ok) or not np.issubdtype(table[key].dtype, np.number):
+        return
+    fig, axes = plt.subplots(len(cols), 1, figsize=(6, 2.3 * len(cols)), sharex=True,
+                             squeeze=False)
+    order = ok.sort_values(key)
+    for ax, c in zip(axes[:, 0], cols):
+        ax.plot(order[key], order[c], "o-", color="#1f5f8b")
+        ax.set_ylabel(c)
+        ax.grid(alpha=0.3)
+    axes[-1, 0].set_xlabel(key)
+    axes[0, 0].set_title(f"sweep over {key}")
+    fig.tight_layout()
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=120)
+    plt.close(fig)
+    atomic.write_bytes(path, buf.getvalue())
