@@ -25,7 +25,7 @@ def test_distributed_equals_serial_on_50000_particles(client):
                         0.02, kernel="winckelmans-leonard")
     targets = p.positions[::10]
     serial = wakes.induce(p, targets)
-    spread = induce_on_cluster(p, targets, client)
+    spread = wakes.induce(p, targets, client=client)
     assert np.linalg.norm(spread - serial) <= 1e-12 * np.linalg.norm(serial)
 
 

@@ -31,7 +31,7 @@ def _as_source_list(sources) -> list:
 
 
 def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
-           tolerance: float = 1e-6):
+           tolerance: float = 1e-6, client=None):
     """Velocity (and its gradient) induced by vortex elements at target points.
 
     Parameters
@@ -58,6 +58,10 @@ def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
         from all sources where the field is a small residual of cancelling
         contributions the error is of the same absolute size, so larger
         relative to that residual.
+    client : dask.distributed.Client, optional
+        Evaluate chunks of the targets on the cluster's workers
+        (:func:`wakes.distributed.induce_on_cluster`): the sources are sent
+        once, the result equals the single-process one.
 
     Returns
     -------
@@ -88,6 +92,11 @@ def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
     src = _as_source_list(sources)
     tgt = as_float_array("targets", targets, (None, 3))
     choice("method", method, METHODS)
+    if client is not None:
+        from ..distributed import induce_on_cluster
+
+        return induce_on_cluster(src, tgt, client, gradient=gradient, method=method,
+                                 tolerance=tolerance)
     tol = tree_params.check_tolerance(tolerance)
     if not isinstance(gradient, (bool, np.bool_)):
         raise InputError(f"gradient must be True or False; got {gradient!r}")
