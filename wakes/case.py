@@ -38,6 +38,7 @@ import numpy as np
 
 from .aero.geometry import DISTRIBUTION_LAWS, SPACINGS, Distribution, WingPlanform
 from .aero.polars import OUT_OF_RANGE_MODES, load_polar_table
+from .dynamics import STRETCHING_SCHEMES
 from .errors import CaseError
 from .induction.api import METHODS
 from .induction.smoothing import CORE_MODELS, PARTICLE_KERNELS
@@ -144,6 +145,8 @@ class WakeSpec:
                                   above=0.0)
     near_wake_steps: int = key(8, "wake rows kept as filaments before conversion (particles)",
                                kind="int", minimum=1)
+    stretching: str = key("transposed", "particle stretching scheme (free wake)", kind="str",
+                          choices=STRETCHING_SCHEMES)
     cores_at_surfaces: bool = key(False, "surfaces see wake filament cores (false: singular lines)",
                                   kind="bool")
     max_age: float = key(float("inf"), "wake older than this is removed (inf: kept)", "s", above=0.0,

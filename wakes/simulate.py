@@ -30,6 +30,7 @@ from .aero.loads import strip_loads, trefftz_induced_drag
 from .aero.vortex_lattice import influence_matrix, surface_filaments
 from .aero.wake import WakeSettings, WakeSheet
 from .case import Case
+from .dynamics import stretching_rate
 from .elements import Particles
 from .errors import NumericalError
 from .induction.api import induce
@@ -148,7 +149,8 @@ def wake_settings(case: Case) -> WakeSettings:
     return WakeSettings(model=w.model, motion=w.motion, core=w.core, core_radius=w.core_radius,
                         core_growth=w.core_growth, viscosity=case.fluid.kinematic_viscosity,
                         particle_kernel=w.particle_kernel, particle_overlap=w.particle_overlap,
-                        near_wake_steps=w.near_wake_steps, max_age=w.max_age,
+                        near_wake_steps=w.near_wake_steps, stretching=w.stretching,
+                        max_age=w.max_age,
                         cores_at_surfaces=w.cores_at_surfaces)
 
 
@@ -337,7 +339,7 @@ def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method):
             vel, grad = induce(src, np.vstack(parts), gradient=True, **method)
             u_par += vel
             alpha = np.vstack([w.strengths for w in wakes])
-            stretch = np.einsum("ijk,ik->ij", grad, alpha)  # (alpha . grad) u, grad[i,j,k] = du_j/dx_k
+            stretch = stretching_rate(settings.stretching, alpha, grad)
     if not (np.isfinite(u_nodes).all() and np.isfinite(u_par).all()):
         raise NumericalError(f"the wake velocity is not finite at t = {t:.6g} s; likely cause: a time "
                              "step too large for the wake spacing or a core radius too small "

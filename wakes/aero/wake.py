@@ -65,6 +65,8 @@ class WakeSettings:
         replaces (at least ``core_radius``).
     near_wake_steps : int
         Rings kept as filaments before conversion (particle model).
+    stretching : str
+        Particle stretching scheme (:data:`wakes.dynamics.STRETCHING_SCHEMES`).
     max_age : float
         Wake older than this [s] is removed (inf: kept).
     cores_at_surfaces : bool
@@ -85,6 +87,7 @@ class WakeSettings:
     particle_kernel: str = "gaussian"
     particle_overlap: float = 1.3
     near_wake_steps: int = 8
+    stretching: str = "transposed"
     max_age: float = float("inf")
     cores_at_surfaces: bool = False
 
