@@ -5,7 +5,7 @@ downstream; ring (k, j) joins nodes (k, j), (k, j+1), (k+1, j+1), (k+1, j)
 and carries circulation G[k, j], positive when its upstream side points to
 +j (so a positive ring on a wing lifts). Adjacent rings share sides, so the
 lattice is stored as segments with net circulation (Katz & Plotkin 2001,
-*Low-Speed Aerodynamics*, 2nd ed., sec. 12.3):
+*Low-Speed Aerodynamics*, 2nd ed., ch. 12):
 
 * spanwise segment of row k, node j to j+1:  G[k, j] - G[k-1, j];
 * streamwise segment of column i, row k to k+1:  G[k, i-1] - G[k, i];

@@ -5,7 +5,7 @@ of wake nodes; the ring between that row and the previous one carries the
 surface's strip circulation at shedding time, so the lattice holds the shed
 (spanwise) vorticity -- the change of bound circulation in time -- and the
 trailed (streamwise) vorticity -- its change along the span (Katz & Plotkin
-2001, *Low-Speed Aerodynamics*, 2nd ed., sec. 13.8).
+2001, *Low-Speed Aerodynamics*, 2nd ed., ch. 13).
 
 Storage: ``rows`` (R, n + 1, 3), newest (at the trailing edge) first; ring
 k lies between rows k and k + 1 with circulation ``gamma[k]``. With the
