@@ -6,8 +6,12 @@ Strip forces (per spanwise strip of a surface):
   F = rho Gamma_net (V x l), with V the velocity relative to the surface at
   the segment midpoint (freestream, motion and everything induced); on a
   vortex lattice plus the unsteady term rho (dGamma_ring/dt) A n of each
-  panel (Katz & Plotkin 2001, *Low-Speed Aerodynamics*, 2nd ed., ch. 13). A lifting line keeps the quasi-steady Kutta--Joukowski force
-  only: the one-panel model's d Gamma/dt term overshoots Wagner's lift;
+  panel (Katz & Plotkin 2001, *Low-Speed Aerodynamics*, 2nd ed., ch. 13).
+  A lifting line keeps the quasi-steady Kutta--Joukowski force only, as
+  its one-panel d Gamma/dt term would overshoot Wagner's lift further
+  (measured at aspect ratio 100: the quasi-steady lift is 13 % above
+  Jones's Wagner approximation after one chord of travel, 7 % after two,
+  2.5 % after four; the 16-panel lattice is within 2.5 %);
 * profile drag 1/2 rho |V_2D|^2 c c_d w along the local section flow, with
   c_d from the polar at the effective angle of attack and w the strip
   width normal to the chord.
