@@ -4,7 +4,8 @@ Strip forces (per spanwise strip of a surface):
 
 * pressure force, from Kutta--Joukowski on every spanwise bound segment,
   F = rho Gamma_net (V x l), with V the velocity relative to the surface at
-  the segment midpoint (freestream, motion and everything induced); on a
+  the strip's section point on the segment (freestream, motion and
+  everything induced); on a
   vortex lattice plus the unsteady term rho (dGamma_ring/dt) A n of each
   panel (Katz & Plotkin 2001, *Low-Speed Aerodynamics*, 2nd ed., ch. 13).
   A lifting line keeps the quasi-steady Kutta--Joukowski force only, as
