@@ -220,14 +220,16 @@ def _cached_direct(src):
 
 # ------------------------------------------------------------- hypothesis
 
-@given(seed=st.integers(0, 2**32 - 1), n=st.integers(1, 300),
+@given(seed=st.integers(0, 2**32 - 1), n=st.integers(1, 1500),
        kernel=st.sampled_from(KERNEL_NAMES), layout=st.sampled_from(
            ["cube", "coincident", "plane", "line", "sigma-spread"]))
 def test_random_point_sets(seed, n, kernel, layout):
-    """Small random sets in a tree of 4-point leaves: finite, within tolerance.
+    """Random sets, targets = sources: finite and within tolerance.
 
     Layouts: uniform; half the points repeated (coincident points); all in
-    one plane; all on one line; radii spread over three decades.
+    one plane; all on one line; radii spread over three decades. Sets below
+    MIN_TREE_SOURCES take the direct path; the rest build trees of up to
+    ~25 leaves with far and near pairs.
     """
     rng = np.random.default_rng(seed)
     x = rng.uniform(-1, 1, (n, 3))
@@ -240,15 +242,28 @@ def test_random_point_sets(seed, n, kernel, layout):
         x[:, 1:] = 0.0
     elif layout == "sigma-spread":
         sigma = 10 ** rng.uniform(-3, 0, n)
-    a = rng.normal(size=(n, 3))
-    src = tree.ParticleSet(x, a, sigma, PARTICLE_KERNELS[kernel].code)
-    u, g = tree.tree_induce(x, [src], True, 1e-6, leaf_size=4)
+    src = wakes.Particles(x, rng.normal(size=(n, 3)), sigma, kernel=kernel)
+    u, g = wakes.induce(src, x, gradient=True, method="tree", tolerance=1e-6)
     assert np.all(np.isfinite(u)) and np.all(np.isfinite(g))
-    u0, g0 = wakes.induce(wakes.Particles(x, a, sigma, kernel=kernel), x, gradient=True)
-    scale_u = max(np.linalg.norm(u0), 1e-300)
-    scale_g = max(np.linalg.norm(g0), 1e-300)
-    assert np.linalg.norm(u - u0) <= 1e-6 * scale_u
-    assert np.linalg.norm(g - g0) <= 1e-5 * scale_g
+    u0, g0 = wakes.induce(src, x, gradient=True)
+    assert np.linalg.norm(u - u0) <= 1e-6 * np.linalg.norm(u0)
+    assert np.linalg.norm(g - g0) <= 1e-5 * np.linalg.norm(g0)
+
+
+@given(seed=st.integers(0, 2**32 - 1), core=st.sampled_from(CORE_NAMES),
+       n=st.integers(1, 1200))
+def test_random_filaments(seed, core, n):
+    """A random walk of n segments with random circulation and core radii
+    over a decade, evaluated at its nodes: finite and within tolerance."""
+    rng = np.random.default_rng(seed)
+    nodes = np.cumsum(rng.normal(scale=0.05, size=(n + 1, 3)), axis=0)
+    f = wakes.Filaments.from_polyline(nodes, rng.normal(size=n),
+                                      10 ** rng.uniform(-3, -2, n), core=core)
+    u, g = wakes.induce(f, nodes, gradient=True, method="tree", tolerance=1e-6)
+    assert np.all(np.isfinite(u)) and np.all(np.isfinite(g))
+    u0, g0 = wakes.induce(f, nodes, gradient=True)
+    assert np.linalg.norm(u - u0) <= 1e-6 * np.linalg.norm(u0)
+    assert np.linalg.norm(g - g0) <= 1e-5 * np.linalg.norm(g0)
 
 
 # ------------------------------------------------------------ method choice
@@ -319,7 +334,7 @@ def test_octree_cells_partition_the_points():
     rng = np.random.default_rng(RNG_SEED)
     x = np.vstack([rng.uniform(0, 1, (5000, 3)), np.full((300, 3), 0.5)])  # + a clump
     order, (start, count, first, n_child, depth_ptr) = tree_build.build_tree(
-        x[:, 0].copy(), x[:, 1].copy(), x[:, 2].copy(), 64, 3)
+        x[:, 0].copy(), x[:, 1].copy(), x[:, 2].copy(), 64)
     assert np.array_equal(np.sort(order), np.arange(len(x)))
     assert start[0] == 0 and count[0] == len(x)
     for c in np.flatnonzero(n_child):

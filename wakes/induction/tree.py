@@ -56,8 +56,7 @@ class _Tree:
 
 
 def _build(points_x, points_y, points_z, leaf_size) -> _Tree:
-    order, cells = tree_build.build_tree(points_x, points_y, points_z, leaf_size,
-                                         tree_params.SPLIT_BITS)
+    order, cells = tree_build.build_tree(points_x, points_y, points_z, leaf_size)
     return _Tree(order, *cells)
 
 
@@ -84,13 +83,12 @@ def _upward(tree: _Tree, tables: dict, moments: np.ndarray) -> None:
 
 
 def _far_and_near(target: _Tree, source: _Tree, theta, kind, reach, axis, cos_half):
+    """Far pairs (t, s) as two arrays, near pairs grouped by target leaf."""
     far_t, far_s, near_t, near_s = tree_traverse.dual_traverse(
         target.center, target.radius, target.first_child, target.n_child,
         source.center, source.radius, source.first_child, source.n_child,
         theta, kind, reach, axis, cos_half)
-    far = tree_traverse.group_by_target(far_t, far_s, target.n_cells)
-    near = tree_traverse.group_by_target(near_t, near_s, target.n_cells)
-    return far, near
+    return (far_t, far_s), tree_traverse.group_by_target(near_t, near_s, target.n_cells)
 
 
 class _Locals:
@@ -109,8 +107,9 @@ class _Locals:
         self.full = None
 
     def add_far(self, target: _Tree, source: _Tree, far, moments, delta2, wl_coef) -> None:
-        """Add the far pairs of one source set (moments (Cs, 3, T))."""
-        ptr, src = far
+        """Add far pairs (two arrays, target and source cells) of one source
+        set with moments (Cs, 3, T), for the potential of ``m2l``."""
+        ptr, src = tree_traverse.group_by_target(far[0], far[1], target.n_cells)
         t_cells = np.flatnonzero(np.diff(ptr))
         if t_cells.size == 0:
             return
@@ -247,15 +246,21 @@ def _add_particles(s: ParticleSet, targets, target: _Tree, tx, ty, tz, t_leaves,
                               tables["mono_dir"], moments)
     _upward(source, tables, moments)
     exact, delta2, wl_coef = tree_params.kernel_far_potential(s.kernel, s.radii)
-    if exact:
-        kind, reach = MAC_ONLY, np.zeros(source.n_cells)
+    reach = tree_params.particle_reach(s.kernel, tolerance) * \
+        tree_build.cell_max(source.start, source.count, sig)
+    far, near = _far_and_near(target, source, theta, MAC_ONLY if exact else GAP, reach,
+                              np.zeros((1, 3)), np.ones(1))
+    if delta2 == 0.0:
+        local.add_far(target, source, far, moments, 0.0, 0.0)
     else:
-        kind = GAP
-        reach = tree_params.particle_reach(s.kernel, tolerance) * \
-            tree_build.cell_max(source.start, source.count, sig)
-    far, near = _far_and_near(target, source, theta, kind, reach, np.zeros((1, 3)),
-                              np.ones(1))
-    local.add_far(target, source, far, moments, delta2, wl_coef)
+        # the kernel's own expansion where it differs from the singular one;
+        # beyond the reach the cheaper harmonic expansion of 1/|r| is as good
+        beyond = tree_traverse.gap_at_least(far[0], far[1], target.center, target.radius,
+                                            source.center, source.radius, reach)
+        local.add_far(target, source, (far[0][beyond], far[1][beyond]), moments, 0.0, 0.0)
+        within = ~beyond
+        local.add_far(target, source, (far[0][within], far[1][within]), moments, delta2,
+                      wl_coef)
     tree_near.particles_near(s.kernel, gradient, t_leaves, target.start, target.count,
                              near[0], near[1], source.start, source.count, tx, ty, tz,
                              sx, sy, sz, ax, ay, az, sig * sig, vel, grad)

@@ -65,8 +65,8 @@ def morton_keys(x, y, z):
 
 
 @njit(cache=True)
-def build_cells(keys, leaf_size, split_bits):
-    """Cells of a tree over points already sorted by Morton key.
+def build_cells(keys, leaf_size):
+    """Cells of an octree over points already sorted by Morton key.
 
     Parameters
     ----------
@@ -74,10 +74,6 @@ def build_cells(keys, leaf_size, split_bits):
         Sorted Morton keys, N >= 1.
     leaf_size : int
         Largest number of points in a leaf.
-    split_bits : int
-        Key bits consumed by one split: 3 gives an octree, 1 a binary tree
-        that halves a box along x, y and z in turn (leaf populations then
-        vary by a factor 2 instead of 8 as N changes).
 
     Returns
     -------
@@ -90,15 +86,13 @@ def build_cells(keys, leaf_size, split_bits):
         Cells of tree depth d are depth_ptr[d] .. depth_ptr[d + 1] - 1.
     """
     n = keys.shape[0]
-    n_levels = 3 * MORTON_BITS // split_bits
-    mask = (1 << split_bits) - 1
     cap = 2 * n + 1
     start = np.empty(cap, np.int64)
     count = np.empty(cap, np.int64)
     first_child = np.zeros(cap, np.int64)
     n_child = np.zeros(cap, np.int64)
     depth = np.empty(cap, np.int64)
-    level = np.empty(cap, np.int64)  # split level at which the cell splits
+    level = np.empty(cap, np.int64)  # Morton level at which the cell splits
     start[0] = 0
     count[0] = n
     depth[0] = 0
@@ -114,21 +108,21 @@ def build_cells(keys, leaf_size, split_bits):
         e = s + count[c]
         lev = level[c]
         shift = 0
-        while lev < n_levels:
-            shift = split_bits * (n_levels - 1 - lev)
-            if ((keys[s] >> shift) & mask) != ((keys[e - 1] >> shift) & mask):
+        while lev < MORTON_BITS:
+            shift = 3 * (MORTON_BITS - 1 - lev)
+            if ((keys[s] >> shift) & 7) != ((keys[e - 1] >> shift) & 7):
                 break
             lev += 1
-        if lev == n_levels:
+        if lev == MORTON_BITS:
             continue  # all keys equal: coincident points stay in one leaf
         first_child[c] = n_cells
         j = s
-        for part in range(mask + 1):
+        for octant in range(8):
             lo = j
             hi = e
-            while lo < hi:  # first point of a later part
+            while lo < hi:  # first point of a later octant
                 mid = (lo + hi) // 2
-                if ((keys[mid] >> shift) & mask) <= part:
+                if ((keys[mid] >> shift) & 7) <= octant:
                     lo = mid + 1
                 else:
                     hi = mid
@@ -289,7 +283,7 @@ def cell_max(start, count, values):
     return out
 
 
-def build_tree(x, y, z, leaf_size, split_bits):
+def build_tree(x, y, z, leaf_size):
     """Sort points along the Morton curve and build the octree cells.
 
     Parameters
@@ -298,8 +292,6 @@ def build_tree(x, y, z, leaf_size, split_bits):
         Point coordinates [m], N >= 1.
     leaf_size : int
         Largest number of points in a leaf.
-    split_bits : int
-        3 for an octree, 1 for a binary tree (see :func:`build_cells`).
 
     Returns
     -------
@@ -311,4 +303,4 @@ def build_tree(x, y, z, leaf_size, split_bits):
     """
     keys = morton_keys(x, y, z)
     order = np.argsort(keys, kind="stable")
-    return order, build_cells(keys[order], int(leaf_size), int(split_bits))
+    return order, build_cells(keys[order], int(leaf_size))

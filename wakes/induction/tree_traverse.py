@@ -144,6 +144,21 @@ def dual_traverse(t_center, t_radius, t_first, t_nchild, s_center, s_radius, s_f
 
 
 @njit(cache=True)
+def gap_at_least(pair_t, pair_s, t_center, t_radius, s_center, s_radius, reach):
+    """Mask of pairs whose closest points are at least reach[s] apart
+    (centre distance minus both radii)."""
+    out = np.empty(pair_t.shape[0], np.bool_)
+    for i in range(pair_t.shape[0]):
+        t = pair_t[i]
+        s = pair_s[i]
+        d = math.sqrt((t_center[t, 0] - s_center[s, 0]) ** 2
+                      + (t_center[t, 1] - s_center[s, 1]) ** 2
+                      + (t_center[t, 2] - s_center[s, 2]) ** 2)
+        out[i] = d - t_radius[t] - s_radius[s] >= reach[s]
+    return out
+
+
+@njit(cache=True)
 def group_by_target(pair_t, pair_s, n_cells):
     """CSR form of pairs: sources of cell t are src[ptr[t]:ptr[t + 1]]."""
     ptr = np.zeros(n_cells + 1, np.int64)
