@@ -17,7 +17,7 @@ from .errors import CaseError, InputError, NumericalError, WakesError
 from .induction.api import induce
 from .flow import ParticleFlow
 from .initial import lamb_oseen_ring, vortex_ring
-from .case import load_case
+from .case import Case, load_case, parse_case
 from .simulate import Run, run_case
 from .sweep import sweep
 
@@ -27,5 +27,5 @@ __all__ = [
     "CaseError", "Filaments", "InputError", "NumericalError", "Particles",
     "WakesError", "exact", "induce", "__version__",
     "ParticleFlow", "lamb_oseen_ring", "vortex_ring",
-    "Run", "load_case", "run_case", "sweep",
+    "Case", "Run", "load_case", "parse_case", "run_case", "sweep",
 ]
