@@ -1,0 +1,239 @@
+"""Size, memory and run time of a case, estimated without running it.
+
+``wakes check`` prints these so a user sees, before a long run, how big the
+wake will grow. The wake size follows from the bookkeeping of the time
+loop (one wake row shed per step and surface, rows removed after
+``max_age``, rotor sheets condensed into a few trailers after
+``rollup_age``); memory counts the arrays that grow with the wake; run
+time counts the Biot–Savart pairs a direct summation would evaluate, at a
+pair rate measured on this machine when the estimate is made.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from dataclasses import dataclass
+
+import numpy as np
+
+from .case import Case
+
+# Bytes held per wake element during a step: a filament segment keeps two
+# node coordinates, an index pair, circulation and core (about 80 B) and the
+# node velocities of the free-wake update; a particle keeps position,
+# strength, radius, velocity and the 3x3 velocity gradient (~200 B). Doubled
+# for the copies the time loop makes of source lists (counted from the arrays
+# in wakes.elements and wakes.simulate).
+BYTES_PER_SEGMENT = 2 * 120
+BYTES_PER_PARTICLE = 2 * 200
+BASE_MEMORY_MB = 150.0    # interpreter, numpy, numba and pandas at start (measured: 120-160 MB)
+STEP_OVERHEAD_S = 0.005   # per step and surface: solve, loads, bookkeeping (measured 3-15 ms here)
+
+
+@dataclass(frozen=True)
+class Estimate:
+    """What a run of a case is expected to cost.
+
+    Attributes
+    ----------
+    steps : int
+        Time steps.
+    dt_s : float
+        Time step [s].
+    surfaces : int
+        Lifting surfaces (one per wing half-lattice or per rotor blade).
+    bound_unknowns : int
+        Bound-circulation unknowns solved each step.
+    final_segments, final_particles : int
+        Wake filament segments and particles at the end of the run.
+    peak_elements : int
+        Largest wake size during the run.
+    memory_mb : float
+        Peak memory of the run [MB], order of magnitude.
+    pair_evaluations : float
+        Biot–Savart pairs of a direct summation over the whole run.
+    pair_rate_per_s : float
+        Pairs per second measured on this machine (direct sum).
+    run_time_s : float
+        Estimated wall time [s] with direct summation; a treecode
+        (``[wake] induction``) is faster on large wakes.
+    """
+
+    steps: int
+    dt_s: float
+    surfaces: int
+    bound_unknowns: int
+    final_segments: int
+    final_particles: int
+    peak_elements: int
+    memory_mb: float
+    pair_evaluations: float
+    pair_rate_per_s: float
+    run_time_s: float
+
+    def table(self) -> list[tuple[str, str]]:
+        """Rows (quantity, value) for printing."""
+        return [("time steps", f"{self.steps} of {self.dt_s:.4g} s"),
+                ("lifting surfaces", str(self.surfaces)),
+                ("bound unknowns", str(self.bound_unknowns)),
+                ("final wake", f"{self.final_segments:,} segments, {self.final_particles:,} particles"),
+                ("memory", f"about {self.memory_mb:,.0f} MB"),
+                ("Biot-Savart pairs", f"{self.pair_evaluations:.3g} (direct sum)"),
+                ("run time", f"about {_duration(self.run_time_s)} (direct sum at "
+                             f"{self.pair_rate_per_s:.3g} pairs/s measured here)")]
+
+
+def _duration(s: float) -> str:
+    if s < 90:
+        return f"{s:.0f} s"
+    if s < 5400:
+        return f"{s / 60:.0f} min"
+    return f"{s / 3600:.1f} h"
+
+
+def _rows_kept(spec, case: Case, steps: int) -> np.ndarray:
+    """Wake rows of one surface after each step, shape (steps,)."""
+    dt = case.time.dt
+    rows = np.arange(1, steps + 1, dtype=np.float64)
+    max_age = case.wake.max_age
+    if hasattr(spec, "wake_revolutions"):
+        max_age = min(max_age, spec.wake_revolutions * 60.0 / spec.rpm)
+    if math.isfinite(max_age):
+        rows = np.minimum(rows, math.floor(max_age / dt) + 2)
+    return rows
+
+
+def wake_sizes(case: Case) -> tuple[np.ndarray, np.ndarray]:
+    """Wake segments and particles after every step, summed over surfaces.
+
+    Parameters
+    ----------
+    case : Case
+        A resolved case (:func:`wakes.case.load_case`).
+
+    Returns
+    -------
+    segments, particles : ndarray of int, shape (steps,)
+
+    Examples
+    --------
+    >>> from wakes.case import load_case
+    >>> seg, par = wake_sizes(load_case("cases/survey-glider.toml"))  # doctest: +SKIP
+    >>> int(seg[-1])                                                   # doctest: +SKIP
+    """
+    from .aero.bodies import BODY_MODELS
+
+    steps = case.time.steps
+    seg = np.zeros(steps)
+    par = np.zeros(steps)
+    near = case.wake.near_wake_steps if case.wake.model == "particles" else None
+    for spec in case.bodies:
+        body = BODY_MODELS[spec.type](spec, case)
+        for s in body.surfaces(0.0):
+            n = s.te_nodes.shape[0] - 1
+            rows = _rows_kept(spec, case, steps)
+            rollup = getattr(spec, "rollup_age", float("inf"))
+            if math.isfinite(rollup):      # rotor blade: sheet rows, then b trailers per row
+                per_step = 6.0 * spec.rpm * case.time.dt
+                sheet = np.minimum(rows, max(1, math.ceil(rollup / per_step)) + 1)
+                far = rows - sheet
+                b = spec.inboard_trailers + 1
+                seg += (sheet * n + np.maximum(sheet - 1, 0) * (n + 1)
+                        + far * (b - 1) + far * b)
+            elif near is not None:         # particle wake behind a few filament rows
+                fil = np.minimum(rows, near)
+                seg += fil * n + np.maximum(fil - 1, 0) * (n + 1)
+                par += (rows - fil) * (2 * n + 1)
+            else:
+                seg += rows * n + np.maximum(rows - 1, 0) * (n + 1)
+    return seg.astype(np.int64), par.astype(np.int64)
+
+
+def wake_size_at(case: Case):
+    """A function ``size(step)`` giving the estimated wake elements after ``step`` steps.
+
+    Used by :class:`wakes.progress.ProgressBar`.
+
+    Examples
+    --------
+    >>> from wakes.case import load_case
+    >>> size = wake_size_at(load_case("cases/survey-glider.toml"))  # doctest: +SKIP
+    >>> size(10)                                                    # doctest: +SKIP
+    """
+    seg, par = wake_sizes(case)
+    total = seg + par
+
+    def size(step: int) -> int:
+        return int(total[min(max(step, 1), len(total)) - 1])
+    return size
+
+
+def measure_pair_rate(n: int = 600) -> float:
+    """Biot–Savart pairs per second of :func:`wakes.induce` (direct sum) on this machine.
+
+    Times ``n`` filament segments acting on ``n`` targets after one warm-up
+    call (which also loads or compiles the kernel).
+    """
+    from .elements import Filaments
+    from .induction.api import induce
+
+    rng = np.random.default_rng(7)
+    nodes = rng.random((n + 1, 3))
+    seg = np.stack([np.arange(n), np.arange(1, n + 1)], axis=1)
+    fil = Filaments(nodes, seg, np.ones(n), 0.01)
+    targets = rng.random((n, 3))
+    induce([fil], targets, method="direct")
+    best = float("inf")
+    for _ in range(3):
+        start = time.perf_counter()
+        induce([fil], targets, method="direct")
+        best = min(best, time.perf_counter() - start)
+    return n * n / max(best, 1e-9)
+
+
+def estimate_case(case: Case, *, pair_rate: float | None = None) -> Estimate:
+    """Estimate wake size, memory and run time of a case without running it.
+
+    Parameters
+    ----------
+    case : Case
+        A resolved case (:func:`wakes.case.load_case`).
+    pair_rate : float, optional
+        Biot–Savart pairs per second; measured with
+        :func:`measure_pair_rate` when not given.
+
+    Returns
+    -------
+    Estimate
+
+    Examples
+    --------
+    >>> from wakes.case import load_case
+    >>> est = estimate_case(load_case("cases/survey-glider.toml"))  # doctest: +SKIP
+    >>> est.final_segments, est.run_time_s                           # doctest: +SKIP
+    """
+    from .aero.bodies import BODY_MODELS
+
+    seg, par = wake_sizes(case)
+    surfaces = []
+    for spec in case.bodies:
+        surfaces += BODY_MODELS[spec.type](spec, case).surfaces(0.0)
+    unknowns = sum(s.n_unknowns for s in surfaces)
+    eval_pts = unknowns
+    nodes = seg  # a lattice has about one node per segment pair; one target per segment is an upper bound
+    targets = eval_pts + (nodes + par if case.wake.motion == "free" else 0)
+    # per step: the surfaces see the wake, and a free wake sees the wake and the surfaces
+    pairs = float(np.sum(targets * (seg + par + unknowns)))
+    pairs += float(np.sum(par * (seg + par))) * 3.0  # velocity gradient for stretching: ~3x the work
+    rate = pair_rate if pair_rate is not None else measure_pair_rate()
+    total = seg + par
+    peak = int(total.max()) if len(total) else 0
+    memory = (BASE_MEMORY_MB + (int(seg.max()) * BYTES_PER_SEGMENT
+                                + int(par.max()) * BYTES_PER_PARTICLE) / 1e6
+              + 3 * 8 * eval_pts * unknowns * 2 / 1e6)  # influence matrices (eval and load points)
+    return Estimate(steps=case.time.steps, dt_s=case.time.dt, surfaces=len(surfaces),
+                    bound_unknowns=unknowns, final_segments=int(seg[-1]), final_particles=int(par[-1]),
+                    peak_elements=peak, memory_mb=memory, pair_evaluations=pairs,
+                    pair_rate_per_s=rate,
+                    run_time_s=pairs / rate + STEP_OVERHEAD_S * case.time.steps * len(surfaces))
