@@ -32,9 +32,12 @@ from .aero.wake import WakeSettings, WakeSheet
 from .case import Case
 from .dynamics import stretching_rate
 from .elements import Particles
-from .errors import NumericalError
+from .errors import NumericalError, WakesError
 from .induction.api import induce
+from .io.atomic import write_text
+from .io.checkpoint import LoopState
 from .io.tables import write_json, write_table
+from .watchdog import RunControl, Watchdog
 
 
 def _version() -> str:
@@ -82,6 +85,9 @@ class Run:
     summary: dict
     wake: dict = field(repr=False)
     wall_time_s: float = 0.0
+    status: str = "finished"
+    message: str = ""
+    resume_state: LoopState | None = field(default=None, repr=False)
 
     def write(self, out_dir) -> list[Path]:
         """Write the run folder: loads.csv, sections.csv, summary.json, case.toml and the wake.
@@ -98,7 +104,7 @@ class Run:
         header = (f"Resolved case written by wakes {_version()}"
                   + (f" (revision {revision})" if revision else "")
                   + f"; every default filled in.\nSource: {self.case.source}")
-        paths[3].write_text(self.case.to_toml(header), encoding="utf-8")
+        write_text(paths[3], self.case.to_toml(header))
         seg, par = wake_tables(self.wake) if self.case.output.wake else (pd.DataFrame(), pd.DataFrame())
         for name, table in (("wake_segments.csv", seg), ("wake_particles.csv", par)):
             if len(table):
@@ -173,7 +179,8 @@ class _InfluenceCache:
         return self._value
 
 
-def run_case(case: Case, *, progress=None) -> Run:
+def run_case(case: Case, *, progress=None, control: RunControl | None = None,
+             resume: LoopState | None = None) -> Run:
     """Run a resolved case.
 
     Parameters
@@ -182,6 +189,11 @@ def run_case(case: Case, *, progress=None) -> Run:
         From :func:`wakes.case.load_case`.
     progress : callable, optional
         Called as ``progress(step, steps)`` after every step.
+    control : wakes.watchdog.RunControl, optional
+        Checkpoints, stop requests (signals) and what a failed check does;
+        default: no checkpoints, a failed check raises.
+    resume : wakes.io.checkpoint.LoopState, optional
+        Go on from this state (read from a checkpoint) instead of step 0.
 
     Returns
     -------
@@ -189,10 +201,18 @@ def run_case(case: Case, *, progress=None) -> Run:
         Loads per step, final sections, summary and final wake. Nothing is
         written; call :meth:`Run.write`.
 
+    With ``control.keep_partial`` a failed check or a stop request ends
+    the loop early instead: the returned run holds the steps done, its
+    ``status`` ("interrupted", "unstable", "memory" or "failed") and
+    ``message`` say why, and ``resume_state`` is the state to go on from.
+
     Raises
     ------
     wakes.errors.NumericalError
-        If a circulation solve does not converge or the wake blows up.
+        If a circulation solve does not converge or the wake blows up
+        (:class:`wakes.watchdog.UnstableRunError`).
+    wakes.budget.MemoryBudgetError
+        If the wake outgrows the memory budget.
     wakes.aero.polars.PolarRangeError
         If a section leaves its polar table.
 
@@ -220,59 +240,118 @@ def run_case(case: Case, *, progress=None) -> Run:
     gamma_prev = None
     rows = []
     strips = []
-    for step in range(steps):
-        t = step * dt
-        layout = [(b, b.surfaces(t)) for b in bodies]
-        surfaces = [s for _, ss in layout for s in ss]
-        eval_pts = np.vstack([s.eval_points() for s in surfaces])
-        vlm = [s for s in surfaces if not s.lifting_line]
-        load_pts = (np.vstack([s.bound_midpoints().reshape(-1, 3) for s in vlm]) if vlm
-                    else np.zeros((0, 3)))
-        wake_src = [e for w in wakes for e in w.sources(t, at_surfaces=True)]
-        v_wake = induce(wake_src, np.vstack([eval_pts, load_pts]), **method)
-        motion_eval = np.vstack([s.velocity_of(s.eval_points()) for s in surfaces])
-        onset = v_inf - motion_eval + v_wake[:eval_pts.shape[0]]
-        aic, aic_load = cache.get(surfaces, eval_pts, load_pts)
-        sol = solve_circulation(surfaces, aic, onset, gamma, solver, step=step, time=t,
-                                linear_cache=linear)
-        gamma = np.concatenate([g.ravel() for g in sol.gamma])
+    control = control if control is not None else RunControl()
+    watch = Watchdog.for_surfaces(v_inf, [s for _, ss in layout for s in ss], control.max_memory)
+    origin, first = (0, 0.0), 0
+    if resume is not None:
+        resume.restore(wakes, cache)
+        origin, first = resume.origin, resume.step
+        gamma, gamma_prev, rows = resume.gamma, resume.gamma_prev, list(resume.done_rows())
+    status, message, good, wake_time = "finished", "", None, None
+    try:
+        for step in range(first, steps):
+            t = origin[1] + (step - origin[0]) * dt
+            good, done_strips = LoopState.capture(step, t, origin, wakes, gamma, gamma_prev, rows,
+                                                  cache), strips
+            watch.check_memory(step, t, wakes)
+            strips, gamma = _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear,
+                                  solver, settings, v_inf, dt, rho, steps, method, watch)
+            gamma_prev = gamma
+            if progress is not None:
+                progress(step + 1, steps)
+            done = step + 1
+            if done < steps and (control.stop_requested or control.checkpoint_due(done)):
+                good = LoopState.capture(done, origin[1] + (done - origin[0]) * dt, origin, wakes,
+                                         gamma, gamma_prev, rows, cache)
+                if control.save is not None:
+                    control.save(good)
+                if control.stop_requested:
+                    status, message = "interrupted", f"stopped after step {step} (t = {t:.6g} s)"
+                    wake_time = good.time
+                    break
+    except WakesError as exc:
+        if not control.keep_partial or good is None:
+            raise
+        from .budget import MemoryBudgetError
+        status = ("unstable" if isinstance(exc, NumericalError)
+                  else "memory" if isinstance(exc, MemoryBudgetError) else "failed")
+        message = str(exc)
+        good.restore(wakes)
+        rows, strips, wake_time = good.done_rows(), done_strips, good.time
+        t = rows[-1]["time_s"] if rows else good.time
+    steps_done = len(rows) // max(len(bodies), 1)
+    layout = [(b, b.surfaces(t)) for b in bodies]
+    surfaces = [s for _, ss in layout for s in ss]
+    run = _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t,
+                    t if wake_time is None else wake_time, started, steps_done)
+    run.status, run.message = status, message
+    run.resume_state = good if status != "finished" else None
+    return run
 
-        strips = _strip_loads(surfaces, sol, gamma, aic_load, v_wake[eval_pts.shape[0]:], v_inf,
-                              gamma_prev, dt, rho)
-        drags = _trefftz(layout, strips, v_inf, rho)
-        k = 0
-        n_seg = sum(e.segment_count for e in wake_src if not isinstance(e, Particles))
-        n_par = sum(e.count for e in wake_src if isinstance(e, Particles))
-        for body, ss in layout:
-            mine = strips[k:k + len(ss)]
-            row = {"step": step, "time_s": t, "body": body.name}
-            row.update(body.loads_row(mine, sum(drags[k:k + len(ss)])))
-            row.update({"iterations": sol.iterations, "residual": sol.residual,
-                        "wake_segments": n_seg, "wake_particles": n_par})
-            rows.append(row)
-            k += len(ss)
-        if step < steps - 1:
-            _advance_wakes(wakes, surfaces, sol.gamma, settings, v_inf, dt, t, method)
-            new_surfaces = [s for b in bodies for s in b.surfaces(t + dt)]
-            for w, s, g in zip(wakes, new_surfaces, sol.gamma):
-                w.shed(s.te_nodes, g[-1], t + dt)
-                w.age_out(t + dt)
-        gamma_prev = gamma
-        if progress is not None:
-            progress(step + 1, steps)
 
+def _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear, solver, settings,
+          v_inf, dt, rho, steps, method, watch):
+    """One step of :func:`run_case` at time ``t``; appends its loads rows.
+
+    Returns the step's strip loads and circulation.
+    Wakes are changed only by replacing their arrays, after every check.
+    """
+    layout = [(b, b.surfaces(t)) for b in bodies]
+    surfaces = [s for _, ss in layout for s in ss]
+    eval_pts = np.vstack([s.eval_points() for s in surfaces])
+    vlm = [s for s in surfaces if not s.lifting_line]
+    load_pts = (np.vstack([s.bound_midpoints().reshape(-1, 3) for s in vlm]) if vlm
+                else np.zeros((0, 3)))
+    wake_src = [e for w in wakes for e in w.sources(t, at_surfaces=True)]
+    v_wake = induce(wake_src, np.vstack([eval_pts, load_pts]), **method)
+    motion_eval = np.vstack([s.velocity_of(s.eval_points()) for s in surfaces])
+    onset = v_inf - motion_eval + v_wake[:eval_pts.shape[0]]
+    aic, aic_load = cache.get(surfaces, eval_pts, load_pts)
+    sol = solve_circulation(surfaces, aic, onset, gamma, solver, step=step, time=t,
+                            linear_cache=linear)
+    watch.check_circulation(step, t, surfaces, sol.gamma)
+    gamma = np.concatenate([g.ravel() for g in sol.gamma])
+
+    strips = _strip_loads(surfaces, sol, gamma, aic_load, v_wake[eval_pts.shape[0]:], v_inf,
+                          gamma_prev, dt, rho)
+    drags = _trefftz(layout, strips, v_inf, rho)
+    k = 0
+    n_seg = sum(e.segment_count for e in wake_src if not isinstance(e, Particles))
+    n_par = sum(e.count for e in wake_src if isinstance(e, Particles))
+    for body, ss in layout:
+        mine = strips[k:k + len(ss)]
+        row = {"step": step, "time_s": t, "body": body.name}
+        row.update(body.loads_row(mine, sum(drags[k:k + len(ss)])))
+        row.update({"iterations": sol.iterations, "residual": sol.residual,
+                    "wake_segments": n_seg, "wake_particles": n_par})
+        rows.append(row)
+        k += len(ss)
+    if step < steps - 1:
+        _advance_wakes(wakes, surfaces, sol.gamma, settings, v_inf, dt, t, method, watch, step)
+        new_surfaces = [s for b in bodies for s in b.surfaces(t + dt)]
+        for w, s, g in zip(wakes, new_surfaces, sol.gamma):
+            w.shed(s.te_nodes, g[-1], t + dt)
+            w.age_out(t + dt)
+    return strips, gamma
+
+
+def _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t, wake_time, started,
+              steps_done) -> Run:
+    """The run's tables and summary: loads rows, the strips of the last step done (at ``t``)
+    and the wakes as they are at ``wake_time``."""
+    steps, dt = case.time.steps, case.time.dt
     loads = pd.DataFrame(rows)
     k = 0
     tables = []
     for body, ss in layout:
         tables.append(body.section_table(strips[k:k + len(ss)]))
         k += len(ss)
-    sections = pd.concat(tables, ignore_index=True)
-    summary = {"bodies": {b.name: b.summary(loads) for b in bodies},
+    sections = pd.concat(tables, ignore_index=True) if tables else pd.DataFrame()
+    summary = {"bodies": {b.name: b.summary(loads) for b in bodies} if rows else {},
                "case": case.to_dict(), "version": _version(),
-               "run": {"steps": steps, "dt_s": dt, "final_time_s": (steps - 1) * dt,
+               "run": {"steps": steps, "steps_done": steps_done, "dt_s": dt, "final_time_s": t,
                        "wall_time_s": _time.perf_counter() - started, "revision": _revision()}}
-    final_wake = {s.name: w.sources(t) for s, w in zip(surfaces, wakes)}
+    final_wake = {s.name: w.sources(wake_time) for s, w in zip(surfaces, wakes)}
     wall = _time.perf_counter() - started
     summary["run"]["wall_time_s"] = wall
     return Run(case, loads, sections, summary, final_wake, wall)
@@ -317,11 +396,12 @@ def _trefftz(layout, strips, v_inf, rho):
     return drags
 
 
-def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method):
+def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method, watch=None, step=0):
     """Move every wake node and particle one step (free or frozen), stretching particles.
 
     ``method`` holds the keyword arguments ``method`` and ``tolerance`` of
-    :func:`wakes.induce`.
+    :func:`wakes.induce`. ``watch`` (:class:`wakes.watchdog.Watchdog`)
+    checks the velocities before anything moves.
     """
     nodes = np.vstack([w.rows.reshape(-1, 3) for w in wakes])
     parts = [w.positions for w in wakes]
@@ -340,7 +420,11 @@ def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method):
             u_par += vel
             alpha = np.vstack([w.strengths for w in wakes])
             stretch = stretching_rate(settings.stretching, alpha, grad)
-    if not (np.isfinite(u_nodes).all() and np.isfinite(u_par).all()):
+    if stretch is not None and not np.isfinite(stretch).all():
+        u_par = np.where(np.isfinite(stretch), u_par, np.nan)   # reported as a non-finite particle
+    if watch is not None:
+        watch.check_velocities(step, t, wakes, [s.name for s in surfaces], u_nodes, u_par)
+    elif not (np.isfinite(u_nodes).all() and np.isfinite(u_par).all()):
         raise NumericalError(f"the wake velocity is not finite at t = {t:.6g} s; likely cause: a time "
                              "step too large for the wake spacing or a core radius too small "
                              "([time] dt, [wake] core_radius)")
