@@ -219,7 +219,17 @@ def load_polar_table(path, *, out_of_range: str = "error") -> TablePolar:
         Missing file or columns, non-numeric values, fewer than two rows or
         angles that do not increase strictly; the message names the file.
     """
-    cols = read_numeric_table(path, POLAR_COLUMNS, what="polar table")
+    cols = read_numeric_table(path, POLAR_COLUMNS, what="polar table", with_lines=True)
+    alpha, line = cols["alpha_deg"], cols["line"]
+    if alpha.shape[0] < 2:
+        raise CaseError(f"polar table '{path}', line {line[0]}: a single data row; at least two "
+                        "angles are needed to interpolate")
+    step = np.diff(alpha)
+    if (step <= 0.0).any():
+        k = int(np.flatnonzero(step <= 0.0)[0]) + 1
+        what = "repeats" if step[k - 1] == 0.0 else "is below"
+        raise CaseError(f"polar table '{path}', line {line[k]}: alpha_deg = {alpha[k]:g} {what} "
+                        f"the angle of line {line[k - 1]}; angles must increase strictly")
     try:
         return TablePolar(np.radians(cols["alpha_deg"]), cols["cl"], cols["cd"],
                           name=Path(path).name, out_of_range=out_of_range)

@@ -15,21 +15,34 @@ import numpy as np
 import pandas as pd
 
 from ..errors import CaseError
+from .atomic import write_text
 
 FLOAT_FORMAT = "%.10g"
 
 
-def read_numeric_table(path, required: tuple[str, ...], *, what: str = "table") -> dict[str, np.ndarray]:
+MAX_TABLE_BYTES = 16 * 2 ** 20   # largest input table read [B]; a polar or points file is far smaller
+MAX_TABLE_ROWS = 100_000
+
+
+def read_numeric_table(path, required: tuple[str, ...], *, what: str = "table",
+                       with_lines: bool = False) -> dict[str, np.ndarray]:
     """Read a numeric CSV table with a header row.
+
+    The file is read defensively: at most ``MAX_TABLE_BYTES`` bytes and
+    ``MAX_TABLE_ROWS`` rows, UTF-8 text, every data line with as many
+    comma-separated fields as the header and a finite number in every
+    required column; a problem names the line of the file.
 
     Parameters
     ----------
     path : str or Path
-        CSV file; lines starting with ``#`` are comments.
+        CSV file; text from ``#`` to the end of a line is a comment.
     required : tuple of str
         Column names that must be present (others are ignored).
     what : str
         What the table is, for messages (e.g. ``"polar table"``).
+    with_lines : bool
+        Also return ``"line"``: the file line number of every row.
 
     Returns
     -------
@@ -39,51 +52,77 @@ def read_numeric_table(path, required: tuple[str, ...], *, what: str = "table") 
     Raises
     ------
     wakes.errors.CaseError
-        If the file is missing or unreadable, a required column is missing,
-        the table is empty or a value is not a finite number.
+        If the file is missing, too large or unreadable, a required column is
+        missing, the table is empty or a line is malformed or holds a value
+        that is not a finite number.
     """
     p = Path(path)
     if not p.is_file():
         raise CaseError(f"{what} file '{p}' not found")
+    size = p.stat().st_size
+    if size > MAX_TABLE_BYTES:
+        raise CaseError(f"{what} '{p}': {size:,} bytes is too large; at most "
+                        f"{MAX_TABLE_BYTES:,} bytes are read")
     try:
-        frame = pd.read_csv(p, comment="#", skipinitialspace=True)
-    except (pd.errors.ParserError, pd.errors.EmptyDataError, UnicodeDecodeError) as exc:
-        first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
-        raise CaseError(f"{what} '{p}': cannot read it as CSV ({first})") from None
-    frame.columns = [str(c).strip() for c in frame.columns]
-    missing = [c for c in required if c not in frame.columns]
+        text = p.read_bytes().decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise CaseError(f"{what} '{p}': not UTF-8 text ({exc.reason} at byte {exc.start})") from None
+    except OSError as exc:
+        raise CaseError(f"{what} '{p}': cannot read it ({exc.strerror})") from None
+    header, rows, lines = None, [], []
+    for number, raw in enumerate(text.splitlines(), start=1):
+        line = raw.split("#", 1)[0].strip()
+        if not line:
+            continue
+        fields_ = [f.strip() for f in line.split(",")]
+        if header is None:
+            header = fields_
+            continue
+        if len(fields_) != len(header):
+            raise CaseError(f"{what} '{p}', line {number}: {len(fields_)} fields where the header "
+                            f"has {len(header)} ({raw.strip()[:60]!r})")
+        rows.append(fields_)
+        lines.append(number)
+        if len(rows) > MAX_TABLE_ROWS:
+            raise CaseError(f"{what} '{p}': more than {MAX_TABLE_ROWS:,} data rows")
+    header = header or []
+    missing = [c for c in required if c not in header]
     if missing:
         raise CaseError(f"{what} '{p}': missing column(s) {', '.join(missing)}; "
                         f"the header must name {', '.join(required)} "
-                        f"(found {', '.join(frame.columns) or 'none'})")
-    if len(frame) == 0:
+                        f"(found {', '.join(header) or 'none'})")
+    if not rows:
         raise CaseError(f"{what} '{p}': no data rows")
     out = {}
     for c in required:
-        col = pd.to_numeric(frame[c], errors="coerce").to_numpy(dtype=np.float64)
-        bad = ~np.isfinite(col)
-        if bad.any():
-            row = int(np.argmax(bad))
-            raise CaseError(f"{what} '{p}': column {c} must hold finite numbers; "
-                            f"data row {row + 1} has {frame[c].iloc[row]!r}")
+        j = header.index(c)
+        col = np.empty(len(rows))
+        for i, r in enumerate(rows):
+            try:
+                col[i] = float(r[j])
+            except ValueError:
+                col[i] = np.nan
+            if not np.isfinite(col[i]):
+                raise CaseError(f"{what} '{p}', line {lines[i]}: column {c} must hold finite "
+                                f"numbers; data row {i + 1} has {r[j][:40]!r}")
         out[c] = col
+    if with_lines:
+        out["line"] = np.asarray(lines, dtype=np.int64)
     return out
 
 
 def write_table(frame: pd.DataFrame, path) -> None:
-    """Write a results DataFrame as CSV (no index, ``FLOAT_FORMAT`` floats)."""
-    frame.to_csv(path, index=False, float_format=FLOAT_FORMAT)
+    """Write a results DataFrame as CSV (no index, ``FLOAT_FORMAT`` floats), atomically."""
+    write_text(path, frame.to_csv(index=False, float_format=FLOAT_FORMAT))
 
 
 def write_json(data: dict, path) -> None:
     """Write a strict JSON document (two-space indent).
 
     Infinite floats are written as the strings ``"inf"``/``"-inf"`` and NaN
-    as ``null``, so any JSON reader accepts the file.
+    as ``null``, so any JSON reader accepts the file. Written atomically.
     """
-    with open(path, "w", encoding="utf-8") as fh:
-        json.dump(_jsonable(data), fh, indent=2, allow_nan=False)
-        fh.write("\n")
+    write_text(path, json.dumps(_jsonable(data), indent=2, allow_nan=False) + "\n")
 
 
 def _jsonable(x):
