@@ -162,6 +162,9 @@ class OutputSpec:
     """[output]: what a run writes besides loads.csv, sections.csv and summary.json."""
 
     wake: bool = key(True, "write the final wake (wake_segments.csv, wake_particles.csv)", kind="bool")
+    checkpoint_every: int = key(0, "write a checkpoint to resume from every this many steps "
+                                "(0: only on interruption or instability)", kind="int",
+                                minimum=0, maximum=10 ** 9)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -418,8 +421,18 @@ def _convert(f, value, where, ctx):
     if kind == "path":
         if not isinstance(value, str) or not value:
             ctx.fail(f"{where} must be a file path string; got {value!r}")
+        if len(value) > MAX_PATH_CHARS or "\0" in value:
+            ctx.fail(f"{where} must be a file path of at most {MAX_PATH_CHARS} characters; "
+                     f"got {value[:40]!r}...")
         p = Path(value)
-        return str(p if p.is_absolute() else (ctx.base_dir / p).resolve())
+        if p.is_absolute():
+            return str(p)
+        full = (ctx.base_dir / p).resolve()
+        base = ctx.base_dir.resolve()
+        if not full.is_relative_to(base):
+            ctx.fail(f"{where} = {value!r} leads out of the case file's folder {base}; a relative "
+                     "path must stay inside it (give an absolute path to use a file elsewhere)")
+        return str(full)
     if kind == "table":
         default = f.default
         return _parse_section(type(default), value, where, ctx)
@@ -531,11 +544,18 @@ def _merge(base: dict, overrides: dict) -> dict:
     return out
 
 
+MAX_CASE_BYTES = 2 ** 20     # largest case file read [B]; real cases are a few kB
+MAX_PATH_CHARS = 4096
+
+
 def read_toml(path) -> dict:
-    """Read a TOML file; a syntax error names the file, line and column."""
+    """Read a TOML file (at most ``MAX_CASE_BYTES``); a syntax error names the file, line and column."""
     p = Path(path)
     if not p.is_file():
         raise CaseError(f"case file '{p}' not found")
+    if p.stat().st_size > MAX_CASE_BYTES:
+        raise CaseError(f"case file '{p}' is {p.stat().st_size:,} bytes; at most "
+                        f"{MAX_CASE_BYTES:,} bytes are read")
     try:
         with open(p, "rb") as fh:
             return tomllib.load(fh)
