@@ -22,8 +22,15 @@ from .errors import WakesError
 EXIT_USER_ERROR = 2
 
 
+class _Parser(argparse.ArgumentParser):
+    """Argument errors in one line (no usage block), exit status 2."""
+
+    def error(self, message):
+        self.exit(EXIT_USER_ERROR, f"{self.prog}: error: {message}\n")
+
+
 def _parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog="wakes", description="Aerodynamic wakes of wings and rotors with vortex methods.")
     sub = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
     run = sub.add_parser("run", help="run a case file and write its results folder",
@@ -32,6 +39,44 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("case", metavar="CASE", help="case file (TOML)")
     run.add_argument("--out", required=True, metavar="DIR", help="results folder (created)")
     run.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    run.add_argument("--overwrite", action="store_true",
+                     help="replace the files of an earlier run in DIR")
+
+    check = sub.add_parser("check", help="validate a case and estimate its cost, without running",
+                           description="Check CASE, print the resolved case and estimate the "
+                                       "wake size, memory and run time.")
+    check.add_argument("case", metavar="CASE", help="case file (TOML)")
+    check.add_argument("--quiet", action="store_true", help="print only the estimate")
+
+    new = sub.add_parser("new", help="write a commented template case that runs as written",
+                         description="Write a commented case file for a wing, lift rotor, "
+                                     "propeller or wind turbine (invented demo values).")
+    new.add_argument("kind", metavar="KIND", help="wing, rotor, propeller or turbine")
+    new.add_argument("file", metavar="FILE", help="case file to write (TOML)")
+    new.add_argument("--overwrite", action="store_true", help="replace an existing FILE")
+
+    probe = sub.add_parser("probe", help="velocity from a run's saved wake at points or on a plane",
+                           description="Sum the final wake of RUN_DIR at the points of a CSV "
+                                       "file (columns x_m, y_m, z_m) or on a grid in a plane; "
+                                       "write CSV (and .vts for planes).")
+    probe.add_argument("run_dir", metavar="RUN_DIR", help="run folder written by 'wakes run'")
+    where = probe.add_mutually_exclusive_group(required=True)
+    where.add_argument("--points", metavar="FILE.csv", help="CSV with columns x_m, y_m, z_m")
+    where.add_argument("--plane", metavar="AXIS=VALUE", help="plane normal to x, y or z, e.g. x=2.5")
+    probe.add_argument("--extent", metavar="A0:A1,B0:B1",
+                       help="plane ranges along its two in-plane axes in x, y, z order "
+                            "(default: the wake's extent plus 10 %%)")
+    probe.add_argument("--grid", default="41x41", metavar="NAxNB",
+                       help="plane points along the two in-plane axes (default: 41x41)")
+    probe.add_argument("--out", metavar="FILE.csv", help="table to write (default: in RUN_DIR)")
+    probe.add_argument("--overwrite", action="store_true", help="replace existing output files")
+
+    plot = sub.add_parser("plot", help="redraw the figures of a finished run",
+                          description="Draw loads, span or radial loading, the 3-D wake and, "
+                                      "for rotors, the tip-vortex path into RUN_DIR/plots.")
+    plot.add_argument("run_dir", metavar="RUN_DIR", help="run folder written by 'wakes run'")
+    plot.add_argument("--out", metavar="DIR", help="folder for the figures (default: RUN_DIR/plots)")
+    plot.add_argument("--overwrite", action="store_true", help="replace figures already there")
 
     verify = sub.add_parser("verify", help="run the classical checks and print their table",
                             description="Compute ring, segment, Lamb-Oseen and other classical "
@@ -60,21 +105,71 @@ def _parser() -> argparse.ArgumentParser:
 
 def _run(args) -> int:
     from .case import load_case
-    from .simulate import run_case
+    from .estimate import wake_size_at
+    from .progress import ProgressBar
+    from .runfolder import check_new_folder, result_table, run_to_folder
 
-    out = Path(args.out)
-    if out.exists() and not out.is_dir():
-        raise WakesError(f"--out {out}: exists and is not a folder")
+    out = check_new_folder(args.out, args.overwrite)
     case = load_case(args.case)
-    progress = None
-    if not args.quiet and sys.stderr.isatty():
-        def progress(step, steps):
-            print(f"\rstep {step}/{steps}", end="" if step < steps else "\n", file=sys.stderr)
-    run = run_case(case, progress=progress)
-    run.write(out)
+    bar = ProgressBar(case.time.dt, wake_size=wake_size_at(case), quiet=args.quiet)
+    run = run_to_folder(case, out, overwrite=args.overwrite, progress=bar)
     if not args.quiet:
-        print(run.short_report())
+        print(f"{case.title}: {case.time.steps} steps of {case.time.dt:.4g} s in {run.wall_time_s:.1f} s")
+        print(result_table(run.summary))
         print(f"results in {out}/")
+    return 0
+
+
+def _check(args) -> int:
+    from .case import load_case
+    from .estimate import estimate_case
+
+    case = load_case(args.case)
+    if not args.quiet:
+        print(case.to_toml(f"Resolved case of {args.case}: every default filled in."))
+    est = estimate_case(case)
+    width = max(len(q) for q, _ in est.table())
+    print(f"{case.title or args.case}: case is valid; estimate (no run):")
+    for quantity, value in est.table():
+        print(f"  {quantity.ljust(width)}  {value}")
+    return 0
+
+
+def _new(args) -> int:
+    from .templates import new_case
+
+    path = new_case(args.kind, args.file, overwrite=args.overwrite)
+    print(f"wrote {path}; check it with: wakes check {path}")
+    return 0
+
+
+def _probe(args) -> int:
+    from .probe import probe_plane, probe_points
+
+    if args.points is not None:
+        if args.extent is not None:
+            raise WakesError("--extent applies to --plane only")
+        table = probe_points(args.run_dir, args.points, out=args.out, overwrite=args.overwrite)
+        print(f"velocity at {len(table)} points written")
+        return 0
+    try:
+        grid = tuple(int(g) for g in args.grid.lower().split("x"))
+    except ValueError:
+        grid = ()
+    if len(grid) != 2:
+        raise WakesError(f"--grid {args.grid!r}: accepted is NAxNB with two integers, e.g. 41x41")
+    table = probe_plane(args.run_dir, args.plane, extent=args.extent, grid=grid, out=args.out,
+                        overwrite=args.overwrite)
+    print(f"velocity at {len(table)} plane points written (CSV and .vts)")
+    return 0
+
+
+def _plot(args) -> int:
+    from .plots import plot_run
+
+    paths = plot_run(args.run_dir, out=args.out, overwrite=args.overwrite)
+    for p in paths:
+        print(p)
     return 0
 
 
@@ -119,6 +214,8 @@ def main(argv=None) -> int:
     try:
         if args.command == "run":
             return _run(args)
+        if args.command in ("check", "new", "probe", "plot"):
+            return {"check": _check, "new": _new, "probe": _probe, "plot": _plot}[args.command](args)
         if args.command == "verify":
             return _verify(args)
         if args.command == "sweep":

@@ -106,7 +106,7 @@ def plot_sections(run, folder) -> list[Path]:
             keys = ["body"] + (["blade"] if "blade" in mine and mine["blade"].notna().any()
                                and marker == "r_over_R" else []) + (["surface"] if marker == "eta" else [])
             for label, part in mine.groupby(keys, sort=False):
-                label = " ".join(str(v) for v in (label if isinstance(label, tuple) else (label,)))
+                label = " ".join(dict.fromkeys(str(v) for v in (label if isinstance(label, tuple) else (label,))))
                 part = part.sort_values(xcol)
                 a1.plot(part[xcol], part["gamma_m2_s"], marker=".", label=label)
                 if "cl" in part:

@@ -122,8 +122,8 @@ def probe_points(run_dir: str | os.PathLike, points_file: str | os.PathLike, *,
     from .runfolder import read_run
 
     run = read_run(run_dir)
-    target = _check_out(Path(out) if out is not None else run.path / "probe_points.csv", overwrite)
     cols = read_numeric_table(points_file, ("x_m", "y_m", "z_m"), what="points file")
+    target = _check_out(Path(out) if out is not None else run.path / "probe_points.csv", overwrite)
     table = velocity_at(run, np.stack([cols["x_m"], cols["y_m"], cols["z_m"]], axis=1))
     from .io.tables import write_table
     write_table(table, target)
