@@ -4,8 +4,29 @@
 run folder (loads.csv, sections.csv, summary.json, case.toml and the final
 wake). A mistake a user can make -- a malformed or misspelt case file, a
 bad value, a polar table that does not cover the angles met -- ends with
-exit status 2 and one line naming the file, the key and what is accepted;
-nothing is written to DIR unless the run finishes.
+exit status 2 and one line naming the file, the key and what is accepted
+(``--debug`` shows the traceback instead).
+
+Runs never lose work. Exit statuses of ``wakes run``:
+
+* 0 -- finished;
+* 2 -- a mistake in the input (nothing run), or another such error met
+  during the run (checkpoint and outputs so far written);
+* 3 -- the watchdog stopped an unstable run (non-finite values, runaway
+  wake speed, circulation not converging): the message names step, time,
+  element, likely cause and remedy; the last good state is in
+  ``DIR/checkpoints/`` and the outputs so far in DIR;
+* 4 -- memory budget: refused before the run (estimate above the
+  available memory or ``--max-memory``), or the wake outgrew it (checkpoint
+  and outputs so far written);
+* 130 / 143 -- stopped by SIGINT (Ctrl-C) / SIGTERM at the end of the
+  current step, checkpoint and outputs so far written (a second signal
+  stops at once).
+
+``wakes run --resume DIR`` goes on from the newest checkpoint (``--dt``
+sets a smaller step, e.g. after status 3); the finished result equals an
+uninterrupted run's bit for bit on the same machine. ``[output]
+checkpoint_every`` in the case writes checkpoints periodically.
 
 The command only parses arguments and calls the same functions a Python
 user calls (:func:`wakes.case.load_case`, :func:`wakes.simulate.run_case`).
@@ -36,8 +57,16 @@ def _parser() -> argparse.ArgumentParser:
     run = sub.add_parser("run", help="run a case file and write its results folder",
                          description="Run a case file and write loads.csv, sections.csv, "
                                      "summary.json and the resolved case.toml to DIR.")
-    run.add_argument("case", metavar="CASE", help="case file (TOML)")
-    run.add_argument("--out", required=True, metavar="DIR", help="results folder (created)")
+    run.add_argument("case", metavar="CASE", nargs="?", help="case file (TOML)")
+    run.add_argument("--out", metavar="DIR", help="results folder (created)")
+    run.add_argument("--resume", metavar="RUN_DIR",
+                     help="go on from the newest checkpoint in RUN_DIR (no CASE or --out)")
+    run.add_argument("--dt", type=float, metavar="SECONDS",
+                     help="with --resume: a new (smaller) time step; the final time is kept")
+    run.add_argument("--max-memory", metavar="SIZE",
+                     help="refuse or stop the run beyond this memory, e.g. 4G or 512M "
+                          "(default: the memory available)")
+    run.add_argument("--debug", action="store_true", help="show tracebacks of errors")
     run.add_argument("--quiet", action="store_true", help="print nothing but errors")
     run.add_argument("--overwrite", action="store_true",
                      help="replace the files of an earlier run in DIR")
@@ -104,15 +133,36 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def _run(args) -> int:
+    from .budget import parse_size
     from .case import load_case
     from .estimate import wake_size_at
+    from .io.checkpoint import prepare_resume
     from .progress import ProgressBar
-    from .runfolder import check_new_folder, result_table, run_to_folder
+    from .runfolder import check_new_folder, result_table, write_run
+    from .watchdog import exit_status, run_guarded
 
-    out = check_new_folder(args.out, args.overwrite)
-    case = load_case(args.case)
+    max_memory = parse_size(args.max_memory) if args.max_memory is not None else None
+    if args.resume is not None:
+        if args.case is not None or args.out is not None:
+            raise WakesError(f"--resume {args.resume} goes on in that folder with its own case; "
+                             "give neither CASE nor --out")
+        out = Path(args.resume)
+        case, state = prepare_resume(out, dt=args.dt)
+    else:
+        if args.case is None or args.out is None:
+            raise WakesError("wakes run needs CASE and --out DIR, or --resume RUN_DIR")
+        if args.dt is not None:
+            raise WakesError("--dt applies with --resume only; set [time] dt in the case file")
+        out = check_new_folder(args.out, args.overwrite)
+        case, state = load_case(args.case), None
     bar = ProgressBar(case.time.dt, wake_size=wake_size_at(case), quiet=args.quiet)
-    run = run_to_folder(case, out, overwrite=args.overwrite, progress=bar)
+    run = run_guarded(case, out, progress=bar, max_memory=max_memory, resume=state,
+                      write=lambda r, o: write_run(r, o, plots=r.status == "finished"))
+    status = exit_status(run)
+    if status:
+        print(f"wakes: {run.status}: {run.message}; the last good state and the outputs so far "
+              f"are in {out}/ (go on with: wakes run --resume {out})", file=sys.stderr)
+        return status
     if not args.quiet:
         print(f"{case.title}: {case.time.steps} steps of {case.time.dt:.4g} s in {run.wall_time_s:.1f} s")
         print(result_table(run.summary))
@@ -210,7 +260,13 @@ def _sweep(args) -> int:
 
 def main(argv=None) -> int:
     """Entry point of the ``wakes`` console script; returns the exit status."""
-    args = _parser().parse_args(argv)
+    parser = _parser()
+    args = parser.parse_args(argv)
+    if args.command == "run" and args.resume is None and (args.case is None or args.out is None):
+        parser.error("wakes run needs CASE and --out DIR, or --resume RUN_DIR")
+    from .budget import MemoryBudgetError
+    from .watchdog import EXIT_MEMORY
+
     try:
         if args.command == "run":
             return _run(args)
@@ -221,8 +277,10 @@ def main(argv=None) -> int:
         if args.command == "sweep":
             return _sweep(args)
     except WakesError as exc:
+        if getattr(args, "debug", False):
+            raise
         print(f"wakes: error: {exc}", file=sys.stderr)
-        return EXIT_USER_ERROR
+        return EXIT_MEMORY if isinstance(exc, MemoryBudgetError) else EXIT_USER_ERROR
     except KeyboardInterrupt:
         print("wakes: interrupted; nothing written", file=sys.stderr)
         return 130

@@ -88,6 +88,7 @@ class Run:
     status: str = "finished"
     message: str = ""
     resume_state: LoopState | None = field(default=None, repr=False)
+    stop_signal: int | None = None
 
     def write(self, out_dir) -> list[Path]:
         """Write the run folder: loads.csv, sections.csv, summary.json, case.toml and the wake.
@@ -270,11 +271,11 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
                     wake_time = good.time
                     break
     except WakesError as exc:
-        if not control.keep_partial or good is None:
-            raise
         from .budget import MemoryBudgetError
         status = ("unstable" if isinstance(exc, NumericalError)
                   else "memory" if isinstance(exc, MemoryBudgetError) else "failed")
+        if not control.keep_partial or good is None or (status == "failed" and not good.n_rows):
+            raise  # nothing done worth keeping
         message = str(exc)
         good.restore(wakes)
         rows, strips, wake_time = good.done_rows(), done_strips, good.time
@@ -343,7 +344,7 @@ def _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t, wake_time,
     loads = pd.DataFrame(rows)
     k = 0
     tables = []
-    for body, ss in layout:
+    for body, ss in layout if strips else ():
         tables.append(body.section_table(strips[k:k + len(ss)]))
         k += len(ss)
     sections = pd.concat(tables, ignore_index=True) if tables else pd.DataFrame()

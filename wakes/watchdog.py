@@ -174,3 +174,76 @@ class RunControl:
         finally:
             for s, h in old.items():
                 signal.signal(s, h)
+
+
+EXIT_UNSTABLE = 3      # the watchdog stopped an unstable run (checkpoint and outputs so far written)
+EXIT_MEMORY = 4        # the run would exceed, or has outgrown, the memory budget
+EXIT_FAILED = 2        # another error a user can cause met during the run (checkpoint written)
+
+
+def exit_status(run) -> int:
+    """The ``wakes run`` exit status of a run: 0 finished, 128 + signal when interrupted."""
+    if run.status == "finished":
+        return 0
+    if run.status == "interrupted":
+        return 128 + int(run.stop_signal or signal.SIGINT)
+    return {"unstable": EXIT_UNSTABLE, "memory": EXIT_MEMORY}.get(run.status, EXIT_FAILED)
+
+
+def run_guarded(case, out, *, write, progress=None, max_memory: int | None = None, resume=None):
+    """Run a case so that no work is lost: budget check, checkpoints, signals, partial outputs.
+
+    Parameters
+    ----------
+    case : wakes.case.Case
+        The resolved case.
+    out : path-like
+        The run folder (created); checkpoints go to ``out/checkpoints``.
+    write : callable
+        ``write(run, out)`` writes a (possibly partial) run's outputs.
+    progress : callable, optional
+        ``progress(step, steps)``.
+    max_memory : int, optional
+        Memory budget [B] (default: the memory available).
+    resume : wakes.io.checkpoint.LoopState, optional
+        State to go on from (:func:`wakes.io.checkpoint.prepare_resume`).
+
+    Returns
+    -------
+    wakes.simulate.Run
+        Its ``status`` is "finished", "interrupted" (SIGINT/SIGTERM: the
+        current step was finished), "unstable", "memory" or "failed"; in
+        every case but "finished" the newest checkpoint holds the last good
+        state, and the outputs of the steps done are written. A finished
+        run's checkpoints are removed.
+
+    Raises
+    ------
+    wakes.budget.MemoryBudgetError
+        Before the run, if its estimated peak memory exceeds the budget.
+    """
+    from pathlib import Path
+
+    from .budget import check_budget
+    from .io.checkpoint import remove_checkpoints, write_checkpoint
+    from .simulate import run_case
+
+    check_budget(case, max_memory)
+    out = Path(out)
+    case_toml = case.to_toml()
+
+    def save(state):
+        write_checkpoint(out, state, case_toml, case.source)
+
+    control = RunControl(checkpoint_every=case.output.checkpoint_every, save=save,
+                         keep_partial=True, max_memory=max_memory)
+    with control.catch_signals():
+        run = run_case(case, progress=progress, control=control, resume=resume)
+    run.stop_signal = control.stop_signal
+    if run.status not in ("finished", "interrupted") and run.resume_state is not None:
+        save(run.resume_state)
+    if len(run.loads):
+        write(run, out)
+    if run.status == "finished":
+        remove_checkpoints(out)
+    return run

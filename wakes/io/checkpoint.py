@@ -271,3 +271,49 @@ def case_from_checkpoint(case_toml: str, source: str, overrides: dict | None = N
     if overrides:
         data = _merge(data, overrides)
     return parse_case(data, source=source, base_dir=Path(source).resolve().parent)
+
+
+def prepare_resume(run_dir, dt: float | None = None):
+    """The case and loop state to go on from the newest checkpoint of ``run_dir``.
+
+    Parameters
+    ----------
+    run_dir : path-like
+        A run folder holding ``checkpoints/``.
+    dt : float, optional
+        A new time step [s] (e.g. smaller after the run went unstable). The
+        run then still ends at the final time of the stored case: the step
+        count is raised to reach it and time goes on from the checkpoint's.
+        The first step's unsteady term sees the circulation of the old
+        step, taken ``dt`` earlier.
+
+    Returns
+    -------
+    case : wakes.case.Case
+    state : LoopState
+    """
+    state, text, source, _ = newest_checkpoint(run_dir)
+    overrides = None
+    if dt is not None:
+        if not (isinstance(dt, (int, float)) and dt > 0.0 and np.isfinite(dt)):
+            raise CheckpointError(f"--dt must be a positive number of seconds; got {dt!r}")
+        old = tomllib.loads(text)["time"]
+        step0, t0 = state.origin
+        t_end = t0 + (int(old["steps"]) - 1 - step0) * float(old["dt"])
+        remaining = max(int(np.ceil((t_end - state.time) / dt - 1e-9)), 0)
+        overrides = {"time": {"dt": float(dt), "steps": state.step + remaining + 1}}
+        state.origin = (state.step, state.time)
+    case = case_from_checkpoint(text, source, overrides)
+    if state.step >= case.time.steps:
+        raise CheckpointError(f"--resume {run_dir}: the checkpoint is at step {state.step} of "
+                              f"{case.time.steps}; nothing is left to run")
+    return case, state
+
+
+def remove_checkpoints(run_dir) -> None:
+    """Delete the checkpoints of a run folder (after the run has finished)."""
+    for p in list_checkpoints(run_dir):
+        p.unlink(missing_ok=True)
+    folder = Path(run_dir) / CHECKPOINT_FOLDER
+    if folder.is_dir() and not any(folder.iterdir()):
+        folder.rmdir()
