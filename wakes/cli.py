@@ -94,7 +94,8 @@ def _parser() -> argparse.ArgumentParser:
     where.add_argument("--plane", metavar="AXIS=VALUE", help="plane normal to x, y or z, e.g. x=2.5")
     probe.add_argument("--extent", metavar="A0:A1,B0:B1",
                        help="plane ranges along its two in-plane axes in x, y, z order "
-                            "(default: the wake's extent plus 10 %%)")
+                            "(default: the wake's extent plus 10 %%); write --extent=-2:2,-1:1 "
+                            "when it starts with a minus")
     probe.add_argument("--grid", default="41x41", metavar="NAxNB",
                        help="plane points along the two in-plane axes (default: 41x41)")
     probe.add_argument("--out", metavar="FILE.csv", help="table to write (default: in RUN_DIR)")

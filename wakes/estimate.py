@@ -141,8 +141,8 @@ def wake_sizes(case: Case) -> tuple[np.ndarray, np.ndarray]:
                 b = spec.inboard_trailers + 1
                 seg += (sheet * n + np.maximum(sheet - 1, 0) * (n + 1)
                         + far * (b - 1) + far * b)
-            elif near is not None:         # particle wake behind a few filament rows
-                fil = np.minimum(rows, near)
+            elif near is not None:         # particle wake behind near_wake_steps filament rings
+                fil = np.minimum(rows, near + 1)
                 seg += fil * n + np.maximum(fil - 1, 0) * (n + 1)
                 par += (rows - fil) * (2 * n + 1)
             else:
