@@ -1,0 +1,171 @@
+"""Runs that never lose work: checkpoints, bit-exact resume, watchdog stops, signals, kills."""
+
+import json
+import os
+import signal
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import wakes.watchdog as watchdog
+from wakes.case import parse_case
+from wakes.io.checkpoint import list_checkpoints, newest_checkpoint, prepare_resume, read_checkpoint
+from wakes.simulate import run_case
+from wakes.watchdog import EXIT_UNSTABLE, RunControl, UnstableRunError, run_guarded
+
+TINY = """title = "tiny"
+[freestream]
+speed = 10.0
+angle_of_attack = 5.0
+[bodies.wing]
+type = "wing"
+model = "lifting-line"
+span = 6.0
+chord = 1.0
+spanwise_panels = 6
+[wake]
+model = "particles"
+near_wake_steps = 3
+[time]
+dt = 0.025
+steps = {steps}
+[output]
+checkpoint_every = {every}
+"""
+
+
+def _case(steps=12, every=0):
+    import tomllib
+    return parse_case(tomllib.loads(TINY.format(steps=steps, every=every)))
+
+
+def _write(run, out):
+    run.write(out)
+
+
+def test_interrupt_and_resume_equal_an_uninterrupted_run_bit_for_bit(tmp_path):
+    case = _case(steps=12, every=5)
+    full = run_case(case)
+    control = RunControl(checkpoint_every=5, keep_partial=True,
+                         save=lambda st: __import__("wakes.io.checkpoint", fromlist=["x"])
+                         .write_checkpoint(tmp_path, st, case.to_toml(), case.source))
+
+    def stop_at_7(step, steps):
+        if step == 7:
+            control.stop_signal = signal.SIGINT
+
+    part = run_case(case, control=control, progress=stop_at_7)
+    assert part.status == "interrupted" and len(part.loads) == 7
+    assert [p.name for p in list_checkpoints(tmp_path)] == ["step-0000005.npz", "step-0000007.npz"]
+    resumed_case, state = prepare_resume(tmp_path)
+    assert state.step == 7
+    resumed = run_case(resumed_case, resume=state)
+    pd.testing.assert_frame_equal(full.loads, resumed.loads, check_exact=True)
+    pd.testing.assert_frame_equal(full.sections, resumed.sections, check_exact=True)
+    assert full.summary["bodies"] == resumed.summary["bodies"]
+
+
+def test_watchdog_stops_with_message_checkpoint_and_resumes_with_a_smaller_step(tmp_path, monkeypatch):
+    # Force the runaway-speed check to fire: with a limit of 1.001 times the
+    # freestream, any induced speed across the stream exceeds it at the first free step.
+    monkeypatch.setattr(watchdog, "SPEED_FACTOR", 1.001)
+    case = _case(steps=12)
+    run = run_guarded(case, tmp_path, write=_write)
+    assert run.status == "unstable"
+    assert watchdog.exit_status(run) == EXIT_UNSTABLE == 3
+    msg = run.message
+    for part in ("step ", "t = ", "surface 'wing", "likely cause", "smaller [time] dt"):
+        assert part in msg
+    state, _, _, _ = newest_checkpoint(tmp_path)
+    assert len(run.loads) == state.step > 0          # outputs so far = the steps before the stop
+    assert (tmp_path / "loads.csv").is_file() and (tmp_path / "summary.json").is_file()
+    monkeypatch.setattr(watchdog, "SPEED_FACTOR", 50.0)
+    resumed_case, state = prepare_resume(tmp_path, dt=0.0125)
+    assert resumed_case.time.dt == 0.0125
+    final_time = 11 * 0.025
+    done = run_case(resumed_case, resume=state)
+    assert done.status == "finished"
+    assert done.loads["time_s"].iloc[-1] == pytest.approx(final_time, abs=1e-12)
+    assert np.isfinite(done.loads["CL"]).all()
+
+
+def test_library_default_raises_the_watchdog_error(monkeypatch):
+    monkeypatch.setattr(watchdog, "SPEED_FACTOR", 1.001)
+    with pytest.raises(UnstableRunError, match="remedy"):
+        run_case(_case(steps=12))
+
+
+def _cli(args, **kw):
+    env = dict(os.environ, PYTHONUNBUFFERED="1")
+    return subprocess.Popen([sys.executable, "-m", "wakes.cli", *args], env=env,
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, **kw)
+
+
+def _summary_without_timing(path):
+    s = json.loads(Path(path).read_text())
+    s["run"].pop("wall_time_s")
+    return s
+
+
+def _wait_for_checkpoint(run_dir, proc, timeout=120.0):
+    start = time.monotonic()
+    while not list_checkpoints(run_dir):
+        assert proc.poll() is None, proc.communicate()
+        assert time.monotonic() - start < timeout
+        time.sleep(0.02)
+
+
+def test_sigint_mid_run_then_resume_equals_uninterrupted_cli_run(tmp_path):
+    case_file = tmp_path / "tiny.toml"
+    case_file.write_text(TINY.format(steps=30, every=1))
+    ref = _cli(["run", str(case_file), "--out", str(tmp_path / "ref"), "--quiet"])
+    assert ref.wait(300) == 0, ref.communicate()
+    proc = _cli(["run", str(case_file), "--out", str(tmp_path / "cut"), "--quiet"])
+    _wait_for_checkpoint(tmp_path / "cut", proc)
+    proc.send_signal(signal.SIGINT)
+    code = proc.wait(300)
+    err = proc.communicate()[1]
+    assert code == 128 + signal.SIGINT, err
+    assert "interrupted" in err and "--resume" in err and "Traceback" not in err
+    again = _cli(["run", "--resume", str(tmp_path / "cut"), "--quiet"])
+    assert again.wait(300) == 0, again.communicate()
+    assert (tmp_path / "ref" / "loads.csv").read_text() == (tmp_path / "cut" / "loads.csv").read_text()
+    assert _summary_without_timing(tmp_path / "ref" / "summary.json") == \
+        _summary_without_timing(tmp_path / "cut" / "summary.json")
+    assert not list_checkpoints(tmp_path / "cut")   # removed once the run finished
+
+
+def _parses(path: Path):
+    if path.suffix == ".csv":
+        pd.read_csv(path)
+    elif path.suffix == ".json":
+        json.loads(path.read_text())
+    elif path.suffix == ".npz":
+        read_checkpoint(path)
+    elif path.suffix == ".toml":
+        import tomllib
+        tomllib.loads(path.read_text())
+
+
+def test_sigkill_at_random_points_leaves_only_parseable_files(tmp_path):
+    case_file = tmp_path / "tiny.toml"
+    case_file.write_text(TINY.format(steps=30, every=1))
+    rng = np.random.default_rng(9)
+    for k, delay in enumerate(rng.uniform(0.0, 0.6, size=3)):
+        out = tmp_path / f"run{k}"
+        proc = _cli(["run", str(case_file), "--out", str(out), "--quiet"])
+        _wait_for_checkpoint(out, proc)
+        time.sleep(delay)
+        proc.kill()
+        proc.wait(60)
+        files = [p for p in out.rglob("*") if p.is_file()]
+        assert files
+        for p in files:
+            assert not p.name.endswith(".part") or p.name.startswith("."), p
+            if not p.name.startswith("."):
+                _parses(p)
