@@ -134,7 +134,9 @@ def test_probe_plane_writes_csv_and_a_structured_grid(run_dirs, tmp_path):
     reader.SetFileName(str(out.with_suffix(".vts")))
     reader.Update()
     grid = reader.GetOutput()
-    assert grid.GetNumberOfPoints() == 35 and grid.GetDimensions() == (7, 5, 1)
+    dims = [0, 0, 0]
+    grid.GetDimensions(dims)
+    assert grid.GetNumberOfPoints() == 35 and dims == [7, 5, 1]
     vel = grid.GetPointData().GetArray("induced_velocity")
     # point (i=2, j=1) is index 2 + 7*1 in VTK order
     row = table[(table["i"] == 2) & (table["j"] == 1)].iloc[0]
