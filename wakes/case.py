@@ -471,7 +471,7 @@ def _parse_bodies(table, ctx) -> tuple:
         if not isinstance(body, dict):
             ctx.fail(f"[{where}] must be a table; got {body!r}")
         btype = body.get("type")
-        if btype not in BODY_TYPES:
+        if not isinstance(btype, str) or btype not in BODY_TYPES:
             close = difflib.get_close_matches(str(btype), BODY_TYPES, n=1, cutoff=0.6)
             hint = f" (did you mean {close[0]!r}?)" if close else ""
             ctx.fail(f"{where}.type must be one of {', '.join(map(repr, BODY_TYPES))}; "
