@@ -381,8 +381,7 @@ def test_segment_moments_equal_line_integrals():
     mom = np.zeros((1, 3, tab["midx"].shape[0]))
     one = np.array([0])
     tree_expansion.p2m_segments(one, one, np.array([1]), np.zeros((1, 3)), *[
-        np.array([v]) for v in (*pa, *pb, gam)], 0.5 * nodes, 0.5 * weights,
-        tab["mono_parent"], tab["mono_dir"], mom)
+        np.array([v]) for v in (*pa, *pb, gam)], 0.5 * nodes, 0.5 * weights, tab["midx"], mom)
     poly = np.polynomial.Polynomial
     for i, m in enumerate(tab["midx"]):
         # exact: integrate the polynomial prod_k (A_k + s (B_k - A_k))^m_k over [0, 1]

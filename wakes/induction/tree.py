@@ -32,6 +32,10 @@ import numpy as np
 from . import tree_build, tree_expansion, tree_near, tree_params, tree_traverse
 from .tree_traverse import GAP, MAC_ONLY, TUBE
 
+# Per term, a direct moment sum over points runs about this much faster than
+# the moment shifts (vectorised versus gathered; measured).
+DIRECT_MOMENT_ADVANTAGE = 4.0
+
 
 @dataclass
 class _Tree:
@@ -72,22 +76,38 @@ def _sorted(a: np.ndarray, order: np.ndarray) -> np.ndarray:
     return np.ascontiguousarray(a[order])
 
 
-def _upward(tree: _Tree, tables: dict, moments: np.ndarray) -> None:
-    """Shift leaf moments up to every internal cell, deepest first."""
+def _moments(tree: _Tree, tables: dict, p2m, *p2m_args) -> np.ndarray:
+    """Moments (C, 3, T) of every cell of a source tree.
+
+    A cell whose direct sum over its points costs less than shifting its
+    children's moments (count x T < n_child x M2M table length) gets them
+    directly from its points by ``p2m(cells, ..., *p2m_args, midx, moments)``
+    (vectorised, so cheaper per term than the shifts); the cells above get
+    them by shifting, deepest first.
+    """
+    moments = np.empty((tree.n_cells, 3, tables["midx"].shape[0]))
+    direct = (tree.n_child == 0) | (tree.count * tables["midx"].shape[0] <= DIRECT_MOMENT_ADVANTAGE
+                                     * tree.n_child * tables["m2m_j"].shape[0])
+    p2m(np.flatnonzero(direct), tree.start, tree.count, tree.center, *p2m_args,
+        tables["midx"], moments)
     for d in range(tree.depth_ptr.shape[0] - 2, -1, -1):
         cells = np.arange(tree.depth_ptr[d], tree.depth_ptr[d + 1])
-        tree_expansion.m2m(cells, tree.first_child, tree.n_child, tree.center,
-                           tables["m2m_ptr"], tables["m2m_j"], tables["m2m_d"],
-                           tables["m2m_c"], tables["mono_parent"], tables["mono_dir"],
-                           moments)
+        cells = cells[~direct[cells]]
+        if cells.size:
+            tree_expansion.m2m(cells, tree.first_child, tree.n_child, tree.center,
+                               tables["m2m_ptr"], tables["m2m_j"], tables["m2m_d"],
+                               tables["m2m_c"], tables["mono_parent"], tables["mono_dir"],
+                               moments)
+    return moments
 
 
-def _far_and_near(target: _Tree, source: _Tree, theta, kind, reach, axis, cos_half):
+def _far_and_near(target: _Tree, source: _Tree, theta, min_pairs, kind, reach, axis,
+                  cos_half):
     """Far pairs (t, s) as two arrays, near pairs grouped by target leaf."""
     far_t, far_s, near_t, near_s = tree_traverse.dual_traverse(
-        target.center, target.radius, target.first_child, target.n_child,
-        source.center, source.radius, source.first_child, source.n_child,
-        theta, kind, reach, axis, cos_half)
+        target.center, target.radius, target.count, target.first_child, target.n_child,
+        source.center, source.radius, source.count, source.first_child, source.n_child,
+        theta, min_pairs, kind, reach, axis, cos_half)
     return (far_t, far_s), tree_traverse.group_by_target(near_t, near_s, target.n_cells)
 
 
@@ -105,6 +125,7 @@ class _Locals:
         self.tables = tables
         self.harmonic = np.zeros((n_cells, 3, tables["midx"].shape[0]))
         self.full = None
+        self.has_far = np.zeros(n_cells, np.bool_)  # cells with far pairs of their own
 
     def add_far(self, target: _Tree, source: _Tree, far, moments, delta2, wl_coef) -> None:
         """Add far pairs (two arrays, target and source cells) of one source
@@ -113,6 +134,7 @@ class _Locals:
         t_cells = np.flatnonzero(np.diff(ptr))
         if t_cells.size == 0:
             return
+        self.has_far[t_cells] = True
         tb = self.tables
         if delta2 == 0.0:
             m2l_tab = tb["harmonic"]
@@ -206,16 +228,9 @@ def tree_induce(targets: np.ndarray, sources: list, gradient: bool, tolerance: f
         else:
             _add_segments(s, target, tx, ty, tz, t_leaves, tables, theta, tolerance,
                           leaf_size, gradient, local, vel, grad)
+    has_far = local.has_far
     local = local.total()
-    parent = _parent_array(target)
-    for d in range(1, target.depth_ptr.shape[0] - 1):
-        cells = np.arange(target.depth_ptr[d], target.depth_ptr[d + 1])
-        tree_expansion.l2l(cells, parent, target.center, tables["l2l_ptr"], tables["l2l_j"],
-                           tables["l2l_d"], tables["l2l_c"], tables["mono_parent"],
-                           tables["mono_dir"], local)
-    tree_expansion.l2p(t_leaves, target.start, target.count, target.center, tx, ty, tz,
-                       local, tables["midx"], tables["up"], tables["mono_parent"],
-                       tables["mono_dir"], gradient, vel, grad)
+    _downward(target, tables, has_far, local, tx, ty, tz, gradient, vel, grad)
     out_v = np.empty_like(vel)
     out_v[target.order] = vel
     if not gradient:
@@ -225,9 +240,35 @@ def tree_induce(targets: np.ndarray, sources: list, gradient: bool, tolerance: f
     return out_v, out_g
 
 
+def _downward(target: _Tree, tables: dict, has_far, local, tx, ty, tz, gradient, vel,
+              grad) -> None:
+    """Shift local expansions down and evaluate them at the targets.
+
+    Only cells with far pairs of their own get a shifted copy of their
+    nearest expanded ancestor's polynomial; the others, and the leaves'
+    targets, use that ancestor's directly (shifting a polynomial is exact).
+    """
+    parent = _parent_array(target)
+    owner = np.full(target.n_cells, -1, np.int64)
+    owner[0] = 0 if has_far[0] else -1
+    for d in range(1, target.depth_ptr.shape[0] - 1):
+        cells = np.arange(target.depth_ptr[d], target.depth_ptr[d + 1])
+        above = owner[parent[cells]]
+        shift = has_far[cells] & (above >= 0)
+        if shift.any():
+            tree_expansion.l2l(cells[shift], above[shift], target.center, tables["l2l_ptr"],
+                               tables["l2l_j"], tables["l2l_d"], tables["l2l_c"],
+                               tables["mono_parent"], tables["mono_dir"], local)
+        owner[cells] = np.where(has_far[cells], cells, above)
+    leaves = target.leaves
+    owned = owner[leaves] >= 0
+    tree_expansion.l2p(leaves[owned], owner[leaves[owned]], target.start, target.count,
+                       target.center, tx, ty, tz, local, tables["midx"], tables["up"],
+                       gradient, vel, grad)
+
+
 def _add_particles(s: ParticleSet, targets, target: _Tree, tx, ty, tz, t_leaves, tables,
                    theta, tolerance, leaf_size, gradient, local, vel, grad) -> None:
-    nt = tables["midx"].shape[0]
     pos = s.positions
     if pos.shape == targets.shape and np.array_equal(pos, targets):
         source = target  # sources are the targets: one tree serves both
@@ -240,16 +281,13 @@ def _add_particles(s: ParticleSet, targets, target: _Tree, tx, ty, tz, t_leaves,
             source.start, source.count, sx, sy, sz)
     ax, ay, az = (_sorted(s.strengths[:, k], source.order) for k in range(3))
     sig = _sorted(s.radii, source.order)
-    moments = np.empty((source.n_cells, 3, nt))
-    tree_expansion.p2m_points(source.leaves, source.start, source.count, source.center,
-                              sx, sy, sz, ax, ay, az, tables["mono_parent"],
-                              tables["mono_dir"], moments)
-    _upward(source, tables, moments)
+    moments = _moments(source, tables, tree_expansion.p2m_points, sx, sy, sz, ax, ay, az)
     exact, delta2, wl_coef = tree_params.kernel_far_potential(s.kernel, s.radii)
     reach = tree_params.particle_reach(s.kernel, tolerance) * \
         tree_build.cell_max(source.start, source.count, sig)
-    far, near = _far_and_near(target, source, theta, MAC_ONLY if exact else GAP, reach,
-                              np.zeros((1, 3)), np.ones(1))
+    min_pairs = tree_params.min_far_pairs(tables["p"], delta2 != 0.0, s.kernel, False)
+    far, near = _far_and_near(target, source, theta, min_pairs, MAC_ONLY if exact else GAP,
+                              reach, np.zeros((1, 3)), np.ones(1))
     if delta2 == 0.0:
         local.add_far(target, source, far, moments, 0.0, 0.0)
     else:
@@ -268,7 +306,6 @@ def _add_particles(s: ParticleSet, targets, target: _Tree, tx, ty, tz, t_leaves,
 
 def _add_segments(s: SegmentSet, target: _Tree, tx, ty, tz, t_leaves, tables, theta,
                   tolerance, leaf_size, gradient, local, vel, grad) -> None:
-    nt = tables["midx"].shape[0]
     mid = 0.5 * (s.start + s.end)
     source = _build(*(np.ascontiguousarray(mid[:, k]) for k in range(3)), leaf_size)
     pax, pay, paz = (_sorted(s.start[:, k], source.order) for k in range(3))
@@ -279,14 +316,12 @@ def _add_segments(s: SegmentSet, target: _Tree, tx, ty, tz, t_leaves, tables, th
         source.start, source.count, pax, pay, paz, pbx, pby, pbz)
     n_gauss = tables["p"] // 2 + 1  # Gauss-Legendre exact to degree 2 n - 1 >= p
     gx, gw = np.polynomial.legendre.leggauss(n_gauss)
-    moments = np.empty((source.n_cells, 3, nt))
-    tree_expansion.p2m_segments(source.leaves, source.start, source.count, source.center,
-                                pax, pay, paz, pbx, pby, pbz, gam, 0.5 * gx, 0.5 * gw,
-                                tables["mono_parent"], tables["mono_dir"], moments)
-    _upward(source, tables, moments)
+    moments = _moments(source, tables, tree_expansion.p2m_segments, pax, pay, paz, pbx, pby,
+                       pbz, gam, 0.5 * gx, 0.5 * gw)
     reach = tree_params.core_reach(s.core, tolerance) * \
         tree_build.cell_max(source.start, source.count, rc)
-    far, near = _far_and_near(target, source, theta, TUBE, reach, axis, cos_half)
+    min_pairs = tree_params.min_far_pairs(tables["p"], False, s.core, True)
+    far, near = _far_and_near(target, source, theta, min_pairs, TUBE, reach, axis, cos_half)
     local.add_far(target, source, far, moments, 0.0, 0.0)
     tree_near.segments_near(s.core, gradient, t_leaves, target.start, target.count,
                             near[0], near[1], source.start, source.count, tx, ty, tz,

@@ -230,13 +230,41 @@ def _monomials(dx, dy, dz, parent, direction, mono):
 
 
 @njit(inline="always", cache=True)
-def _add_point_moments(dx, dy, dz, wx, wy, wz, parent, direction, mono, mom):
-    """mom[l, n] += w_l d^n."""
-    _monomials(dx, dy, dz, parent, direction, mono)
-    for m in range(mono.shape[0]):
-        mom[0, m] += wx * mono[m]
-        mom[1, m] += wy * mono[m]
-        mom[2, m] += wz * mono[m]
+def _powers(d, p):
+    """out[i, j] = d[j]^i for 0 <= i <= p."""
+    out = np.empty((p + 1, d.shape[0]))
+    out[0, :] = 1.0
+    for i in range(1, p + 1):
+        for j in range(d.shape[0]):
+            out[i, j] = out[i - 1, j] * d[j]
+    return out
+
+
+@njit(inline="always", cache=True)
+def _point_moments(dx, dy, dz, wx, wy, wz, midx, mom):
+    """mom[l, m] = sum_j w_l[j] (dx_j, dy_j, dz_j)^m over the points j.
+
+    Vectorised over the points: monomials come from per-axis powers.
+    """
+    p = midx[-1, 0] + midx[-1, 1] + midx[-1, 2]
+    px = _powers(dx, p)
+    py = _powers(dy, p)
+    pz = _powers(dz, p)
+    for m in range(mom.shape[1]):
+        rx = px[midx[m, 0]]
+        ry = py[midx[m, 1]]
+        rz = pz[midx[m, 2]]
+        s0 = 0.0
+        s1 = 0.0
+        s2 = 0.0
+        for j in range(dx.shape[0]):
+            w = rx[j] * ry[j] * rz[j]
+            s0 += wx[j] * w
+            s1 += wy[j] * w
+            s2 += wz[j] * w
+        mom[0, m] = s0
+        mom[1, m] = s1
+        mom[2, m] = s2
 
 
 # ----------------------------------------------------------------------------
@@ -244,27 +272,23 @@ def _add_point_moments(dx, dy, dz, wx, wy, wz, parent, direction, mono, mom):
 # ----------------------------------------------------------------------------
 
 @njit(parallel=True, cache=True, fastmath=_FASTMATH)
-def p2m_points(leaves, start, count, center, x, y, z, ax, ay, az, parent, direction,
-               moments):
-    """Moments of the point sources of each leaf about its centre.
+def p2m_points(cells, start, count, center, x, y, z, ax, ay, az, midx, moments):
+    """Moments of the point sources of each listed cell about its centre.
 
-    ``moments`` (C, 3, T) is overwritten on the leaves listed in ``leaves``.
+    ``moments`` (C, 3, T) is overwritten on the cells listed in ``cells``.
     """
-    nt = moments.shape[2]
-    for li in prange(leaves.shape[0]):
-        c = leaves[li]
-        mono = np.empty(nt)
-        mom = moments[c]
-        mom[:, :] = 0.0
-        for j in range(start[c], start[c] + count[c]):
-            _add_point_moments(x[j] - center[c, 0], y[j] - center[c, 1], z[j] - center[c, 2],
-                               ax[j], ay[j], az[j], parent, direction, mono, mom)
+    for li in prange(cells.shape[0]):
+        c = cells[li]
+        s = start[c]
+        e = s + count[c]
+        _point_moments(x[s:e] - center[c, 0], y[s:e] - center[c, 1], z[s:e] - center[c, 2],
+                       ax[s:e], ay[s:e], az[s:e], midx, moments[c])
 
 
 @njit(parallel=True, cache=True, fastmath=_FASTMATH)
-def p2m_segments(leaves, start, count, center, pax, pay, paz, pbx, pby, pbz, gam,
-                 gauss_x, gauss_w, parent, direction, moments):
-    """Moments of straight vortex segments about each leaf's centre.
+def p2m_segments(cells, start, count, center, pax, pay, paz, pbx, pby, pbz, gam,
+                 gauss_x, gauss_w, midx, moments):
+    """Moments of straight vortex segments about each listed cell's centre.
 
     A segment A->B of circulation Gamma is the line of vorticity
     Gamma (B - A) ds' over s' in [0, 1]; its moments are the integrals of the
@@ -272,13 +296,17 @@ def p2m_segments(leaves, start, count, center, pax, pay, paz, pbx, pby, pbz, gam
     with nodes ``gauss_x`` in [-1/2, 1/2] about the midpoint and weights
     ``gauss_w`` summing to one (exact for degree <= 2 len(gauss_x) - 1).
     """
-    nt = moments.shape[2]
     ng = gauss_x.shape[0]
-    for li in prange(leaves.shape[0]):
-        c = leaves[li]
-        mono = np.empty(nt)
-        mom = moments[c]
-        mom[:, :] = 0.0
+    for li in prange(cells.shape[0]):
+        c = cells[li]
+        n = count[c] * ng
+        dx = np.empty(n)
+        dy = np.empty(n)
+        dz = np.empty(n)
+        wx = np.empty(n)
+        wy = np.empty(n)
+        wz = np.empty(n)
+        k = 0
         for j in range(start[c], start[c] + count[c]):
             ex = pbx[j] - pax[j]
             ey = pby[j] - pay[j]
@@ -288,9 +316,14 @@ def p2m_segments(leaves, start, count, center, pax, pay, paz, pbx, pby, pbz, gam
             mz = 0.5 * (paz[j] + pbz[j]) - center[c, 2]
             for g in range(ng):
                 w = gam[j] * gauss_w[g]
-                _add_point_moments(mx + gauss_x[g] * ex, my + gauss_x[g] * ey,
-                                   mz + gauss_x[g] * ez, w * ex, w * ey, w * ez,
-                                   parent, direction, mono, mom)
+                dx[k] = mx + gauss_x[g] * ex
+                dy[k] = my + gauss_x[g] * ey
+                dz[k] = mz + gauss_x[g] * ez
+                wx[k] = w * ex
+                wy[k] = w * ey
+                wz[k] = w * ez
+                k += 1
+        _point_moments(dx, dy, dz, wx, wy, wz, midx, moments[c])
 
 
 @njit(parallel=True, cache=True, fastmath=_FASTMATH)
@@ -407,8 +440,12 @@ def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
             f0 = far_ptr[t]
             f1 = far_ptr[t + 1]
             acc[:, :] = 0.0
-            for c0 in range(f0, f1, M2L_CHUNK):
-                ns = min(M2L_CHUNK, f1 - c0)
+            # equal chunks of at most M2L_CHUNK: a short last chunk would cost
+            # nearly a full one (the loop over table entries dominates)
+            n_chunks = (f1 - f0 + M2L_CHUNK - 1) // M2L_CHUNK
+            for ch in range(n_chunks):
+                c0 = f0 + ch * (f1 - f0) // n_chunks
+                ns = f0 + (ch + 1) * (f1 - f0) // n_chunks - c0
                 for s in range(ns):
                     src = far_src[c0 + s]
                     rx[s] = t_center[t, 0] - s_center[src, 0]
@@ -494,15 +531,16 @@ def complete_harmonic(local, fill_k, fill_i, fill_c):
 # ----------------------------------------------------------------------------
 
 @njit(parallel=True, cache=True, fastmath=_FASTMATH)
-def l2l(cells, parent_of, center, ptr, j_idx, d_idx, coef, parent, direction, local):
-    """Add each cell's parent's local expansion, shifted to the cell's centre.
+def l2l(cells, from_cells, center, ptr, j_idx, d_idx, coef, parent, direction, local):
+    """Add to each cell the local expansion of ``from_cells[i]`` (an
+    ancestor), shifted to the cell's centre.
 
-    L_c^k += sum_{j >= k} C(j, k) L_p^j (w_c - w_p)^(j - k).
+    L_c^k += sum_{j >= k} C(j, k) L_a^j (w_c - w_a)^(j - k).
     """
     nt = local.shape[2]
     for ci in prange(cells.shape[0]):
         c = cells[ci]
-        pc = parent_of[c]
+        pc = from_cells[ci]
         mono = np.empty(nt)
         _monomials(center[c, 0] - center[pc, 0], center[c, 1] - center[pc, 1],
                    center[c, 2] - center[pc, 2], parent, direction, mono)
@@ -524,24 +562,29 @@ def l2l(cells, parent_of, center, ptr, j_idx, d_idx, coef, parent, direction, lo
 
 
 @njit(parallel=True, cache=True, fastmath=_FASTMATH)
-def l2p(leaves, start, count, center, tx, ty, tz, local, midx, up, parent, direction,
-        gradient, vel, grad):
+def l2p(leaves, owners, start, count, center, tx, ty, tz, local, midx, up, gradient, vel,
+        grad):
     """Evaluate the local expansions at the targets of each leaf.
+
+    Leaf ``leaves[i]`` uses the expansion of cell ``owners[i]`` (itself or the
+    nearest ancestor holding one: shifting a polynomial is exact, so the
+    ancestor's serves unchanged).
 
     The potential's local polynomial is turned once per leaf into the
     velocity polynomial u = curl(psi) (degree p - 1) and, when asked, the
-    gradient polynomial (degree p - 2); each target then costs one set of
-    monomials and two dot products. Adds u / (4 pi) into ``vel`` (sorted
-    target order) and d u_j / d x_k / (4 pi) into ``grad[i, j, k]``.
+    gradient polynomial (degree p - 2); these are then summed over the
+    leaf's targets, vectorised over the targets. Adds u / (4 pi) into ``vel``
+    (sorted target order) and d u_j / d x_k / (4 pi) into ``grad[i, j, k]``.
     """
     nt = local.shape[2]
-    # number of multi-indices of degree <= p - 1 and <= p - 2
     p = midx[nt - 1, 0] + midx[nt - 1, 1] + midx[nt - 1, 2]
+    # number of multi-indices of degree <= p - 1 and <= p - 2
     n1 = p * (p + 1) * (p + 2) // 6
     n2 = (p - 1) * p * (p + 1) // 6
     for li in prange(leaves.shape[0]):
         c = leaves[li]
-        lc = local[c]
+        o = owners[li]
+        lc = local[o]
         uc = np.empty((3, n1))
         for m in range(n1):
             fx = midx[m, 0] + 1.0
@@ -550,32 +593,47 @@ def l2p(leaves, start, count, center, tx, ty, tz, local, midx, up, parent, direc
             ux_ = up[m, 0]
             uy_ = up[m, 1]
             uz_ = up[m, 2]
-            uc[0, m] = fy * lc[2, uy_] - fz * lc[1, uz_]
-            uc[1, m] = fz * lc[0, uz_] - fx * lc[2, ux_]
-            uc[2, m] = fx * lc[1, ux_] - fy * lc[0, uy_]
+            uc[0, m] = (fy * lc[2, uy_] - fz * lc[1, uz_]) * INV_4PI
+            uc[1, m] = (fz * lc[0, uz_] - fx * lc[2, ux_]) * INV_4PI
+            uc[2, m] = (fx * lc[1, ux_] - fy * lc[0, uy_]) * INV_4PI
         gc = np.empty((9, n2))
         if gradient:
             for m in range(n2):
                 for j in range(3):
                     for k in range(3):
                         gc[3 * j + k, m] = (midx[m, k] + 1.0) * uc[j, up[m, k]]
-        mono = np.empty(n1)
-        for i in range(start[c], start[c] + count[c]):
-            _monomials(tx[i] - center[c, 0], ty[i] - center[c, 1], tz[i] - center[c, 2],
-                       parent, direction, mono)
-            u0 = 0.0
-            u1 = 0.0
-            u2 = 0.0
-            for m in range(n1):
-                u0 += uc[0, m] * mono[m]
-                u1 += uc[1, m] * mono[m]
-                u2 += uc[2, m] * mono[m]
-            vel[i, 0] += u0 * INV_4PI
-            vel[i, 1] += u1 * INV_4PI
-            vel[i, 2] += u2 * INV_4PI
-            if gradient:
+        s = start[c]
+        e = s + count[c]
+        n = e - s
+        px = _powers(tx[s:e] - center[o, 0], p - 1)
+        py = _powers(ty[s:e] - center[o, 1], p - 1)
+        pz = _powers(tz[s:e] - center[o, 2], p - 1)
+        u = np.zeros((3, n))
+        g = np.zeros((9 if gradient else 0, n))
+        w = np.empty(n)
+        for m in range(n1):
+            rx = px[midx[m, 0]]
+            ry = py[midx[m, 1]]
+            rz = pz[midx[m, 2]]
+            c0 = uc[0, m]
+            c1 = uc[1, m]
+            c2 = uc[2, m]
+            for j in range(n):
+                w[j] = rx[j] * ry[j] * rz[j]
+                u[0, j] += c0 * w[j]
+                u[1, j] += c1 * w[j]
+                u[2, j] += c2 * w[j]
+            if gradient and m < n2:
                 for jk in range(9):
-                    g = 0.0
-                    for m in range(n2):
-                        g += gc[jk, m] * mono[m]
-                    grad[i, jk // 3, jk % 3] += g * INV_4PI
+                    cg = gc[jk, m]
+                    gr = g[jk]
+                    for j in range(n):
+                        gr[j] += cg * w[j]
+        for j in range(n):
+            vel[s + j, 0] += u[0, j]
+            vel[s + j, 1] += u[1, j]
+            vel[s + j, 2] += u[2, j]
+        if gradient:
+            for jk in range(9):
+                for j in range(n):
+                    grad[s + j, jk // 3, jk % 3] += g[jk, j]

@@ -25,7 +25,7 @@ from .smoothing import (CORE_LAMB_OSEEN, CORE_RANKINE, CORE_SCULLY, CORE_SINGULA
                         CORE_VATISTAS2, GAUSSIAN, LAMB_OSEEN_ALPHA, ROSENHEAD_MOORE, SINGULAR,
                         WINCKELMANS_LEONARD)
 from ..errors import InputError
-from .tree_expansion import n_terms
+from .tree_expansion import expansion_tables, n_terms
 
 # Share of the tolerance given to replacing a regularized kernel or a core
 # by the singular law in the far field; the expansion truncation takes the rest.
@@ -59,6 +59,29 @@ def expansion_settings(tolerance: float) -> tuple[float, int]:
         if tolerance >= tol:
             return theta, p
     return _SETTINGS[-1][1], _SETTINGS[-1][2]
+
+
+# Relative cost of one pair of the exact law (velocity and gradient), per
+# kernel code and per core code, and of one M2L per reduced-table entry, in
+# units of a Winckelmans--Leonard particle pair: measured on the development
+# machine (the Gaussian's erf and exp do not vectorise).
+_PAIR_COST = {SINGULAR: 1.0, ROSENHEAD_MOORE: 1.0, WINCKELMANS_LEONARD: 1.0, GAUSSIAN: 8.0}
+_SEGMENT_PAIR_COST = 2.5
+_M2L_COST_PER_ENTRY = 0.16
+_M2L_COST_FIXED = 360.0
+
+
+def min_far_pairs(p: int, regularized: bool, code: int, segments: bool) -> int:
+    """Fewest point pairs for which a cell pair is worth an expansion.
+
+    The cost of one M2L (fixed part plus the table length of order ``p``,
+    the full table for a regularized potential) over the cost of one pair
+    of the exact law for the kernel or core ``code``.
+    """
+    tab = expansion_tables(p)["full" if regularized else "harmonic"]
+    m2l = _M2L_COST_FIXED + _M2L_COST_PER_ENTRY * tab["coef"].shape[0]
+    pair = _SEGMENT_PAIR_COST if segments else _PAIR_COST[code]
+    return int(m2l / pair)
 
 
 def _kernel_excess(kernel: int, rho: float) -> tuple[float, float]:

@@ -21,6 +21,8 @@ A pair (target cell t, source cell s) at centre distance D is *far* when
     asin((b_t + b_s)/D), and its distance from the line at least
     (D - b_t - b_s) sin(gamma).
 
+and the two cells hold enough point pairs for an expansion to cost less
+than summing them (``min_pairs``, the cost-based test of Dehnen 2002).
 Otherwise the larger cell is split; two leaves that are not far are a
 *near* pair, summed with the exact pair laws. The lists come back grouped
 by target cell (CSR).
@@ -42,8 +44,10 @@ def _grow(a):
 
 
 @njit(inline="always", cache=True)
-def _is_far(t, s, t_center, t_radius, s_center, s_radius, theta2, kind, reach, axis,
-            cos_half):
+def _is_far(t, s, t_center, t_radius, t_count, s_center, s_radius, s_count, theta2,
+            min_pairs, kind, reach, axis, cos_half):
+    if t_count[t] * s_count[s] < min_pairs:
+        return False  # summing the pairs directly is cheaper than an expansion
     rx = t_center[t, 0] - s_center[s, 0]
     ry = t_center[t, 1] - s_center[s, 1]
     rz = t_center[t, 2] - s_center[s, 2]
@@ -66,18 +70,21 @@ def _is_far(t, s, t_center, t_radius, s_center, s_radius, theta2, kind, reach, a
 
 
 @njit(cache=True)
-def dual_traverse(t_center, t_radius, t_first, t_nchild, s_center, s_radius, s_first,
-                  s_nchild, theta, kind, reach, axis, cos_half):
+def dual_traverse(t_center, t_radius, t_count, t_first, t_nchild, s_center, s_radius,
+                  s_count, s_first, s_nchild, theta, min_pairs, kind, reach, axis, cos_half):
     """Far and near cell pairs of a target tree and a source tree.
 
     Parameters
     ----------
-    t_center, t_radius, t_first, t_nchild
-        Target cells: centres (Ct, 3), radii (Ct,), children.
-    s_center, s_radius, s_first, s_nchild
+    t_center, t_radius, t_count, t_first, t_nchild
+        Target cells: centres (Ct, 3), radii (Ct,), point counts, children.
+    s_center, s_radius, s_count, s_first, s_nchild
         Source cells, likewise (may be the same arrays as the targets').
     theta : float
         Opening parameter, 0 < theta < 1.
+    min_pairs : int
+        A pair of cells holding fewer than this many point pairs is never
+        far: below it the direct sum costs less than an expansion.
     kind : int
         ``MAC_ONLY``, ``GAP`` or ``TUBE`` (see the module notes).
     reach : (Cs,) float64
@@ -108,8 +115,8 @@ def dual_traverse(t_center, t_radius, t_first, t_nchild, s_center, s_radius, s_f
         top -= 1
         t = stack_t[top]
         s = stack_s[top]
-        if _is_far(t, s, t_center, t_radius, s_center, s_radius, theta2, kind, reach, axis,
-                   cos_half):
+        if _is_far(t, s, t_center, t_radius, t_count, s_center, s_radius, s_count, theta2,
+                   min_pairs, kind, reach, axis, cos_half):
             if n_far == far_t.shape[0]:
                 far_t = _grow(far_t)
                 far_s = _grow(far_s)
