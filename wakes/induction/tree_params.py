@@ -50,7 +50,7 @@ _SETTINGS = (
     (1e-9, 0.30, 15),   # 1.2e-10
     (1e-10, 0.30, 17),  # 9.6e-12
 )
-LEAF_SIZE = 64  # points per leaf: balances near-field pairs against expansions
+LEAF_SIZE = 128  # octree leaves of 16-128 points: balances near-field pairs against expansions
 
 
 def expansion_settings(tolerance: float) -> tuple[float, int]:
