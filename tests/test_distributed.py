@@ -19,7 +19,7 @@ def client():
 
 
 def test_distributed_equals_serial_on_50000_particles(client):
-    """1e-12 relative on 50,000 particles with two workers (bit for bit in fact)."""
+    """1e-12 relative on 50,000 particles with two workers."""
     rng = np.random.default_rng(8)
     p = wakes.Particles(rng.uniform(size=(50_000, 3)), rng.normal(size=(50_000, 3)) * 1e-4,
                         0.02, kernel="winckelmans-leonard")
@@ -36,6 +36,9 @@ def test_gradient_and_mixed_sources(client):
     x = rng.uniform(size=(301, 3))
     u, g = wakes.induce([p, f], x, gradient=True)
     u2, g2 = induce_on_cluster([p, f], x, client, chunk_size=64, gradient=True)
-    assert np.array_equal(u, u2) and np.array_equal(g, g2)
+    # workers may run another compiled variant of the same sum (one thread
+    # each): equal to round-off, not necessarily bit for bit
+    assert np.linalg.norm(u2 - u) <= 1e-13 * np.linalg.norm(u)
+    assert np.linalg.norm(g2 - g) <= 1e-13 * np.linalg.norm(g)
     with pytest.raises(wakes.WakesError, match="chunk_size"):
         induce_on_cluster(p, x, client, chunk_size=0)

@@ -4,7 +4,8 @@ The sources are scattered to the workers once; the targets are cut into
 contiguous chunks, each chunk is evaluated on a worker with the ordinary
 single-process engine, and the pieces are gathered in order. Each target's
 sum runs over the sources in the same order as in one process, so the result
-equals the serial one (bit for bit with direct summation).
+equals the serial one to round-off (workers with one thread may run another
+compiled variant of the same loop, so not always bit for bit).
 """
 
 from __future__ import annotations
