@@ -274,7 +274,8 @@ def test_auto_equals_the_method_it_picks(monkeypatch):
     direct_u = wakes.induce(src, x)
     tree_u = wakes.induce(src, x, method="tree", tolerance=1e-5)
     assert np.array_equal(wakes.induce(src, x, method="auto", tolerance=1e-5), direct_u)
-    monkeypatch.setattr(tree_params, "AUTO_CROSSOVER_PAIRS", N_PARTICLES ** 2)
+    assert N_PARTICLES ** 2 < tree_params.auto_crossover_pairs(1e-5)
+    monkeypatch.setattr(tree_params, "auto_crossover_pairs", lambda tol: N_PARTICLES ** 2)
     assert np.array_equal(wakes.induce(src, x, method="auto", tolerance=1e-5), tree_u)
 
 

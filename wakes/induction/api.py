@@ -46,11 +46,12 @@ def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
         Summation method. "direct" sums every pair. "tree" uses the
         treecode (:mod:`wakes.induction.tree`) to the requested
         ``tolerance``; a source set with fewer than
-        ``tree_params.MIN_TREE_SOURCES`` (128) elements, or a tolerance
+        ``tree_params.MIN_TREE_SOURCES`` (256) elements, or a tolerance
         below ``tree_params.MIN_TREE_TOLERANCE`` (1e-10), is summed
-        directly instead (exactly). "auto" is "direct" below
-        ``tree_params.AUTO_CROSSOVER_PAIRS`` source-target pairs (the
-        measured break-even) and "tree" above.
+        directly instead (exactly). "auto" is "direct" below the measured
+        break-even number of source-target pairs for the tolerance
+        (``tree_params.auto_crossover_pairs``: 2e7 at 1e-4, 2e8 at 1e-6)
+        and "tree" above.
     tolerance : float, default 1e-6
         For "tree" and "auto": the relative L2 error of the velocity aimed
         at (the gradient's is at most ten times it), 0 < tolerance < 1.

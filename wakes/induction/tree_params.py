@@ -31,34 +31,46 @@ from .tree_expansion import expansion_tables, n_terms
 # by the singular law in the far field; the expansion truncation takes the rest.
 REGULARIZATION_SHARE = 0.1
 
-# (tolerance, theta, order p): a request uses the first row whose tolerance
-# is at or below it. Calibrated against direct summation on the hardest case
-# met (random strengths in a cube, Winckelmans--Leonard kernel with a
-# uniform radius of twice the mean spacing: the smooth, weak near field
-# leaves the far field the largest share of the velocity); the error
-# max(velocity error, gradient error / 10) stays below a third of the row's
-# tolerance there, and from the pairs that meet that, the one with the
-# least work (M2L count ~ theta^-3 times reduced-table length) is taken.
+# (tolerance, theta, order p, auto crossover): a request uses the first row
+# whose tolerance is at or below it. Calibrated against direct summation on
+# the hardest case met (random strengths in a cube, Winckelmans--Leonard
+# kernel with a uniform radius of twice the mean spacing: the smooth, weak
+# near field leaves the far field the largest share of the velocity); the
+# error max(velocity error, gradient error / 10) stays below a third of the
+# row's tolerance there, and from the pairs that meet that, the one with
+# the least work (M2L count ~ theta^-3 times reduced-table length) is taken.
+# The crossover is the number of source-target pairs above which the tree
+# beat direct summation (velocity and gradient, one thread, N = 3,000 to
+# 48,000 random points; benchmarks/bench_tree.py).
 _SETTINGS = (
-    (1e-2, 0.60, 6),    # calibration case: 2.3e-3
-    (1e-3, 0.50, 7),    # 2.3e-4
-    (1e-4, 0.50, 10),   # 1.8e-5
-    (1e-5, 0.45, 11),   # 2.8e-6
-    (1e-6, 0.40, 12),   # 2.3e-7
-    (1e-7, 0.40, 14),   # 3.3e-8
-    (1e-8, 0.35, 15),   # 1.4e-9
-    (1e-9, 0.30, 15),   # 1.2e-10
-    (1e-10, 0.30, 17),  # 9.6e-12
+    (1e-2, 0.60, 6, 4e6),     # calibration case: 2.3e-3
+    (1e-3, 0.50, 7, 8e6),     # 2.3e-4
+    (1e-4, 0.50, 10, 2e7),    # 1.8e-5
+    (1e-5, 0.45, 11, 4e7),    # 2.8e-6
+    (1e-6, 0.40, 12, 2e8),    # 2.3e-7
+    (1e-7, 0.40, 14, 7e8),    # 3.3e-8
+    (1e-8, 0.35, 15, 8e8),    # 1.4e-9
+    (1e-9, 0.30, 15, 1e9),    # 1.2e-10
+    (1e-10, 0.30, 17, 1.5e9),  # 9.6e-12
 )
 LEAF_SIZE = 128  # octree leaves of 16-128 points: balances near-field pairs against expansions
 
 
+def _row(tolerance: float) -> tuple:
+    for row in _SETTINGS:
+        if tolerance >= row[0]:
+            return row
+    return _SETTINGS[-1]
+
+
 def expansion_settings(tolerance: float) -> tuple[float, int]:
     """Opening parameter theta and order p for a relative tolerance."""
-    for tol, theta, p in _SETTINGS:
-        if tolerance >= tol:
-            return theta, p
-    return _SETTINGS[-1][1], _SETTINGS[-1][2]
+    return _row(tolerance)[1:3]
+
+
+def auto_crossover_pairs(tolerance: float) -> float:
+    """Source-target pairs above which "auto" picks the tree."""
+    return _row(tolerance)[3]
 
 
 # Relative cost of one pair of the exact law (velocity and gradient), per
@@ -167,11 +179,6 @@ MIN_TREE_SOURCES = 2 * LEAF_SIZE
 # Below this tolerance the expansions would need orders whose round-off
 # competes with the request; "tree" sums directly (exactly) instead.
 MIN_TREE_TOLERANCE = 1e-10
-# "auto" uses the tree when (sources x targets) exceeds this many pairs:
-# the measured break-even of direct and tree summation (benchmarks/bench_tree.py).
-AUTO_CROSSOVER_PAIRS = 4e8
-
-
 def check_tolerance(tolerance) -> float:
     """Return ``tolerance`` as a float in (0, 1) or raise InputError."""
     try:
@@ -190,13 +197,13 @@ def use_tree(method: str, source_counts: list[int], n_targets: int, tolerance: f
     "direct" never; "tree" unless the source set is too small to gain
     (fewer than ``MIN_TREE_SOURCES`` elements in all) or the tolerance is
     below ``MIN_TREE_TOLERANCE``; "auto" like "tree" and only above
-    ``AUTO_CROSSOVER_PAIRS`` source-target pairs.
+    :func:`auto_crossover_pairs` source-target pairs.
     """
     n_src = sum(source_counts)
     if method == "direct" or n_targets == 0 or n_src < MIN_TREE_SOURCES \
             or tolerance < MIN_TREE_TOLERANCE:
         return False
-    return method == "tree" or n_src * n_targets >= AUTO_CROSSOVER_PAIRS
+    return method == "tree" or n_src * n_targets >= auto_crossover_pairs(tolerance)
 
 
 def check_memory(n_targets: int, source_counts: list[int], gradient: bool, tree: bool,
@@ -235,21 +242,20 @@ def available_memory() -> int:
 
 def estimated_bytes(n_targets: int, source_counts: list[int], order: int,
                     gradient: bool) -> int:
-    """Rough upper estimate of the treecode's peak memory [bytes].
+    """Upper estimate of the treecode's peak memory [bytes].
 
-    Targets: sorted copies, keys, accumulators and the result; each source
-    set: sorted copies and keys; cells: about 4 N / LEAF_SIZE per tree, each
-    with 3 T(p) moment or local coefficients and of order a few hundred list
-    entries.
+    Per target: sorted copies, keys, accumulators and the result; per source
+    element: sorted copies and keys; cells: about N/20 per tree (leaves of
+    ~23 points on average at worst for spread-out sets), target cells
+    holding local coefficients (two parts) and lists of about 150 far cells
+    (40 bytes an entry), source cells their full and reduced moments.
+    Measured peak for 10^6 points at 1e-4: 1.1 GiB (estimate 1.6).
     """
-    per_target = 8 * (3 + 3 + 2 * (3 + (9 if gradient else 0)))
-    per_source = 8 * (3 + 8 + 3)
     coeff = 8 * 3 * n_terms(order)
-    cells_t = 4 * n_targets // LEAF_SIZE + 8
-    total = n_targets * per_target + cells_t * (coeff + 300 * 16)
+    per_target = 8 * (3 + 2 + 2 * (3 + (9 if gradient else 0)))
+    total = n_targets * per_target + (n_targets // 20 + 8) * (2 * coeff + 150 * 40)
     for n in source_counts:
-        cells_s = 4 * n // LEAF_SIZE + 8
-        total += n * per_source + cells_s * (coeff + 128)
+        total += n * 8 * (9 + 2) + (n // 20 + 8) * 1.4 * coeff
     return int(total)
 
 
