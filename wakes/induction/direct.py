@@ -5,6 +5,16 @@ block of ``TARGET_BLOCK`` targets uses them; the inner loop runs over
 contiguous slices so LLVM emits vector loads (about 3x faster than indexing
 the full arrays), and reductions are allowed to reassociate (fastmath
 ``reassoc``/``contract`` only: no NaN/Inf assumptions) so they vectorize.
+``error_model="numpy"`` keeps division from raising, so nothing in a pair
+loop branches out of it.
+
+The Gaussian kernel differs from the singular one only within
+``sqrt(T_FAR)`` = 9.5 sigma (by less than 3e-19 beyond), so its sources are
+visited in sub-blocks of ``SUB_BLOCK``: a sub-block whose bounding box is
+that far from the target in units of its largest sigma uses the singular
+law, one beyond ``sqrt(T_NEAR)`` sigma skips the near-centre series, and
+only the rest pays the full kernel. :func:`particles_direct` sorts Gaussian
+sources along a Morton curve first so that sub-blocks are compact.
 
 Inputs are structure-of-arrays float64 vectors; nothing is checked here.
 Every driver writes velocity (M, 3) and, for the gradient drivers,
@@ -16,25 +26,191 @@ import math
 import numpy as np
 from numba import njit, prange
 
-from .pairs import (SINGULAR_LINE_FRACTION_SQ, particle_f, segment_geometry,
-                    segment_phi)
-from .smoothing import CORE_SINGULAR
+from .gaussian import T_FAR, T_NEAR
+from .pairs import (SINGULAR_LINE_FRACTION_SQ, gaussian_f, gaussian_f_far, particle_f,
+                    segment_geometry, segment_phi)
+from .smoothing import CORE_SINGULAR, GAUSSIAN, SINGULAR
 
 TARGET_BLOCK = 128
 SOURCE_BLOCK = 1024
+SUB_BLOCK = 32
 INV_4PI = 1.0 / (4.0 * math.pi)
 _FASTMATH = {"reassoc", "contract"}
+# Internal law code next to the kernel codes of .smoothing: the Gaussian
+# kernel where every pair has t >= T_NEAR.
+_GAUSSIAN_FAR = -1
 
 
 # ----------------------------------------------------------------------------
 # particles
 # ----------------------------------------------------------------------------
 
-@njit(inline="always", cache=True, fastmath=_FASTMATH)
+@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model="numpy")
+def _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, binv2, binv3, k0, k1, law,
+                 gradient, i, vel, grad):
+    """Add sources k0..k1 of one source block to target i.
+
+    ``law`` is a kernel code, or ``_GAUSSIAN_FAR``; ``binv2``, ``binv3`` are
+    the sources' 1/sigma^2 and 1/sigma^3 (read by the Gaussian laws only).
+    The index is unsigned so numba emits no negative-index wraparound:
+    LLVM then sees consecutive addresses and emits vector loads (a signed
+    ``range(k0, k1)`` index runs about 4x slower; a slice would cost a
+    reference-count update per call).
+    """
+    ux = 0.0
+    uy = 0.0
+    uz = 0.0
+    # gradient: sum f alpha (antisymmetric part) and sum f' (alpha x r)_j r_k;
+    # the second is trace-free ((alpha x r).r = 0), so its zz entry is -(xx + yy)
+    fax = 0.0
+    fay = 0.0
+    faz = 0.0
+    gxx = 0.0
+    gxy = 0.0
+    gxz = 0.0
+    gyx = 0.0
+    gyy = 0.0
+    gyz = 0.0
+    gzx = 0.0
+    gzy = 0.0
+    for jj in range(k1 - k0):
+        j = np.uint64(k0 + jj)
+        rx = xi - bx[j]
+        ry = yi - by[j]
+        rz = zi - bz[j]
+        r2 = rx * rx + ry * ry + rz * rz
+        if law == GAUSSIAN:
+            f, df = gaussian_f(r2, binv2[j], binv3[j])
+        elif law == _GAUSSIAN_FAR:
+            f, df = gaussian_f_far(r2, binv2[j], binv3[j])
+        else:
+            f, df = particle_f(r2, bs2[j], law)
+        cx = bay[j] * rz - baz[j] * ry
+        cy = baz[j] * rx - bax[j] * rz
+        cz = bax[j] * ry - bay[j] * rx
+        ux += f * cx
+        uy += f * cy
+        uz += f * cz
+        if gradient:
+            fax += f * bax[j]
+            fay += f * bay[j]
+            faz += f * baz[j]
+            dcx = df * cx
+            dcy = df * cy
+            dcz = df * cz
+            gxx += dcx * rx
+            gxy += dcx * ry
+            gxz += dcx * rz
+            gyx += dcy * rx
+            gyy += dcy * ry
+            gyz += dcy * rz
+            gzx += dcz * rx
+            gzy += dcz * ry
+    vel[i, 0] += ux * INV_4PI
+    vel[i, 1] += uy * INV_4PI
+    vel[i, 2] += uz * INV_4PI
+    if gradient:
+        # grad[j, k] += f eps_{j l k} alpha_l + 2 f' (alpha x r)_j r_k
+        d = 2.0 * INV_4PI
+        grad[i, 0, 0] += gxx * d
+        grad[i, 0, 1] += gxy * d - faz * INV_4PI
+        grad[i, 0, 2] += gxz * d + fay * INV_4PI
+        grad[i, 1, 0] += gyx * d + faz * INV_4PI
+        grad[i, 1, 1] += gyy * d
+        grad[i, 1, 2] += gyz * d - fax * INV_4PI
+        grad[i, 2, 0] += gzx * d - fay * INV_4PI
+        grad[i, 2, 1] += gzy * d + fax * INV_4PI
+        grad[i, 2, 2] -= (gxx + gyy) * d
+
+
+def _make_gaussian_block(gradient):
+    """Gaussian sources of one source block on targets i0..i1, by sub-block.
+
+    A separate compiled function (one per ``gradient``), not inlined: it
+    holds three copies of the pair loop, and numba's inlining of that many
+    would multiply every driver's compile time.
+    """
+
+    @njit(cache=True, fastmath=_FASTMATH, error_model="numpy")
+    def gaussian_block(tx, ty, tz, i0, i1, bx, by, bz, bax, bay, baz, bs2, inv, box,
+                       vel, grad):
+        m = bx.shape[0]
+        inv2 = inv[0]
+        inv3 = inv[1]
+        for j in range(m):
+            inv2[j] = 1.0 / bs2[j]
+            inv3[j] = inv2[j] * math.sqrt(inv2[j])
+        # per sub-block: bounding box (xmin, xmax, ymin, ymax, zmin, zmax), max sigma^2
+        n_sub = (m + SUB_BLOCK - 1) // SUB_BLOCK
+        for b in range(n_sub):
+            k0 = b * SUB_BLOCK
+            k1 = min(k0 + SUB_BLOCK, m)
+            box[b, 0] = box[b, 1] = bx[k0]
+            box[b, 2] = box[b, 3] = by[k0]
+            box[b, 4] = box[b, 5] = bz[k0]
+            box[b, 6] = bs2[k0]
+            for k in range(k0 + 1, k1):
+                box[b, 0] = min(box[b, 0], bx[k])
+                box[b, 1] = max(box[b, 1], bx[k])
+                box[b, 2] = min(box[b, 2], by[k])
+                box[b, 3] = max(box[b, 3], by[k])
+                box[b, 4] = min(box[b, 4], bz[k])
+                box[b, 5] = max(box[b, 5], bz[k])
+                box[b, 6] = max(box[b, 6], bs2[k])
+        for i in range(i0, i1):
+            xi = tx[i]
+            yi = ty[i]
+            zi = tz[i]
+            # runs of consecutive sub-blocks of one class are summed in one
+            # call: 0 singular law, 1 far form, 2 full Gaussian
+            b0 = 0
+            cls0 = -1
+            for b in range(n_sub + 1):
+                if b < n_sub:
+                    dx = max(box[b, 0] - xi, 0.0, xi - box[b, 1])
+                    dy = max(box[b, 2] - yi, 0.0, yi - box[b, 3])
+                    dz = max(box[b, 4] - zi, 0.0, zi - box[b, 5])
+                    d2 = dx * dx + dy * dy + dz * dz
+                    if d2 >= T_FAR * box[b, 6]:
+                        cls = 0
+                    elif d2 >= T_NEAR * box[b, 6]:
+                        cls = 1
+                    else:
+                        cls = 2
+                    if cls == cls0:
+                        continue
+                if cls0 >= 0:
+                    k0 = b0 * SUB_BLOCK
+                    k1 = min(b * SUB_BLOCK, m)
+                    # constant laws in each call, so each loop is specialised
+                    if cls0 == 0:
+                        _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, bs2, bs2,
+                                     k0, k1, SINGULAR, gradient, i, vel, grad)
+                    elif cls0 == 1:
+                        _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, inv2, inv3,
+                                     k0, k1, _GAUSSIAN_FAR, gradient, i, vel, grad)
+                    else:
+                        _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, inv2, inv3,
+                                     k0, k1, GAUSSIAN, gradient, i, vel, grad)
+                if b < n_sub:
+                    b0 = b
+                    cls0 = cls
+
+    return gaussian_block
+
+
+_gaussian_velocity_block = _make_gaussian_block(False)
+_gaussian_gradient_block = _make_gaussian_block(True)
+
+
+@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model="numpy")
 def _particle_block(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient,
                     i0, i1, vel, grad):
     """Accumulate all sources on targets i0..i1 (one target block)."""
     n_src = sx.shape[0]
+    if kernel == GAUSSIAN:
+        inv = np.empty((2, SOURCE_BLOCK))
+        box = np.empty((SOURCE_BLOCK // SUB_BLOCK, 7))
     for j0 in range(0, n_src, SOURCE_BLOCK):
         j1 = min(j0 + SOURCE_BLOCK, n_src)
         bx = sx[j0:j1]
@@ -44,71 +220,17 @@ def _particle_block(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient,
         bay = ay[j0:j1]
         baz = az[j0:j1]
         bs2 = s2[j0:j1]
-        m = j1 - j0
-        for i in range(i0, i1):
-            xi = tx[i]
-            yi = ty[i]
-            zi = tz[i]
-            ux = 0.0
-            uy = 0.0
-            uz = 0.0
-            # gradient accumulators: sum f*alpha (antisymmetric part) and
-            # sum 2 f' (alpha x r)_j r_k
-            fax = 0.0
-            fay = 0.0
-            faz = 0.0
-            gxx = 0.0
-            gxy = 0.0
-            gxz = 0.0
-            gyx = 0.0
-            gyy = 0.0
-            gyz = 0.0
-            gzx = 0.0
-            gzy = 0.0
-            gzz = 0.0
-            for j in range(m):
-                rx = xi - bx[j]
-                ry = yi - by[j]
-                rz = zi - bz[j]
-                r2 = rx * rx + ry * ry + rz * rz
-                f, df = particle_f(r2, bs2[j], kernel)
-                cx = bay[j] * rz - baz[j] * ry
-                cy = baz[j] * rx - bax[j] * rz
-                cz = bax[j] * ry - bay[j] * rx
-                ux += f * cx
-                uy += f * cy
-                uz += f * cz
-                if gradient:
-                    fax += f * bax[j]
-                    fay += f * bay[j]
-                    faz += f * baz[j]
-                    d = 2.0 * df
-                    dcx = d * cx
-                    dcy = d * cy
-                    dcz = d * cz
-                    gxx += dcx * rx
-                    gxy += dcx * ry
-                    gxz += dcx * rz
-                    gyx += dcy * rx
-                    gyy += dcy * ry
-                    gyz += dcy * rz
-                    gzx += dcz * rx
-                    gzy += dcz * ry
-                    gzz += dcz * rz
-            vel[i, 0] += ux * INV_4PI
-            vel[i, 1] += uy * INV_4PI
-            vel[i, 2] += uz * INV_4PI
+        if kernel == GAUSSIAN:
             if gradient:
-                # grad[j, k] += f eps_{j l k} alpha_l + 2 f' (alpha x r)_j r_k
-                grad[i, 0, 0] += gxx * INV_4PI
-                grad[i, 0, 1] += (gxy - faz) * INV_4PI
-                grad[i, 0, 2] += (gxz + fay) * INV_4PI
-                grad[i, 1, 0] += (gyx + faz) * INV_4PI
-                grad[i, 1, 1] += gyy * INV_4PI
-                grad[i, 1, 2] += (gyz - fax) * INV_4PI
-                grad[i, 2, 0] += (gzx - fay) * INV_4PI
-                grad[i, 2, 1] += (gzy + fax) * INV_4PI
-                grad[i, 2, 2] += gzz * INV_4PI
+                _gaussian_gradient_block(tx, ty, tz, i0, i1, bx, by, bz, bax, bay, baz, bs2,
+                                         inv, box, vel, grad)
+            else:
+                _gaussian_velocity_block(tx, ty, tz, i0, i1, bx, by, bz, bax, bay, baz, bs2,
+                                         inv, box, vel, grad)
+        else:
+            for i in range(i0, i1):
+                _sum_sources(tx[i], ty[i], tz[i], bx, by, bz, bax, bay, baz, bs2, bs2, bs2,
+                             0, j1 - j0, kernel, gradient, i, vel, grad)
 
 
 def _make_particle_driver(kernel, gradient):
@@ -119,7 +241,7 @@ def _make_particle_driver(kernel, gradient):
     the closure's contents), and only the pairs a run uses get compiled.
     """
 
-    @njit(parallel=True, cache=True, fastmath=_FASTMATH)
+    @njit(parallel=True, cache=True, fastmath=_FASTMATH, error_model="numpy")
     def driver(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, vel, grad):
         n_tgt = tx.shape[0]
         n_blocks = (n_tgt + TARGET_BLOCK - 1) // TARGET_BLOCK
@@ -133,6 +255,40 @@ def _make_particle_driver(kernel, gradient):
 
 
 _PARTICLE_DRIVERS: dict = {}
+
+
+def _spread_bits(v):
+    """Spread the low 10 bits of each uint64 so two zero bits follow each."""
+    v = (v | (v << np.uint64(16))) & np.uint64(0x030000FF)
+    v = (v | (v << np.uint64(8))) & np.uint64(0x0300F00F)
+    v = (v | (v << np.uint64(4))) & np.uint64(0x030C30C3)
+    return (v | (v << np.uint64(2))) & np.uint64(0x09249249)
+
+
+def morton_order(x, y, z):
+    """Permutation sorting points along a Morton (Z-order) curve.
+
+    Points are binned on a 1024^3 grid over their bounding cube; points in
+    a run of the sorted order are close together (Morton 1966, IBM report).
+
+    Parameters
+    ----------
+    x, y, z : (N,) float64
+        Coordinates.
+
+    Returns
+    -------
+    (N,) int64
+        Indices in curve order.
+    """
+    pts = np.stack((x, y, z))
+    lo = pts.min(axis=1, keepdims=True)
+    span = float((pts.max(axis=1, keepdims=True) - lo).max())
+    scale = 1023.0 / span if span > 0.0 else 0.0
+    cells = np.minimum((pts - lo) * scale, 1023.0).astype(np.uint64)
+    key = (_spread_bits(cells[0]) | (_spread_bits(cells[1]) << np.uint64(1))
+           | (_spread_bits(cells[2]) << np.uint64(2)))
+    return np.argsort(key, kind="stable")
 
 
 def particles_direct(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient, vel, grad):
@@ -156,6 +312,9 @@ def particles_direct(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient, v
     key = (int(kernel), bool(gradient))
     if key not in _PARTICLE_DRIVERS:
         _PARTICLE_DRIVERS[key] = _make_particle_driver(*key)
+    if key[0] == GAUSSIAN and sx.shape[0] > 2 * SUB_BLOCK:
+        order = morton_order(sx, sy, sz)
+        sx, sy, sz, ax, ay, az, s2 = (v[order] for v in (sx, sy, sz, ax, ay, az, s2))
     _PARTICLE_DRIVERS[key](tx, ty, tz, sx, sy, sz, ax, ay, az, s2, vel, grad)
 
 
@@ -163,7 +322,7 @@ def particles_direct(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient, v
 # filament segments
 # ----------------------------------------------------------------------------
 
-@njit(inline="always", cache=True, fastmath=_FASTMATH)
+@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model="numpy")
 def _segment_block(tx, ty, tz, pax, pay, paz, pbx, pby, pbz, gam, rc2, core, gradient,
                    i0, i1, vel, grad):
     n_src = pax.shape[0]
@@ -256,7 +415,7 @@ def _segment_block(tx, ty, tz, pax, pay, paz, pbx, pby, pbz, gam, rc2, core, gra
 def _make_segment_driver(core, gradient):
     """Compile-on-demand parallel driver for one (core, gradient) pair."""
 
-    @njit(parallel=True, cache=True, fastmath=_FASTMATH)
+    @njit(parallel=True, cache=True, fastmath=_FASTMATH, error_model="numpy")
     def driver(tx, ty, tz, pax, pay, paz, pbx, pby, pbz, gam, rc2, vel, grad):
         n_tgt = tx.shape[0]
         n_blocks = (n_tgt + TARGET_BLOCK - 1) // TARGET_BLOCK

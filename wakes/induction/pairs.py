@@ -1,9 +1,11 @@
 """The two pair laws, each written once and inlined by every driver.
 
-* :func:`particle_pair` -- regularized Biot--Savart of one vortex particle,
+* :func:`particle_f` -- regularized Biot--Savart of one vortex particle,
   u = f(r^2) (alpha x r) / (4 pi), with f = q(rho)/|r|^3 and r = x - x_q
-  (Winckelmans & Leonard 1993, J. Comput. Phys. 109).
-* :func:`segment_pair` -- one straight vortex segment with a core factor,
+  (Winckelmans & Leonard 1993, J. Comput. Phys. 109). The Gaussian kernel's
+  factor comes from :func:`gaussian_f`, which drivers call directly with the
+  per-source 1/sigma^2 and 1/sigma^3 they precompute.
+* :func:`segment_phi`, :func:`segment_geometry` -- one straight vortex segment with a core factor,
   u = Gamma/(4 pi) (r1 x r2) phi(h^2)/|r0|^2 r0.(r1/|r1| - r2/|r2|)
   (Katz & Plotkin 2001, *Low-Speed Aerodynamics*), where phi(h^2) is the core
   factor divided by h^2, h the distance from the segment's line.
@@ -21,7 +23,7 @@ from numba import njit
 from .smoothing import (CORE_LAMB_OSEEN, CORE_RANKINE, CORE_SCULLY, CORE_SINGULAR,
                         CORE_VATISTAS2, GAUSSIAN, LAMB_OSEEN_ALPHA, ROSENHEAD_MOORE,
                         SINGULAR, WINCKELMANS_LEONARD)
-from .gaussian import gaussian_g
+from .gaussian import gaussian_g, gaussian_g_far
 
 # A target closer than this fraction of a segment's length to a singular
 # segment's line gets nothing from it (the line itself carries no velocity).
@@ -70,9 +72,29 @@ def particle_f(r2, s2, kernel):
         return num * y5, y5 * (1.0 - 2.5 * num * y2)
     else:  # GAUSSIAN
         inv_s2 = 1.0 / s2
-        g, dg = gaussian_g(r2 * inv_s2)
-        inv_s3 = inv_s2 * math.sqrt(inv_s2)
-        return g * inv_s3, dg * inv_s3 * inv_s2
+        return gaussian_f(r2, inv_s2, inv_s2 * math.sqrt(inv_s2))
+
+
+@njit(inline="always", cache=True)
+def gaussian_f(r2, inv_s2, inv_s3):
+    """Gaussian-kernel f = g(t)/sigma^3 and df/d(r^2), t = r^2/sigma^2.
+
+    Parameters
+    ----------
+    r2 : float
+        Squared distance [m^2].
+    inv_s2, inv_s3 : float
+        1/sigma^2 [1/m^2] and 1/sigma^3 [1/m^3] of the source.
+    """
+    g, dg = gaussian_g(r2 * inv_s2)
+    return g * inv_s3, dg * inv_s3 * inv_s2
+
+
+@njit(inline="always", cache=True)
+def gaussian_f_far(r2, inv_s2, inv_s3):
+    """As :func:`gaussian_f`, valid only where r^2 >= T_NEAR sigma^2."""
+    g, dg = gaussian_g_far(r2 * inv_s2)
+    return g * inv_s3, dg * inv_s3 * inv_s2
 
 
 @njit(inline="always", cache=True)
