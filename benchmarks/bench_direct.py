@@ -1,0 +1,219 @@
+"""Direct Biot--Savart summation: pair interactions per second.
+
+Sources = targets: N points uniform in the unit cube, normal random vector
+strengths, one smoothing radius sigma = overlap * h with h = N^(-1/3) the
+mean spacing (overlap 1.5 by default; an overlap of 1 to 2 is common
+practice for vortex particles). Velocity, or velocity and gradient, by
+``wakes.induce(..., method="direct")`` with 1 and 2 numba threads. Every
+configuration is timed ``--repeats`` times, round-robin so that a busy spell
+on the shared machine spreads over all rows; the table gives the median,
+the fastest and the slowest run, and N^2 / median in million pairs per
+second.
+
+The Gaussian kernel equals the singular one beyond 9.5 sigma to round-off,
+and the driver uses that (see ``wakes/induction/direct.py``), so its rate
+depends on sigma: the "gaussian (dense)" rows put every pair within
+9.5 sigma (sigma = 0.5, the cube's diagonal is 1.73) and show the worst case.
+
+Options::
+
+    python benchmarks/bench_direct.py              # N = 16,000 and 64,000; appends to RESULTS.md
+    python benchmarks/bench_direct.py --quick      # N = 4,000; prints only
+    python benchmarks/bench_direct.py --compile    # compile time of each driver (fresh cache)
+    python benchmarks/bench_direct.py --asm        # packed (vector) instructions per driver
+
+``NUMBA_CPU_FEATURES`` is honoured as numba reads it. On CPUs with AVX-512
+that numba treats as an older model, ``NUMBA_CPU_FEATURES=<host
+features>,-prefer-256-bit`` gives 512-bit code: a benchmark-only knob (the
+numba cache is per CPU, and users' machines differ), recorded in the table
+header when set.
+"""
+
+from __future__ import annotations
+
+import argparse
+import datetime
+import os
+import platform
+import re
+import subprocess
+import sys
+import tempfile
+import time
+
+import numpy as np
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+ROOT = os.path.dirname(HERE)
+RESULTS = os.path.join(HERE, "RESULTS.md")
+sys.path.insert(0, ROOT)
+
+KERNELS = ("winckelmans-leonard", "gaussian")
+DENSE_SIGMA = 0.5   # every pair of the unit cube within 9.5 sigma
+
+
+def problem(n: int, sigma: float, seed: int = 7):
+    import wakes
+
+    rng = np.random.default_rng(seed)
+    x = rng.uniform(0.0, 1.0, (n, 3))
+    alpha = rng.normal(size=(n, 3)) / n
+    return wakes.Particles(x, alpha, sigma, kernel="winckelmans-leonard"), x, alpha
+
+
+def configurations(sizes, overlap, dense):
+    rows = []
+    for n in sizes:
+        for kernel in KERNELS:
+            for gradient in (False, True):
+                rows.append((kernel, n, gradient, overlap * n ** (-1 / 3), ""))
+        if dense:
+            for gradient in (False, True):
+                rows.append(("gaussian", n, gradient, DENSE_SIGMA, " (dense)"))
+    return rows
+
+
+def run_timings(rows, threads, repeats):
+    import numba
+
+    import wakes
+
+    cache = {}
+    times = {}
+    for r in range(repeats + 1):          # round 0 compiles / loads the cache
+        for nt in threads:
+            numba.set_num_threads(nt)
+            for kernel, n, gradient, sigma, tag in rows:
+                key = (n, sigma)
+                if key not in cache:
+                    cache[key] = problem(n, sigma)
+                _, x, alpha = cache[key]
+                p = wakes.Particles(x, alpha, sigma, kernel=kernel)
+                t0 = time.perf_counter()
+                wakes.induce(p, x, gradient=gradient, method="direct")
+                dt = time.perf_counter() - t0
+                if r:
+                    times.setdefault((kernel + tag, n, gradient, nt), []).append(dt)
+            print(f"round {r}/{repeats} ({nt} thread(s)) done", flush=True)
+    return times
+
+
+def machine() -> str:
+    model = platform.processor() or "unknown CPU"
+    flags = ""
+    try:
+        with open("/proc/cpuinfo") as f:
+            text = f.read()
+        model = re.search(r"model name\s*:\s*(.*)", text).group(1)
+        flags = re.search(r"flags\s*:\s*(.*)", text).group(1).split()
+    except (OSError, AttributeError):
+        pass
+    simd = "AVX-512" if "avx512f" in flags else ("AVX2" if "avx2" in flags else "no AVX2")
+    return f"{model}, {os.cpu_count()} logical CPUs, {simd}"
+
+
+def git_commit() -> str:
+    try:
+        rev = subprocess.run(["git", "rev-parse", "--short", "HEAD"], cwd=ROOT,
+                             capture_output=True, text=True, check=True).stdout.strip()
+        dirty = subprocess.run(["git", "status", "--porcelain", "--", "wakes/induction"], cwd=ROOT,
+                               capture_output=True, text=True).stdout.strip()
+        return rev + (" (wakes/induction modified)" if dirty else "")
+    except (OSError, subprocess.CalledProcessError):
+        return "unknown"
+
+
+def table(times, repeats) -> str:
+    import numba
+
+    stamp = datetime.datetime.now().strftime("%Y-%m-%d %H:%M")
+    load = os.getloadavg()
+    head = [f"{stamp}, commit {git_commit()}, {machine()}, numba {numba.__version__} "
+            f"({numba.threading_layer()} threading layer), float64, median of {repeats}.",
+            f"Load average at the end of the run: {load[0]:.1f} {load[1]:.1f} {load[2]:.1f} "
+            f"(2 cores, shared with other users)."]
+    if os.environ.get("NUMBA_CPU_FEATURES"):
+        head.append(f"NUMBA_CPU_FEATURES={os.environ['NUMBA_CPU_FEATURES']}")
+    lines = ["| kernel | N | gradient | threads | seconds median (min-max) | M pairs/s |",
+             "|---|---|---|---|---|---|"]
+    for (kernel, n, gradient, nt), ts in times.items():
+        med = float(np.median(ts))
+        lines.append(f"| {kernel} | {n:,} | {'yes' if gradient else 'no'} | {nt} | "
+                     f"{med:.3f} ({min(ts):.3f}-{max(ts):.3f}) | {n * n / med / 1e6:,.0f} |")
+    return "\n".join(head) + "\n\n" + "\n".join(lines) + "\n"
+
+
+# ------------------------------------------------------ compile time, asm
+
+_PROBE = """
+import sys, time, numpy as np
+sys.path.insert(0, {root!r})
+from wakes.induction import direct
+from wakes.induction.smoothing import PARTICLE_KERNELS
+kernel, gradient = PARTICLE_KERNELS[{kernel!r}].code, {gradient!r}
+rng = np.random.default_rng(0)
+c = [rng.random(300) for _ in range(6)]
+vel = np.zeros((300, 3)); grad = np.zeros((300, 3, 3) if gradient else (0, 3, 3))
+t0 = time.perf_counter(); c0 = time.process_time()
+direct.particles_direct(*c[:3], *c, np.full(300, 0.01), kernel, gradient, vel, grad)
+print("TIME", time.perf_counter() - t0, time.process_time() - c0)
+if {asm!r}:
+    import re
+    fns = [direct._PARTICLE_DRIVERS[(kernel, gradient)]]
+    if kernel == direct.GAUSSIAN:
+        fns.append(direct._gaussian_gradient_block if gradient else direct._gaussian_velocity_block)
+    text = "".join(f.inspect_asm(f.signatures[0]) for f in fns)
+    for name in ("vsqrtpd", "vdivpd", "vfmadd[0-9]+pd", "vmulpd", "vaddpd"):
+        found = re.findall(name + r"\\s+%([xyz])mm", text)
+        print("ASM", name.replace("[0-9]+", "*"), "ymm", found.count("y"), "zmm", found.count("z"),
+              "xmm", found.count("x"))
+"""
+
+
+def probe(kernel: str, gradient: bool, asm: bool):
+    """Compile one driver in a fresh process with an empty numba cache."""
+    with tempfile.TemporaryDirectory() as cache_dir:
+        env = dict(os.environ, NUMBA_CACHE_DIR=cache_dir)
+        code = _PROBE.format(root=ROOT, kernel=kernel, gradient=gradient, asm=asm)
+        out = subprocess.run([sys.executable, "-c", code], env=env, capture_output=True,
+                             text=True, check=True).stdout
+    return out
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--quick", action="store_true", help="N = 4,000, print only")
+    parser.add_argument("--sizes", type=int, nargs="+", default=[16000, 64000])
+    parser.add_argument("--repeats", type=int, default=3)
+    parser.add_argument("--overlap", type=float, default=1.5, help="sigma / mean spacing")
+    parser.add_argument("--no-dense", action="store_true", help="skip the dense Gaussian rows")
+    parser.add_argument("--compile", action="store_true", help="compile time per driver")
+    parser.add_argument("--asm", action="store_true", help="vector instructions per driver")
+    parser.add_argument("--no-append", action="store_true", help="print only")
+    args = parser.parse_args()
+
+    if args.compile or args.asm:
+        for kernel in KERNELS:
+            for gradient in (False, True):
+                out = probe(kernel, gradient, args.asm)
+                wall, cpu = map(float, re.search(r"TIME (\S+) (\S+)", out).groups())
+                print(f"{kernel:20s} gradient={gradient!s:5s} compile {wall:5.1f} s wall, "
+                      f"{cpu:5.1f} s CPU")
+                for line in out.splitlines():
+                    if line.startswith("ASM"):
+                        print("    ", line[4:])
+        return
+
+    sizes = [4000] if args.quick else args.sizes
+    rows = configurations(sizes, args.overlap, not args.no_dense)
+    times = run_timings(rows, (1, 2), args.repeats)
+    text = table(times, args.repeats)
+    print(text)
+    if not (args.quick or args.no_append):
+        with open(RESULTS, "a") as f:
+            f.write(f"\n## Direct summation, pairs per second (bench_direct.py)\n\n{text}")
+        print(f"appended to {RESULTS}")
+
+
+if __name__ == "__main__":
+    main()
