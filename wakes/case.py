@@ -38,6 +38,8 @@ import numpy as np
 
 from .aero.geometry import DISTRIBUTION_LAWS, SPACINGS, Distribution, WingPlanform
 from .aero.polars import OUT_OF_RANGE_MODES, load_polar_table
+from .aero.rotor import BLADE_SPACINGS, RotorGeometry
+from .aero.rotor_loads import ROTOR_KINDS
 from .dynamics import STRETCHING_SCHEMES
 from .errors import CaseError
 from .induction.api import METHODS
@@ -268,7 +270,115 @@ class WingSpec:
         return set()
 
 
-BODY_TYPES: dict[str, type] = {"wing": WingSpec}
+MAX_AZIMUTH_STEP = 30.0     # largest blade turn per step accepted [deg]; 5-10 advised (common practice)
+
+
+@dataclass(frozen=True, kw_only=True)
+class RotorSpec:
+    """[bodies.NAME] with type = "rotor": a lift rotor, propeller or wind turbine.
+
+    Chord and twist are laws along the blade in eta = (r - root_cutout) /
+    (radius - root_cutout): 0 at the root cut-out, 1 at the tip. ``axis``
+    is the thrust direction (downwind for a turbine); see
+    :mod:`wakes.aero.rotor` for the frames.
+    """
+
+    type: str = key("rotor", "body type", kind="str", choices=("rotor",))
+    kind: str = key("rotor", "coefficients reported: lift rotor, propeller or wind turbine",
+                    kind="str", choices=ROTOR_KINDS)
+    blades: int = key(doc="number of blades", kind="int", minimum=1, maximum=64)
+    radius: float = key(doc="tip radius, along the blade from the hub centre", unit="m", above=0.0)
+    root_cutout: float = key(doc="radius where the lifting blade starts (less than radius)",
+                             unit="m", minimum=0.0)
+    chord: Distribution = key(doc="chord along the blade (eta 0 at the root cut-out, 1 at the tip)",
+                              unit="m", kind="distribution", above=0.0)
+    twist: Distribution = key(Distribution.constant(0.0), "section pitch added to the collective, "
+                              "along the blade", "deg", kind="distribution", minimum=-90.0, maximum=90.0)
+    collective: float = key(0.0, "pitch of every section before twist, leading edge towards +axis",
+                            "deg", minimum=-90.0, maximum=90.0)
+    rpm: float = key(doc="rotational speed", unit="rev/min", above=0.0)
+    spin: str = key("ccw", "ccw: counter-clockwise seen from the +axis side (right-handed about it)",
+                    kind="str", choices=("ccw", "cw"))
+    hub: tuple = key((0.0, 0.0, 0.0), "hub centre in the global frame", "m", kind="vec3")
+    axis: tuple = key((0.0, 0.0, 1.0), "thrust direction (downwind for a turbine), not zero",
+                      kind="vec3")
+    precone: float = key(0.0, "cone angle of the blades towards +axis", "deg",
+                         minimum=-30.0, maximum=30.0)
+    azimuth: float = key(0.0, "position of blade 1 at the start, from global +x projected on the "
+                         "disc (+z if the axis lies along x)", "deg", minimum=-360.0, maximum=360.0)
+    panels: int = key(16, "strips per blade", kind="int", minimum=2, maximum=200)
+    spacing: str = key("cosine", "station spacing: cosine (root and tip), tip, uniform", kind="str",
+                       choices=BLADE_SPACINGS)
+    azimuth_step: float = key(10.0, "blade turn per time step when [time] dt is not given", "deg",
+                              above=0.0, maximum=MAX_AZIMUTH_STEP)
+    revolutions: float = key(10.0, "run length when [time] steps is not given", above=0.0)
+    wake_revolutions: float = key(float("inf"), "wake older than this many revolutions is removed "
+                                  "(inf: kept)", above=0.0, allow_inf=True)
+    rollup_age: float = key(30.0, "wake age where the blade's sheet rolls up into a tip vortex "
+                            "(inf: never)", "deg", above=0.0, allow_inf=True)
+    inboard_trailers: int = key(1, "free trailers the inboard part of the rolled-up wake is gathered "
+                                "into (0: not followed)", kind="int", minimum=0, maximum=32)
+    symmetric_wake: bool = key(False, "keep the blades' wakes B-fold symmetric (axial flow only)",
+                               kind="bool")
+    startup_revolutions: float = key(2.0, "lift rotor: revolutions over which a start-up drift of "
+                                     "the wake fades (0: none)", minimum=0.0)
+    airfoil: AirfoilSpec = key(AirfoilSpec(), "section polar", kind="table")
+    name: str = field(default="rotor", metadata=dict(internal=True))
+
+    def geometry(self) -> RotorGeometry:
+        """The rotor's blades, hub and rotation."""
+        return RotorGeometry(blades=self.blades, radius=self.radius, root_cutout=self.root_cutout,
+                             chord=self.chord, twist=self.twist, collective=self.collective,
+                             rpm=self.rpm, spin=1 if self.spin == "ccw" else -1, hub=self.hub,
+                             axis=self.axis, precone=self.precone, azimuth0=self.azimuth,
+                             panels=self.panels, spacing=self.spacing)
+
+    def mean_chord(self) -> float:
+        """Chord averaged along the blade [m]."""
+        return self.geometry().mean_chord()
+
+    def after_parse(self, raw: dict, where: str, ctx) -> "RotorSpec":
+        if not self.root_cutout < self.radius:
+            ctx.fail(f"{where}.root_cutout must be less than {where}.radius = {self.radius:g} m "
+                     f"(the blade runs from the cut-out to the tip); got {self.root_cutout:g} m")
+        for name in ("chord", "twist"):
+            problem = getattr(self, name).problem(True)
+            if problem:
+                ctx.fail(f"{where}.{name}: {problem}")
+        if not np.linalg.norm(self.axis) > 0.0:
+            ctx.fail(f"{where}.axis must be a nonzero vector (the thrust direction); got {list(self.axis)}")
+        return self
+
+    def check(self, case: "Case", where: str, ctx) -> None:
+        dt = case.time.dt
+        if dt is not None and 6.0 * self.rpm * dt > MAX_AZIMUTH_STEP:
+            ctx.fail(f"time.dt = {dt:g} s turns the blades of {where} by {6.0 * self.rpm * dt:.3g} deg "
+                     f"a step at {self.rpm:g} rpm; at most {MAX_AZIMUTH_STEP:g} deg is accepted "
+                     f"(5-10 deg advised): dt must be at most {MAX_AZIMUTH_STEP / (6.0 * self.rpm):.4g} s")
+        a = np.asarray(self.axis, dtype=np.float64)
+        axial = float(case.freestream.vector() @ (a / np.linalg.norm(a)))
+        if self.kind == "turbine" and not axial > 0.0:
+            ctx.fail(f"{where}: a turbine needs wind blowing along its axis (downwind); the "
+                     f"[freestream] velocity along {where}.axis is {axial:g} m/s, it must be positive")
+        if self.kind == "propeller" and axial > 0.0:
+            ctx.fail(f"{where}: a propeller's axis points forward, against the relative wind; the "
+                     f"[freestream] velocity along {where}.axis is {axial:g} m/s, it must be zero "
+                     "or negative")
+
+    def resolve(self, case: "Case") -> "RotorSpec":
+        return self
+
+    def suggest_dt(self, case: "Case") -> float:
+        return self.azimuth_step / (6.0 * self.rpm)
+
+    def suggest_steps(self, case: "Case", dt: float) -> int:
+        return int(math.ceil(self.revolutions * 60.0 / (self.rpm * dt) - 1e-9)) + 1
+
+    def omitted(self) -> set:
+        return set()
+
+
+BODY_TYPES: dict[str, type] = {"wing": WingSpec, "rotor": RotorSpec}
 
 
 @dataclass(frozen=True, kw_only=True)

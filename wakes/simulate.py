@@ -25,10 +25,11 @@ import numpy as np
 import pandas as pd
 
 from .aero.bodies import BODY_MODELS
+from .aero.influence_cache import RigidInfluenceCache
 from .aero.lifting_line import LinearCache, SolverSettings, solve_circulation
 from .aero.loads import strip_loads, trefftz_induced_drag
-from .aero.vortex_lattice import influence_matrix, surface_filaments
-from .aero.wake import WakeSettings, WakeSheet
+from .aero.vortex_lattice import surface_filaments
+from .aero.wake import WakeSettings
 from .case import Case
 from .dynamics import stretching_rate
 from .elements import Particles
@@ -120,6 +121,9 @@ class Run:
         lines = [f"{self.case.title}: {self.case.time.steps} steps of {self.case.time.dt:.4g} s "
                  f"in {self.wall_time_s:.1f} s"]
         for name, b in self.summary["bodies"].items():
+            if "CL" not in b:  # rotors: every figure of the summary
+                lines.append(f"  {name}: " + "  ".join(f"{k} = {v:.5g}" for k, v in b.items()))
+                continue
             lines.append(f"  {name}: CL = {b['CL']:.4f}  CDi = {b['CDi']:.5f}  "
                          f"e = {b['span_efficiency']:.4f}  lift = {b['lift_N']:.4g} N  "
                          f"induced drag = {b['induced_drag_N']:.4g} N  "
@@ -159,25 +163,6 @@ def wake_settings(case: Case) -> WakeSettings:
                         near_wake_steps=w.near_wake_steps, stretching=w.stretching,
                         max_age=w.max_age,
                         cores_at_surfaces=w.cores_at_surfaces)
-
-
-class _InfluenceCache:
-    """Influence matrices (exact, direct sums), rebuilt only when the surfaces move."""
-
-    def __init__(self):
-        self._key = None
-        self._value = None
-
-    def get(self, surfaces, eval_points, load_points):
-        key = [s.corners for s in surfaces]
-        if self._key is not None and len(key) == len(self._key) and all(
-                a.shape == b.shape and np.array_equal(a, b) for a, b in zip(key, self._key)):
-            return self._value
-        aic = influence_matrix(surfaces, eval_points)
-        aic_load = influence_matrix(surfaces, load_points) if len(load_points) else None
-        self._key = [k.copy() for k in key]
-        self._value = (aic, aic_load)
-        return self._value
 
 
 def run_case(case: Case, *, progress=None, control: RunControl | None = None,
@@ -231,12 +216,12 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
     v_inf = case.freestream.vector()
     rho, dt, steps = case.fluid.density, case.time.dt, case.time.steps
     method = {"method": case.wake.induction, "tolerance": case.wake.induction_tolerance}
-    cache = _InfluenceCache()
+    cache = RigidInfluenceCache()
     linear = LinearCache()
 
     t = 0.0
     layout = [(b, b.surfaces(t)) for b in bodies]
-    wakes = [WakeSheet(s.te_nodes, t, settings) for _, ss in layout for s in ss]
+    wakes = [b.new_wake(s, t, settings) for b, ss in layout for s in ss]
     gamma = np.zeros(sum(s.n_unknowns for _, ss in layout for s in ss))
     gamma_prev = None
     rows = []

@@ -9,6 +9,8 @@ A body model is built from its case spec and answers:
   the loads table;
 * ``section_table(strips)`` -- its spanwise (or radial) distribution;
 * ``summary(loads)`` -- the figures quoted in ``summary.json``.
+* ``new_wake(surface, time, settings)`` -- an empty wake for one of its
+  surfaces (a wing's: :class:`WakeSheet`; a rotor blade's may roll up).
 
 :data:`BODY_MODELS` maps the case's body ``type`` to the model class; new
 body types (rotors, propellers, turbines) register here.
@@ -22,6 +24,8 @@ import pandas as pd
 from .geometry import rotation_matrix, wing_surface
 from .loads import wing_totals
 from .polars import SectionPolars, ThinAirfoilPolar, load_polar_table
+from .rotor_body import RotorBody
+from .wake import WakeSheet
 
 WING_SUMMARY_KEYS = ("CL", "CDi", "span_efficiency", "lift_N", "induced_drag_N",
                      "induced_drag_trefftz_N", "CDi_trefftz", "span_efficiency_trefftz",
@@ -68,6 +72,10 @@ class WingBody:
         """The wing's one surface; a wing does not move."""
         return [self._surface]
 
+    def new_wake(self, surface, time: float, settings) -> WakeSheet:
+        """The free vortex lattice (or particles) shed by ``surface`` from ``time`` [s]."""
+        return WakeSheet(surface.te_nodes, time, settings)
+
     def loads_row(self, strips: list, trefftz_drag: float) -> dict:
         """Totals and coefficients (see :func:`wakes.aero.loads.wing_totals`)."""
         return wing_totals(strips, velocity=self.velocity, span_axis=self.span_axis,
@@ -101,4 +109,4 @@ class WingBody:
         return {k: float(last[k]) for k in WING_SUMMARY_KEYS}
 
 
-BODY_MODELS: dict[str, type] = {"wing": WingBody}
+BODY_MODELS: dict[str, type] = {"wing": WingBody, "rotor": RotorBody}

@@ -1,0 +1,177 @@
+"""Rotor loads: thrust, torque and power from the blade strips, and their coefficients.
+
+Every blade strip carries a pressure force (Kutta--Joukowski on its bound
+vortex, with the velocity that includes everything induced) and a profile
+force from its polar (:mod:`wakes.aero.loads`). About the hub centre h and
+the unit axis a (thrust direction; downwind for a turbine):
+
+* thrust T = sum F . a [N];
+* shaft torque Q = -spin sum ((x - h) x F) . a [N m], the torque the shaft
+  must supply to keep the rotation (negative when the air drives it);
+* shaft power P = Omega Q [W], split into induced power (pressure forces)
+  and profile power (profile forces).
+
+Coefficients by ``kind`` (Leishman 2006, *Principles of Helicopter
+Aerodynamics*, 2nd ed., ch. 2-3; Glauert 1926 for propellers; Betz 1920 for
+turbines), with A = pi R^2, n = Omega/(2 pi) and D = 2R:
+
+* ``rotor``: C_T = T/(rho A (Omega R)^2), C_Q = Q/(rho A (Omega R)^2 R),
+  C_P = P/(rho A (Omega R)^3), figure of merit FM = C_T^(3/2)/(sqrt(2) C_P);
+* ``propeller``: C_T = T/(rho n^2 D^4), C_P = P/(rho n^3 D^5), J = V/(n D)
+  with V the flight speed along the axis, efficiency = T V/P;
+* ``turbine``: power extracted P_w = -P, C_P = P_w/(1/2 rho A V^3),
+  C_T = T/(1/2 rho A V^2), tip-speed ratio Omega R/V with V the wind speed.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+ROTOR_KINDS = ("rotor", "propeller", "turbine")
+
+KIND_COLUMNS = {
+    "rotor": ("thrust_N", "torque_Nm", "power_W", "CT", "CQ", "CP", "FM"),
+    "propeller": ("thrust_N", "torque_Nm", "power_W", "CT", "CP", "J", "efficiency"),
+    "turbine": ("power_W", "thrust_N", "torque_Nm", "CP", "CT", "tip_speed_ratio"),
+}
+
+
+def _nan_div(num: float, den: float) -> float:
+    return num / den if den != 0.0 else float("nan")
+
+
+def blade_forces(strips, hub: np.ndarray, axis: np.ndarray, spin: int) -> dict:
+    """Thrust and shaft torque of each blade, split into pressure and profile parts.
+
+    Parameters
+    ----------
+    strips : list of StripLoads
+        One per blade (:func:`wakes.aero.loads.strip_loads`).
+    hub : ndarray, shape (3,)
+        Hub centre [m].
+    axis : ndarray, shape (3,)
+        Unit thrust axis.
+    spin : int
+        +1 or -1 (rotation sense about ``axis``).
+
+    Returns
+    -------
+    dict of ndarray, each shape (B,)
+        ``thrust`` [N], ``torque_induced`` and ``torque_profile`` [N m]
+        (shaft torque from pressure and profile forces).
+    """
+    out = {"thrust": [], "torque_induced": [], "torque_profile": []}
+    for s in strips:
+        arm = s.points - hub
+        f_p, f_v = s.force_pressure, s.force_profile
+        out["thrust"].append(float(np.sum((f_p + f_v) @ axis)))
+        out["torque_induced"].append(-spin * float(np.sum(np.cross(arm, f_p) @ axis)))
+        out["torque_profile"].append(-spin * float(np.sum(np.cross(arm, f_v) @ axis)))
+    return {k: np.asarray(v) for k, v in out.items()}
+
+
+def coefficients(kind: str, *, thrust: float, torque: float, omega: float, radius: float,
+                 density: float, speed: float) -> dict:
+    """Dimensional loads and coefficients of one rotor in the convention of ``kind``.
+
+    Parameters
+    ----------
+    kind : {"rotor", "propeller", "turbine"}
+        Which set of coefficients (module notes).
+    thrust : float
+        T along the axis [N].
+    torque : float
+        Shaft torque Q [N m].
+    omega : float
+        Rotation rate [rad/s], positive.
+    radius : float
+        R [m].
+    density : float
+        rho [kg/m^3].
+    speed : float
+        Propeller: flight speed along the axis [m/s]; turbine: wind speed
+        [m/s]; unused for a rotor.
+
+    Returns
+    -------
+    dict
+        The columns of :data:`KIND_COLUMNS` for ``kind`` (NaN where a
+        coefficient is undefined, e.g. an efficiency at zero power).
+    """
+    power = omega * torque
+    area = np.pi * radius ** 2
+    if kind == "rotor":
+        tip = omega * radius
+        ct = thrust / (density * area * tip ** 2)
+        cp = power / (density * area * tip ** 3)
+        fm = ct ** 1.5 / (np.sqrt(2.0) * cp) if ct > 0 and cp > 0 else float("nan")
+        return {"thrust_N": thrust, "torque_Nm": torque, "power_W": power, "CT": ct,
+                "CQ": torque / (density * area * tip ** 2 * radius), "CP": cp, "FM": fm}
+    if kind == "propeller":
+        n = omega / (2.0 * np.pi)
+        d = 2.0 * radius
+        return {"thrust_N": thrust, "torque_Nm": torque, "power_W": power,
+                "CT": thrust / (density * n ** 2 * d ** 4), "CP": power / (density * n ** 3 * d ** 5),
+                "J": speed / (n * d),
+                "efficiency": _nan_div(thrust * speed, power) if power > 0 else float("nan")}
+    if kind == "turbine":
+        extracted = -power
+        q = 0.5 * density * area * speed ** 2
+        return {"power_W": extracted, "thrust_N": thrust, "torque_Nm": -torque,
+                "CP": _nan_div(extracted, q * speed), "CT": _nan_div(thrust, q),
+                "tip_speed_ratio": _nan_div(omega * radius, speed)}
+    raise ValueError(kind)
+
+
+def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndarray,
+                 pitch_deg: np.ndarray, hub: np.ndarray, axis: np.ndarray, spin: int) -> pd.DataFrame:
+    """Radial distributions of every blade: circulation, cl, angles, dT/dr and dQ/dr.
+
+    Parameters
+    ----------
+    name : str
+        Body name.
+    strips : list of StripLoads
+        One per blade.
+    radius : float
+        R [m].
+    r, dr : ndarray, shape (n,)
+        Blade coordinate of each strip's section and the strip width [m],
+        in the strips' order.
+    pitch_deg : ndarray, shape (n,)
+        Section pitch (collective + twist) [deg], in the strips' order.
+    hub, axis : ndarray, shape (3,)
+        Hub centre [m] and unit thrust axis.
+    spin : int
+        +1 or -1.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per blade and strip: ``body``, ``blade`` (1-based),
+        ``strip``, ``r_m``, ``r_over_R``, ``chord_m``, ``gamma_m2_s``,
+        ``cl``, ``cd``, ``pitch_deg``, ``alpha_deg`` (effective),
+        ``inflow_angle_deg`` (pitch minus effective angle of attack: the
+        angle of the local flow, induced velocity included, below the
+        blade's plane of rotation), ``dT_dr_N_per_m``, ``dQ_dr_N`` (shaft
+        torque per unit radius).
+    """
+    frames = []
+    for k, s in enumerate(strips):
+        arm = s.points - hub
+        f = s.force_pressure + s.force_profile
+        frames.append(pd.DataFrame({
+            "body": name, "blade": k + 1, "strip": np.arange(r.shape[0]), "r_m": r,
+            "r_over_R": r / radius, "chord_m": s.chord, "gamma_m2_s": s.gamma, "cl": s.cl, "cd": s.cd,
+            "pitch_deg": pitch_deg, "alpha_deg": np.degrees(s.alpha_effective),
+            "inflow_angle_deg": pitch_deg - np.degrees(s.alpha_effective),
+            "dT_dr_N_per_m": (f @ axis) / dr,
+            "dQ_dr_N": -spin * (np.cross(arm, f) @ axis) / dr,
+        }).sort_values("r_m"))
+    return pd.concat(frames, ignore_index=True)
+
+
+def last_revolution(frame: pd.DataFrame, steps_per_revolution: int) -> pd.DataFrame:
+    """The rows of the last full revolution (the last ``steps_per_revolution`` rows), or all if fewer."""
+    return frame.iloc[-steps_per_revolution:] if len(frame) >= steps_per_revolution else frame

@@ -1,0 +1,380 @@
+"""A rotor blade's wake: a short near vortex sheet, then a rolled-up tip vortex.
+
+Behind a rotor blade the trailed vortex sheet rolls up within a few tens of
+degrees of wake age into a concentrated tip vortex that carries the peak
+bound circulation, while the inboard sheet is weak and spread (Leishman
+2006, *Principles of Helicopter Aerodynamics*, 2nd ed., ch. 10). The usual
+free-vortex model of that wake, kept here, is
+
+* a near wake: the wing's free vortex lattice (:mod:`wakes.aero.wake`) of
+  the last ``rollup_steps`` rings behind the blade, every trailed and shed
+  filament resolved, open at its old end;
+* a far wake: one tip vortex, a free polyline whose node for each shed row
+  sits at the circulation centroid of the row's nodes outboard of the
+  peak bound circulation (Betz's roll-up rule), with the peak circulation
+  of that row's ring as strength.
+
+The inboard trailed vorticity ends where the sheet ends; it is not
+followed further (its influence on the blades is a fraction of the tip
+vortex's, and a concentrated root vortex would hover in the rotor plane,
+where the next blade cuts it). The tip vortex carries no shed vorticity
+between its segments, so a change of the peak circulation in time leaves
+the far wake without its spanwise counterpart (exact in steady flight).
+
+Every node moves with the local velocity (the time loop's
+:func:`wakes.simulate.run_case`); core radii grow with age (Squire's law,
+:meth:`WakeSettings.core_at_age`). Tip vortex older than
+``settings.max_age`` is removed: the wake below is then missing, which in
+hover lowers the inflow at the disc by about 1 - L/sqrt(L^2 + R_w^2) for a
+wake column of length L and radius R_w (the field of a semi-infinite
+vortex cylinder on its axis).
+
+Start-up drift: after an impulsive start in hover the first wake lies in
+the rotor plane, where the next blade cuts through it before the inflow
+has built up. With a ``startup`` drift the wake nodes also move along
+-axis at the momentum-theory hover inflow sqrt(T/(2 rho A)), T estimated
+from the latest shed circulation as rho B Omega sum Gamma r dr, fading
+linearly to zero over ``startup.duration``; wake shed during that time is
+gone once the wake is cut (``max_age``) before the end of the run, so the
+final state does not depend on it.
+
+Node storage for the time loop: ``rows`` stacks the near rows
+(R_n, n + 1, 3) and then the tip-vortex nodes (R_f, 3), newest first, as
+one (K, 3) array; :meth:`RolledUpWake.sources` returns the near sheet and
+the tip vortex as two :class:`wakes.Filaments`, the tip vortex's nodes
+newest first.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..elements import Filaments
+from .kinematics import rotate_about
+from .vortex_lattice import lattice_segments
+from .wake import WakeSettings
+
+
+def condense_row(nodes: np.ndarray, strips: np.ndarray, inboard_trailers: int,
+                 tip_last: bool) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Gather one wake row's trailed vorticity into a tip vortex and inboard trailers.
+
+    Parameters
+    ----------
+    nodes : ndarray, shape (n + 1, 3)
+        The row's nodes [m], in the blade's node order.
+    strips : ndarray, shape (n,)
+        Circulation of the rings beside the row [m^2/s].
+    inboard_trailers : int
+        Trailers the part inboard of the peak is cut into (0: none).
+    tip_last : bool
+        True when the last node is at the tip (root-to-tip node order).
+
+    Returns
+    -------
+    points : ndarray, shape (b, 3)
+        Trailer positions [m], b = inboard_trailers + 1, tip vortex last:
+        the centroid of each group's trailed circulation (Betz's roll-up
+        rule).
+    strengths : ndarray, shape (b,)
+        Trailed circulation each gathers, positive along the wake from
+        younger to older rows [m^2/s]; the tip vortex carries the peak
+        strip circulation.
+    spread : ndarray, shape (b,)
+        Length of row each inboard trailer gathers [m] (zero for the tip
+        vortex): the sheet it stands for was that wide, and it becomes the
+        trailer's smallest core radius.
+    """
+    g = np.asarray(strips, dtype=np.float64)
+    if not tip_last:  # reversing the node order flips the rings' sense
+        return condense_row(nodes[::-1], -g[::-1], inboard_trailers, True)
+    trailed = np.concatenate([[0.0], g]) - np.concatenate([g, [0.0]])  # G_{j-1} - G_j, (n + 1,)
+    sign = 1.0 if g.sum() >= 0.0 else -1.0
+    peak = int(np.argmax(sign * g))
+    length = np.concatenate([[0.0], np.cumsum(np.linalg.norm(np.diff(nodes, axis=0), axis=1))])
+    b = inboard_trailers + 1
+    label = np.full(nodes.shape[0], inboard_trailers)
+    spread = np.zeros(b)
+    if inboard_trailers:
+        piece = max(length[peak], 1e-300) / inboard_trailers
+        label[:peak + 1] = np.minimum((length[:peak + 1] / piece).astype(np.int64), inboard_trailers - 1)
+        spread[:-1] = piece
+    else:
+        label[:peak + 1] = -1  # inboard vorticity is not followed
+    points = np.empty((b, 3))
+    strengths = np.zeros(b)
+    for k in range(b):
+        sel = np.flatnonzero(label == k)
+        if not sel.size:  # fewer nodes than trailers: an empty trailer sits on its neighbour
+            points[k] = points[k - 1] if k else nodes[0]
+            continue
+        t = trailed[sel]
+        strengths[k] = t.sum()
+        w = np.maximum(np.sign(strengths[k]) * t, 0.0)
+        points[k] = (w @ nodes[sel]) / w.sum() if w.sum() > 0.0 else nodes[sel].mean(axis=0)
+    return points, strengths, spread
+
+
+@dataclass(frozen=True)
+class StartupDrift:
+    """A fading axial drift of a lift rotor's wake after an impulsive start.
+
+    Parameters
+    ----------
+    hub : ndarray, shape (3,)
+        Hub centre [m].
+    axis : ndarray, shape (3,)
+        Unit thrust axis; the drift is along -axis.
+    omega : float
+        Rotation rate [rad/s].
+    blades : int
+        Number of blades.
+    radius : float
+        Tip radius [m].
+    duration : float
+        Time over which the drift fades to zero [s].
+    """
+
+    hub: np.ndarray
+    axis: np.ndarray
+    omega: float
+    blades: int
+    radius: float
+    duration: float
+
+    def velocity(self, time: float, te_nodes: np.ndarray, strip_gamma: np.ndarray) -> np.ndarray:
+        """Drift velocity (3,) [m/s] at ``time`` from the blade's latest strips (n,)."""
+        fade = 1.0 - time / self.duration
+        if fade <= 0.0:
+            return np.zeros(3)
+        rel = te_nodes - self.hub
+        r = np.linalg.norm(rel - np.outer(rel @ self.axis, self.axis), axis=1)
+        moment = float(np.sum(strip_gamma * 0.5 * (r[1:] + r[:-1]) * np.abs(np.diff(r))))
+        thrust_over_rho = self.blades * self.omega * moment
+        if thrust_over_rho <= 0.0:
+            return np.zeros(3)
+        return -fade * np.sqrt(thrust_over_rho / (2.0 * np.pi * self.radius ** 2)) * self.axis
+
+
+class BladeSymmetry:
+    """Keeps the wakes of a rotor's B blades B-fold symmetric about the hub axis.
+
+    In axial flow (hover, climb, axial wind) the periodic solution is the
+    same for every blade, turned by 2 pi k/B. The helical wake is unstable
+    to modes that break that symmetry (tip vortices of neighbouring blades
+    pairing; Widnall 1972, J. Fluid Mech. 54); roundoff seeds them.
+    Averaging the blades' wakes in the rotating frame after each step keeps
+    the symmetric solution, the one a periodic (relaxation) free-wake
+    method finds.
+
+    Parameters
+    ----------
+    hub : ndarray, shape (3,)
+        Hub centre [m].
+    axis : ndarray, shape (3,)
+        Unit rotation axis.
+    blades : int
+        B.
+    """
+
+    def __init__(self, hub: np.ndarray, axis: np.ndarray, blades: int):
+        self.hub = np.asarray(hub, dtype=np.float64)
+        self.axis = np.asarray(axis, dtype=np.float64)
+        self.blades = int(blades)
+        self.wakes = []
+        self._moved = 0
+
+    def join(self, wake: "RolledUpWake") -> None:
+        """Register the next blade's wake (in blade order)."""
+        self.wakes.append(wake)
+
+    def moved(self) -> None:
+        """Called by each wake after it moved; the last one of a step averages them all."""
+        self._moved += 1
+        if self._moved < len(self.wakes):
+            return
+        self._moved = 0
+        for name in ("near", "far"):
+            arrays = [getattr(w, name) for w in self.wakes]
+            if any(a.shape != arrays[0].shape for a in arrays):
+                return
+            turns = [2.0 * np.pi * k / self.blades for k in range(len(arrays))]
+            mean = sum(rotate_about(a - self.hub, self.axis, -t) for a, t in zip(arrays, turns)) / len(arrays)
+            for w, t in zip(self.wakes, turns):
+                setattr(w, name, self.hub + rotate_about(mean, self.axis, t))
+
+
+class RolledUpWake:
+    """The wake of one rotor blade: near vortex sheet, then free tip vortex and inboard trailers.
+
+    Parameters
+    ----------
+    te_nodes : ndarray, shape (n + 1, 3)
+        The blade's trailing-edge nodes at the start [m].
+    time : float
+        Start time [s].
+    settings : WakeSettings
+        Core model, core growth, max_age.
+    rollup_steps : int
+        Rings kept as a resolved sheet behind the blade (>= 1).
+    inboard_trailers : int
+        Trailers the inboard far wake is gathered into (0: not followed).
+    tip_last : bool
+        True when the blade's nodes run root to tip.
+    hub, axis : ndarray, shape (3,)
+        Hub centre [m] and unit rotor axis: inboard trailers move along the
+        axis with the local flow and keep their radius relative to their
+        row's tip vortex (module notes).
+    startup : StartupDrift or None
+        Fading start-up drift of the nodes (module notes), or none.
+    symmetry : BladeSymmetry or None
+        The group that keeps the rotor's blade wakes symmetric, or none.
+    """
+
+    particle_count = 0
+    positions = np.zeros((0, 3))
+    strengths = np.zeros((0, 3))
+
+    def __init__(self, te_nodes: np.ndarray, time: float, settings: WakeSettings, *,
+                 rollup_steps: int, inboard_trailers: int, tip_last: bool, hub: np.ndarray,
+                 axis: np.ndarray, startup: StartupDrift | None = None,
+                 symmetry: BladeSymmetry | None = None):
+        self.settings = settings
+        self.hub = np.asarray(hub, dtype=np.float64)
+        self.axis = np.asarray(axis, dtype=np.float64)
+        self.rollup_steps = int(rollup_steps)
+        self.inboard_trailers = int(inboard_trailers)
+        self.tip_last = bool(tip_last)
+        self.startup = startup
+        self.symmetry = symmetry
+        if symmetry is not None:
+            symmetry.join(self)
+        te = np.asarray(te_nodes, dtype=np.float64)
+        self.n_span = te.shape[0] - 1
+        self.near = te[None].copy()
+        self.near_time = np.array([float(time)])
+        self.near_gamma = np.zeros((0, self.n_span))
+        b = self.inboard_trailers + 1
+        self.far = np.zeros((0, b, 3))
+        self.far_time = np.zeros(0)
+        self.far_gamma = np.zeros((0, b))
+        self.far_spread = np.zeros((0, b))
+        self.far_ratio = np.zeros((0, b - 1))
+
+    # ------------------------------------------------------------------ views
+    @property
+    def rows(self) -> np.ndarray:
+        """Every node, near rows then far rows, newest first, shape (K, 3) [m]."""
+        return np.vstack([self.near.reshape(-1, 3), self.far.reshape(-1, 3)])
+
+    @property
+    def node_count(self) -> int:
+        return self.near.shape[0] * self.near.shape[1] + self.far.shape[0] * self.far.shape[1]
+
+    def tip_vortex(self, time: float) -> tuple[np.ndarray, np.ndarray]:
+        """The tip vortex from the trailing edge on: wake ages (R,) [s] and positions (R, 3) [m].
+
+        In the sheet each row's tip-vortex point is the circulation centroid
+        of its nodes outboard of the peak (as at roll-up), using the ring
+        behind the row; in the far wake it is the tip trailer's node.
+        """
+        rings = self.near_gamma.shape[0]
+        near = [condense_row(self.near[k], self.near_gamma[min(k, rings - 1)], 0, self.tip_last)[0][-1]
+                for k in range(self.near.shape[0] - (1 if self.far.shape[0] else 0))] if rings else []
+        points = np.vstack([np.reshape(near, (-1, 3)), self.far[:, -1]])
+        times = np.concatenate([self.near_time[:len(near)], self.far_time])
+        return time - times, points
+
+    def filaments(self, time: float, *, singular: bool = False) -> list[Filaments]:
+        """The near sheet and the far trailers at ``time`` [s], cores grown to each row's age."""
+        s = self.settings
+        core = "singular" if singular else s.core
+        rc = s.core_at_age(time - self.near_time)
+        stream = 0.5 * (rc[:-1] + rc[1:])
+        rc[0] = s.attached_core_radius
+        after = self.near_gamma[-1] if self.near_gamma.shape[0] else None  # open: trailers end here
+        nodes, seg, circ, rcs = lattice_segments(self.near, self.near_gamma, after=after,
+                                                 span_core=rc, stream_core=stream)
+        keep = circ != 0.0
+        out = [Filaments(nodes, seg[keep], circ[keep], rcs[keep], core=core)]
+        if self.far_gamma.shape[0]:
+            r, b = self.far.shape[:2]
+            idx = np.arange(r * b).reshape(r, b)
+            seg = np.stack([idx[:-1].ravel(), idx[1:].ravel()], axis=1)
+            age = time - 0.5 * (self.far_time[:-1] + self.far_time[1:])
+            rcs = np.maximum(s.core_at_age(age)[:, None], self.far_spread[:-1]).ravel()
+            circ = self.far_gamma.ravel()
+            keep = circ != 0.0
+            out.append(Filaments(self.far.reshape(-1, 3), seg[keep], circ[keep], rcs[keep], core=core))
+        return out
+
+    def sources(self, time: float, *, at_surfaces: bool = False) -> list:
+        """Every vortex element of this wake, for :func:`wakes.induce`.
+
+        With ``at_surfaces`` the filaments are singular unless
+        ``settings.cores_at_surfaces`` (as :meth:`WakeSheet.sources`).
+        """
+        return self.filaments(time, singular=at_surfaces and not self.settings.cores_at_surfaces)
+
+    # ---------------------------------------------------------------- updates
+    def move(self, node_velocity: np.ndarray, dt: float, particle_velocity=None,
+             particle_stretching=None) -> None:
+        """Advance every node (K, 3) by one forward-Euler step of ``dt`` [s], plus any drift."""
+        k = self.near.shape[0] * self.near.shape[1]
+        drift = np.zeros(3)
+        if self.startup is not None and self.near_gamma.shape[0]:
+            drift = self.startup.velocity(self.near_time[0], self.near[0], self.near_gamma[0])
+        self.near = self.near + dt * (node_velocity[:k].reshape(self.near.shape) + drift)
+        u_far = node_velocity[k:].reshape(self.far.shape)
+        u_far[:, :-1] = np.multiply.outer(u_far[:, :-1] @ self.axis, self.axis)  # inboard: axial only
+        self.far = self.far + dt * (u_far + drift)
+        if self.inboard_trailers and self.far.shape[0]:
+            radial, r = self._radial(self.far)
+            scale = self.far_ratio * r[:, -1:] / np.maximum(r[:, :-1], 1e-300)
+            self.far[:, :-1] += (scale - 1.0)[..., None] * radial[:, :-1]
+        if self.symmetry is not None:
+            self.symmetry.moved()
+
+    def shed(self, te_nodes: np.ndarray, strip_gamma: np.ndarray, time: float) -> None:
+        """Attach a new row at the trailing edge; its ring carries ``strip_gamma`` (n,)."""
+        self.near = np.concatenate([np.asarray(te_nodes, dtype=np.float64)[None], self.near])
+        self.near_time = np.concatenate([[float(time)], self.near_time])
+        self.near_gamma = np.concatenate([np.asarray(strip_gamma, dtype=np.float64)[None],
+                                          self.near_gamma])
+
+    def age_out(self, time: float) -> None:
+        """Roll up rings older than ``rollup_steps`` and drop far wake older than ``max_age``."""
+        while self.near_gamma.shape[0] > self.rollup_steps:
+            self._roll_up_oldest()
+        while self.far_gamma.shape[0] and time - self.far_time[-1] > self.settings.max_age:
+            self.far, self.far_time = self.far[:-1], self.far_time[:-1]
+            self.far_gamma, self.far_spread = self.far_gamma[:-1], self.far_spread[:-1]
+            self.far_ratio = self.far_ratio[:-1]
+        if not self.far_gamma.shape[0]:
+            self.far, self.far_time, self.far_spread = self.far[:0], self.far_time[:0], self.far_spread[:0]
+            self.far_ratio = self.far_ratio[:0]
+
+    def _radial(self, points: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Radial vectors from the axis (..., 3) [m] and their lengths (...) of ``points``."""
+        rel = points - self.hub
+        radial = rel - np.multiply.outer(rel @ self.axis, self.axis)
+        return radial, np.linalg.norm(radial, axis=-1)
+
+    def _roll_up_oldest(self) -> None:
+        """Gather the oldest sheet ring into the far trailers."""
+        g = self.near_gamma[-1]
+        if not self.far.shape[0]:
+            last, _, spread = condense_row(self.near[-1], g, self.inboard_trailers, self.tip_last)
+            self.far, self.far_time, self.far_spread = last[None], self.near_time[-1:].copy(), spread[None]
+            _, r = self._radial(last[None])
+            self.far_ratio = r[:, :-1] / max(float(r[0, -1]), 1e-300)
+        points, strengths, spread = condense_row(self.near[-2], g, self.inboard_trailers, self.tip_last)
+        self.far = np.concatenate([points[None], self.far])
+        self.far_time = np.concatenate([self.near_time[-2:-1], self.far_time])
+        self.far_gamma = np.concatenate([strengths[None], self.far_gamma])
+        self.far_spread = np.concatenate([spread[None], self.far_spread])
+        _, r = self._radial(points[None])
+        self.far_ratio = np.concatenate([r[:, :-1] / max(float(r[0, -1]), 1e-300), self.far_ratio])
+        self.near, self.near_time, self.near_gamma = self.near[:-1], self.near_time[:-1], self.near_gamma[:-1]
