@@ -83,7 +83,7 @@ def auto_crossover_pairs(tolerance: float) -> float:
 # kernel code and per core code, and of one M2L per reduced-table entry, in
 # units of a Winckelmans--Leonard particle pair: measured on the development
 # machine (the Gaussian's erf and exp do not vectorise).
-_PAIR_COST = {SINGULAR: 1.0, ROSENHEAD_MOORE: 1.0, WINCKELMANS_LEONARD: 1.0, GAUSSIAN: 8.0}
+_PAIR_COST = {SINGULAR: 1.0, ROSENHEAD_MOORE: 1.0, WINCKELMANS_LEONARD: 1.0, GAUSSIAN: 15.0}
 _SEGMENT_PAIR_COST = 2.5
 _M2L_COST_PER_ENTRY = 0.16
 _M2L_COST_FIXED = 360.0
