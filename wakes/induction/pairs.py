@@ -54,22 +54,26 @@ def particle_f(r2, s2, kernel):
     df : float
         d f / d(r^2) [1/m^5].
     """
+    # One square root and one division per pair, x^-1 recovered as
+    # x^-1.5 * x^0.5: the shortest dependency chain measured here (10-15 %
+    # faster than 1/sqrt and its powers).
     if kernel == SINGULAR:
         if r2 > 0.0:
-            y = 1.0 / math.sqrt(r2)
-            y3 = y * y * y
-            return y3, -1.5 * y3 * y * y
+            r = math.sqrt(r2)
+            y3 = 1.0 / (r2 * r)
+            return y3, -1.5 * y3 * (y3 * r)
         return 0.0, 0.0
     elif kernel == ROSENHEAD_MOORE:
-        y = 1.0 / math.sqrt(r2 + s2)
-        y3 = y * y * y
-        return y3, -1.5 * y3 * y * y
+        x = r2 + s2
+        sq = math.sqrt(x)
+        y3 = 1.0 / (x * sq)
+        return y3, -1.5 * y3 * (y3 * sq)
     elif kernel == WINCKELMANS_LEONARD:
-        y = 1.0 / math.sqrt(r2 + s2)
-        y2 = y * y
-        y5 = y2 * y2 * y
-        num = r2 + 2.5 * s2
-        return num * y5, y5 * (1.0 - 2.5 * num * y2)
+        x = r2 + s2
+        x15 = x * math.sqrt(x)
+        y5 = 1.0 / (x * x15)
+        f = (r2 + 2.5 * s2) * y5
+        return f, y5 - 2.5 * f * (y5 * x15)
     else:  # GAUSSIAN
         inv_s2 = 1.0 / s2
         return gaussian_f(r2, inv_s2, inv_s2 * math.sqrt(inv_s2))
