@@ -312,12 +312,13 @@ class RotorSpec:
     azimuth_step: float = key(10.0, "blade turn per time step when [time] dt is not given", "deg",
                               above=0.0, maximum=MAX_AZIMUTH_STEP)
     revolutions: float = key(10.0, "run length when [time] steps is not given", above=0.0)
-    wake_revolutions: float = key(float("inf"), "wake older than this many revolutions is removed "
-                                  "(inf: kept)", above=0.0, allow_inf=True)
-    rollup_age: float = key(30.0, "wake age where the blade's sheet rolls up into a tip vortex "
-                            "(inf: never)", "deg", above=0.0, allow_inf=True)
-    inboard_trailers: int = key(1, "free trailers the inboard part of the rolled-up wake is gathered "
-                                "into (0: not followed)", kind="int", minimum=0, maximum=32)
+    wake_revolutions: float = key(6.0, "wake older than this many revolutions is removed (inf: kept)",
+                                  above=0.0, allow_inf=True)
+    rollup_age: float = key(360.0, "wake age where the blade's resolved sheet rolls up into a tip "
+                            "vortex and inboard trailers (inf: never)", "deg", above=0.0,
+                            allow_inf=True)
+    inboard_trailers: int = key(2, "trailers the inboard part of the rolled-up wake is gathered into "
+                                "(0: not followed)", kind="int", minimum=0, maximum=32)
     symmetric_wake: bool = key(False, "keep the blades' wakes B-fold symmetric (axial flow only)",
                                kind="bool")
     startup_revolutions: float = key(2.0, "lift rotor: revolutions over which a start-up drift of "
@@ -360,6 +361,10 @@ class RotorSpec:
         if self.kind == "turbine" and not axial > 0.0:
             ctx.fail(f"{where}: a turbine needs wind blowing along its axis (downwind); the "
                      f"[freestream] velocity along {where}.axis is {axial:g} m/s, it must be positive")
+        across = float(np.linalg.norm(np.cross(case.freestream.vector(), a / np.linalg.norm(a))))
+        if self.symmetric_wake and across > 1e-9 * max(abs(axial), 1e-300):
+            ctx.fail(f"{where}.symmetric_wake = true needs axial flow (hover, climb, axial wind); the "
+                     f"[freestream] velocity has {across:g} m/s across {where}.axis")
         if self.kind == "propeller" and axial > 0.0:
             ctx.fail(f"{where}: a propeller's axis points forward, against the relative wind; the "
                      f"[freestream] velocity along {where}.axis is {axial:g} m/s, it must be zero "

@@ -78,6 +78,9 @@ class Run:
         Final wake of every surface: ``{surface: list of Filaments/Particles}``.
     wall_time_s : float
         Run time [s].
+    tables : dict
+        Extra result tables of the bodies, ``{file name: DataFrame}``
+        (a rotor's ``tip_vortex.csv``), written beside the others.
     """
 
     case: Case
@@ -90,6 +93,7 @@ class Run:
     message: str = ""
     resume_state: LoopState | None = field(default=None, repr=False)
     stop_signal: int | None = None
+    tables: dict = field(default_factory=dict, repr=False)
 
     def write(self, out_dir) -> list[Path]:
         """Write the run folder: loads.csv, sections.csv, summary.json, case.toml and the wake.
@@ -114,6 +118,9 @@ class Run:
                 paths.append(out / name)
             elif (out / name).exists():  # left by an earlier run in this folder
                 (out / name).unlink()
+        for name, table in self.tables.items():
+            write_table(table, out / name)
+            paths.append(out / name)
         return paths
 
     def short_report(self) -> str:
@@ -340,7 +347,11 @@ def _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t, wake_time,
     final_wake = {s.name: w.sources(wake_time) for s, w in zip(surfaces, wakes)}
     wall = _time.perf_counter() - started
     summary["run"]["wall_time_s"] = wall
-    return Run(case, loads, sections, summary, final_wake, wall)
+    extra = {}
+    for b in bodies if rows else ():
+        for name, table in b.tables().items():  # bodies' tables of one name share a file
+            extra[name] = pd.concat([extra[name], table], ignore_index=True) if name in extra else table
+    return Run(case, loads, sections, summary, final_wake, wall, tables=extra)
 
 
 def _strip_loads(surfaces, sol, gamma, aic_load, v_wake_load, v_inf, gamma_prev, dt, rho):

@@ -9,6 +9,7 @@ A body model is built from its case spec and answers:
   the loads table;
 * ``section_table(strips)`` -- its spanwise (or radial) distribution;
 * ``summary(loads)`` -- the figures quoted in ``summary.json``.
+* ``tables()`` -- extra result tables ``{file name: DataFrame}`` (may be empty).
 * ``new_wake(surface, time, settings)`` -- an empty wake for one of its
   surfaces (a wing's: :class:`WakeSheet`; a rotor blade's may roll up).
 
@@ -102,6 +103,10 @@ class WingBody:
                 "profile_drag_N_per_m": (f_v @ e_d) / s.width,
             }))
         return pd.concat(frames, ignore_index=True)
+
+    def tables(self) -> dict:
+        """No extra tables for a wing."""
+        return {}
 
     def summary(self, loads: pd.DataFrame) -> dict:
         """The last step's totals and coefficients."""

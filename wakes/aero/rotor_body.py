@@ -2,13 +2,15 @@
 
 Case body type ``"rotor"`` (:class:`wakes.case.RotorSpec`). Each blade is a
 nonlinear lifting line (:mod:`wakes.aero.lifting_line`) placed at its
-azimuth at every step (:mod:`wakes.aero.rotor`); its wake is the wing's free
-vortex lattice (:mod:`wakes.aero.wake`), which becomes a helix as the
-blade turns. Loads follow :mod:`wakes.aero.rotor_loads`.
+azimuth at every step (:mod:`wakes.aero.rotor`); its wake is a free vortex
+sheet that rolls up into a tip vortex and inboard trailers
+(:mod:`wakes.aero.rotor_wake`), or the wing's full sheet
+(:mod:`wakes.aero.wake`). Loads follow :mod:`wakes.aero.rotor_loads`.
 """
 
 from __future__ import annotations
 
+import collections
 import dataclasses
 
 import numpy as np
@@ -16,11 +18,12 @@ import pandas as pd
 
 from .polars import SectionPolars
 from .rotor_loads import KIND_COLUMNS, blade_forces, coefficients, last_revolution, radial_table
-from .rotor_wake import BladeSymmetry, RolledUpWake, StartupDrift
+from .rotor_wake import BladeSymmetry, RolledUpWake, StartupDrift, tip_vortex_table
 from .wake import WakeSheet
 
 # Summary figures beyond the kind's own columns.
 _EXTRA_SUMMARY = ("induced_power_W", "profile_power_W")
+AXIAL_FLOW_TOLERANCE = 1e-9  # freestream component across the axis / its magnitude, for "axial"
 
 
 class RotorBody:
@@ -42,22 +45,26 @@ class RotorBody:
         self.name = spec.name
         self.spec = spec
         self.kind = spec.kind
-        self.geometry = spec.geometry()
+        self.geometry = g = spec.geometry()
         self.polars = SectionPolars.uniform(make_polar(spec.airfoil), spec.panels)
         self.density = case.fluid.density
-        self.axis, _, _ = self.geometry.frame()
-        self.hub = np.asarray(self.geometry.hub, dtype=np.float64)
+        self.axis = g.frame()[0]
+        self.hub = np.asarray(g.hub, dtype=np.float64)
         v_inf = case.freestream.vector()
         # propeller: flight speed along the axis; turbine: wind speed; rotor: unused
         self.speed = {"propeller": float(-(v_inf @ self.axis)), "turbine": float(np.linalg.norm(v_inf)),
                       "rotor": 0.0}[self.kind]
         self.hover = not np.any(v_inf)
+        self.axial_flow = bool(np.linalg.norm(np.cross(v_inf, self.axis))
+                               <= AXIAL_FLOW_TOLERANCE * np.linalg.norm(v_inf))
         self.dt = case.time.dt
-        self.steps_per_revolution = max(1, int(round(self.geometry.period / case.time.dt)))
-        self.r, self.dr = self.geometry.strip_radii()
-        eta = (self.r - self.geometry.root_cutout) / (self.geometry.radius - self.geometry.root_cutout)
-        self.pitch_deg = self.geometry.pitch(eta)
+        self.end_time = (case.time.steps - 1) * case.time.dt
+        self.steps_per_revolution = max(1, int(round(g.period / case.time.dt)))
+        self.r, self.dr = g.strip_radii()
+        self.pitch_deg = g.pitch((self.r - g.root_cutout) / (g.radius - g.root_cutout))
         self._symmetry = None
+        self._wakes = []
+        self._tip_samples = collections.deque(maxlen=self.steps_per_revolution)
 
     def surfaces(self, time: float) -> list:
         """The blades at ``time`` [s], one lifting-line surface each, named ``NAME/blade K``."""
@@ -67,35 +74,47 @@ class RotorBody:
     def new_wake(self, surface, time: float, settings):
         """The wake of one blade from ``time`` [s], cut ``wake_revolutions`` revolutions old.
 
-        A filament wake rolls up into a tip vortex ``rollup_age`` degrees
-        behind the blade (:class:`RolledUpWake`);
-        with ``rollup_age = inf`` or a particle wake the blade keeps the
-        wing's full vortex sheet (:class:`WakeSheet`).
+        A filament wake is a resolved sheet for ``rollup_age`` degrees, then
+        a tip vortex and inboard trailers (:class:`RolledUpWake`); a
+        particle wake is the wing's full sheet turned into particles
+        (:class:`WakeSheet`).
         """
         g = self.geometry
         settings = dataclasses.replace(
             settings, max_age=min(settings.max_age, self.spec.wake_revolutions * g.period))
-        if settings.model == "particles" or not np.isfinite(self.spec.rollup_age):
+        if settings.model == "particles":
             return WakeSheet(surface.te_nodes, time, settings)
-        steps = max(1, int(round(self.spec.rollup_age / (6.0 * g.rpm * self.dt))))
         startup = None
         if self.kind == "rotor" and self.spec.startup_revolutions > 0:
             startup = StartupDrift(self.hub, self.axis, g.omega, g.blades, g.radius,
                                    self.spec.startup_revolutions * g.period)
         if self.spec.symmetric_wake and self._symmetry is None:
             self._symmetry = BladeSymmetry(self.hub, self.axis, g.blades)
-        return RolledUpWake(surface.te_nodes, time, settings, rollup_steps=steps,
+        rollup = self.spec.rollup_age / (6.0 * g.rpm * self.dt)
+        wake = RolledUpWake(surface.te_nodes, time, settings,
+                            rollup_steps=max(1, int(round(min(rollup, 1e9)))),
                             inboard_trailers=self.spec.inboard_trailers, tip_last=g.spin > 0,
-                            hub=self.hub, axis=self.axis, startup=startup, symmetry=self._symmetry)
+                            hub=self.hub, axis=self.axis, axial_flow=self.axial_flow,
+                            startup=startup, symmetry=self._symmetry)
+        self._wakes.append(wake)
+        return wake
 
     def loads_row(self, strips: list, trefftz_drag: float) -> dict:
-        """Thrust, torque, power and coefficients of the kind, power split, thrust per blade."""
-        g = self.geometry
-        f = blade_forces(strips, self.hub, self.axis, g.spin)
+        """Thrust, torque, power and coefficients of the kind, power split, thrust per blade.
+
+        Over the last revolution also samples blade 1's tip-vortex path
+        for :meth:`tables`.
+        """
+        f = blade_forces(strips, self.hub, self.axis, self.geometry.spin)
         row = self._totals(float(f["thrust"].sum()), float(f["torque_induced"].sum()),
                            float(f["torque_profile"].sum()))
         for k, t in enumerate(f["thrust"]):
             row[f"blade_{k + 1}_thrust_N"] = float(t)
+        if self._wakes:
+            w = self._wakes[0]
+            t = float(w.near_time[0])
+            if t > self.end_time - self.geometry.period + 0.5 * self.dt:
+                self._tip_samples.append(w.tip_vortex(t))
         return row
 
     def _totals(self, thrust: float, torque_induced: float, torque_profile: float) -> dict:
@@ -111,6 +130,14 @@ class RotorBody:
         g = self.geometry
         return radial_table(self.name, strips, radius=g.radius, r=self.r, dr=self.dr,
                             pitch_deg=self.pitch_deg, hub=self.hub, axis=self.axis, spin=g.spin)
+
+    def tables(self) -> dict:
+        """Extra result tables: ``{"tip_vortex.csv": ...}`` (:func:`tip_vortex_table`), if any."""
+        if not self._tip_samples:
+            return {}
+        g = self.geometry
+        return {"tip_vortex.csv": tip_vortex_table(self.name, list(self._tip_samples), hub=self.hub,
+                                                   axis=self.axis, radius=g.radius, omega=g.omega)}
 
     def summary(self, loads: pd.DataFrame) -> dict:
         """Loads averaged over the last full revolution, and how much they still change.
@@ -139,8 +166,8 @@ class RotorBody:
             out["thrust_change_last_revolution"] = float("nan")
         if self.kind == "rotor" and self.hover:
             ideal = max(thrust, 0.0) ** 1.5 / np.sqrt(2.0 * self.density * g.disc_area)
-            out["induced_power_factor"] = p_ind / ideal if ideal > 0 else float("nan")
-        out["revolutions"] = (len(mine) - 1) * self.dt / g.period
-        out["averaged_steps"] = len(last)
-        out["solidity"] = g.solidity()
+            out["induced_power_factor"] = float(p_ind / ideal) if ideal > 0 else float("nan")
+        out["revolutions"] = float((len(mine) - 1) * self.dt / g.period)
+        out["averaged_steps"] = int(len(last))
+        out["solidity"] = float(g.solidity())
         return out

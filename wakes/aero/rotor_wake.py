@@ -50,6 +50,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+import pandas as pd
 
 from ..elements import Filaments
 from .kinematics import rotate_about
@@ -224,9 +225,12 @@ class RolledUpWake:
     tip_last : bool
         True when the blade's nodes run root to tip.
     hub, axis : ndarray, shape (3,)
-        Hub centre [m] and unit rotor axis: inboard trailers move along the
-        axis with the local flow and keep their radius relative to their
-        row's tip vortex (module notes).
+        Hub centre [m] and unit rotor axis.
+    axial_flow : bool
+        The freestream is zero or along the axis: inboard trailers then
+        move along the axis with the local flow and keep their radius
+        relative to their row's tip vortex (module notes); otherwise they
+        move freely.
     startup : StartupDrift or None
         Fading start-up drift of the nodes (module notes), or none.
     symmetry : BladeSymmetry or None
@@ -239,11 +243,12 @@ class RolledUpWake:
 
     def __init__(self, te_nodes: np.ndarray, time: float, settings: WakeSettings, *,
                  rollup_steps: int, inboard_trailers: int, tip_last: bool, hub: np.ndarray,
-                 axis: np.ndarray, startup: StartupDrift | None = None,
+                 axis: np.ndarray, axial_flow: bool, startup: StartupDrift | None = None,
                  symmetry: BladeSymmetry | None = None):
         self.settings = settings
         self.hub = np.asarray(hub, dtype=np.float64)
         self.axis = np.asarray(axis, dtype=np.float64)
+        self.axial_flow = bool(axial_flow)
         self.rollup_steps = int(rollup_steps)
         self.inboard_trailers = int(inboard_trailers)
         self.tip_last = bool(tip_last)
@@ -327,10 +332,11 @@ class RolledUpWake:
         if self.startup is not None and self.near_gamma.shape[0]:
             drift = self.startup.velocity(self.near_time[0], self.near[0], self.near_gamma[0])
         self.near = self.near + dt * (node_velocity[:k].reshape(self.near.shape) + drift)
-        u_far = node_velocity[k:].reshape(self.far.shape)
-        u_far[:, :-1] = np.multiply.outer(u_far[:, :-1] @ self.axis, self.axis)  # inboard: axial only
+        u_far = node_velocity[k:].reshape(self.far.shape).copy()
+        if self.axial_flow:  # inboard trailers: axial motion only, radius follows the tip vortex
+            u_far[:, :-1] = np.multiply.outer(u_far[:, :-1] @ self.axis, self.axis)
         self.far = self.far + dt * (u_far + drift)
-        if self.inboard_trailers and self.far.shape[0]:
+        if self.axial_flow and self.inboard_trailers and self.far.shape[0]:
             radial, r = self._radial(self.far)
             scale = self.far_ratio * r[:, -1:] / np.maximum(r[:, :-1], 1e-300)
             self.far[:, :-1] += (scale - 1.0)[..., None] * radial[:, :-1]
@@ -378,3 +384,38 @@ class RolledUpWake:
         _, r = self._radial(points[None])
         self.far_ratio = np.concatenate([r[:, :-1] / max(float(r[0, -1]), 1e-300), self.far_ratio])
         self.near, self.near_time, self.near_gamma = self.near[:-1], self.near_time[:-1], self.near_gamma[:-1]
+
+
+def tip_vortex_table(name: str, samples: list, *, hub: np.ndarray, axis: np.ndarray, radius: float,
+                     omega: float) -> pd.DataFrame:
+    """The tip vortex's mean path against wake age, from samples taken over a revolution.
+
+    Parameters
+    ----------
+    name : str
+        Body name.
+    samples : list of (ages (R,), points (R, 3))
+        :meth:`RolledUpWake.tip_vortex` at successive steps [s], [m].
+    hub, axis : ndarray, shape (3,)
+        Hub centre [m] and unit axis.
+    radius : float
+        Rotor radius R [m].
+    omega : float
+        Rotation rate [rad/s] (turns wake age into degrees).
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``body``, ``wake_age_deg``, ``r_over_R`` (distance from the axis /
+        R, mean over the samples), ``r_over_R_std`` (its spread),
+        ``axial_over_R`` (offset along the axis / R, negative downstream of
+        a lift rotor), ``samples``: one row per wake age present in every
+        sample.
+    """
+    rows = min(len(age) for age, _ in samples)
+    rel = np.stack([p[:rows] for _, p in samples]) - hub
+    axial = rel @ axis
+    r = np.linalg.norm(rel - axial[..., None] * axis, axis=-1) / radius
+    return pd.DataFrame({"body": name, "wake_age_deg": np.degrees(omega * samples[-1][0][:rows]),
+                         "r_over_R": r.mean(axis=0), "r_over_R_std": r.std(axis=0),
+                         "axial_over_R": axial.mean(axis=0) / radius, "samples": len(samples)})
