@@ -20,7 +20,7 @@ EPS = np.finfo(float).eps          # 2.2e-16, one unit in the last place at 1
 C0 = math.sqrt(2.0 / math.pi)
 
 
-@njit
+@njit(cache=True)
 def _g_many(t):
     g = np.empty_like(t)
     dg = np.empty_like(t)
@@ -29,7 +29,7 @@ def _g_many(t):
     return g, dg
 
 
-@njit
+@njit(cache=True)
 def _exp_many(h):
     out = np.empty_like(h)
     for i in range(h.size):
