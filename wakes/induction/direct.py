@@ -312,7 +312,9 @@ def particles_direct(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient, v
     key = (int(kernel), bool(gradient))
     if key not in _PARTICLE_DRIVERS:
         _PARTICLE_DRIVERS[key] = _make_particle_driver(*key)
-    if key[0] == GAUSSIAN and sx.shape[0] > 2 * SUB_BLOCK:
+    if key[0] == GAUSSIAN and sx.shape[0] > 2 * SUB_BLOCK and tx.shape[0] >= TARGET_BLOCK:
+        # compact sub-blocks for the far-field test; the sort costs less
+        # than one block of targets' sum
         order = morton_order(sx, sy, sz)
         sx, sy, sz, ax, ay, az, s2 = (v[order] for v in (sx, sy, sz, ax, ay, az, s2))
     _PARTICLE_DRIVERS[key](tx, ty, tz, sx, sy, sz, ax, ay, az, s2, vel, grad)
