@@ -12,7 +12,7 @@ second.
 
 The Gaussian kernel equals the singular one beyond 9.5 sigma to round-off,
 and the driver uses that (see ``wakes/induction/direct.py``), so its rate
-depends on sigma: the "gaussian (dense)" rows put every pair within
+depends on sigma: the "gaussian (dense)" rows (smallest N only) put every pair within
 9.5 sigma (sigma = 0.5, the cube's diagonal is 1.73) and show the worst case.
 
 Options::
@@ -52,13 +52,10 @@ KERNELS = ("winckelmans-leonard", "gaussian")
 DENSE_SIGMA = 0.5   # every pair of the unit cube within 9.5 sigma
 
 
-def problem(n: int, sigma: float, seed: int = 7):
-    import wakes
-
+def problem(n: int, seed: int = 7):
+    """N points uniform in the unit cube and normal random strengths."""
     rng = np.random.default_rng(seed)
-    x = rng.uniform(0.0, 1.0, (n, 3))
-    alpha = rng.normal(size=(n, 3)) / n
-    return wakes.Particles(x, alpha, sigma, kernel="winckelmans-leonard"), x, alpha
+    return rng.uniform(0.0, 1.0, (n, 3)), rng.normal(size=(n, 3)) / n
 
 
 def configurations(sizes, overlap, dense):
@@ -67,9 +64,9 @@ def configurations(sizes, overlap, dense):
         for kernel in KERNELS:
             for gradient in (False, True):
                 rows.append((kernel, n, gradient, overlap * n ** (-1 / 3), ""))
-        if dense:
-            for gradient in (False, True):
-                rows.append(("gaussian", n, gradient, DENSE_SIGMA, " (dense)"))
+    if dense:                               # worst case, at the smallest size only
+        for gradient in (False, True):
+            rows.append(("gaussian", sizes[0], gradient, DENSE_SIGMA, " (dense)"))
     return rows
 
 
@@ -80,20 +77,23 @@ def run_timings(rows, threads, repeats):
 
     cache = {}
     times = {}
-    for r in range(repeats + 1):          # round 0 compiles / loads the cache
+    for kernel in KERNELS:                  # compile or load every driver first
+        for gradient in (False, True):
+            x, alpha = problem(500)
+            wakes.induce(wakes.Particles(x, alpha, 0.05, kernel=kernel), x,
+                         gradient=gradient, method="direct")
+    for r in range(1, repeats + 1):
         for nt in threads:
             numba.set_num_threads(nt)
             for kernel, n, gradient, sigma, tag in rows:
-                key = (n, sigma)
-                if key not in cache:
-                    cache[key] = problem(n, sigma)
-                _, x, alpha = cache[key]
+                if n not in cache:
+                    cache[n] = problem(n)
+                x, alpha = cache[n]
                 p = wakes.Particles(x, alpha, sigma, kernel=kernel)
                 t0 = time.perf_counter()
                 wakes.induce(p, x, gradient=gradient, method="direct")
                 dt = time.perf_counter() - t0
-                if r:
-                    times.setdefault((kernel + tag, n, gradient, nt), []).append(dt)
+                times.setdefault((kernel + tag, n, gradient, nt), []).append(dt)
             print(f"round {r}/{repeats} ({nt} thread(s)) done", flush=True)
     return times
 
