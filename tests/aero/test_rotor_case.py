@@ -52,10 +52,12 @@ BAD = {
                               r"bodies.rotor.root_cutout must be less than bodies.rotor.radius = 0.5 m"),
     "zero rpm": (ROTOR.replace("rpm = 1200.0", "rpm = 0.0"), r"bodies.rotor.rpm must be greater than 0"),
     "time step": (ROTOR + "[time]\ndt = 0.01\n",
-                  rf"time.dt = 0.01 s turns the blades of bodies.rotor by 72 deg.*at most {MAX_AZIMUTH_STEP:g} deg"),
+                  rf"time.dt = 0.01 s turns the blades of bodies.rotor by 72 deg"
+                  rf".*at most {MAX_AZIMUTH_STEP:g} deg"),
     "azimuth step": (ROTOR.replace("azimuth_step = 20.0", "azimuth_step = 45.0"),
                      r"bodies.rotor.azimuth_step must be at most 30 \[deg\]; got 45"),
-    "zero axis": (ROTOR.replace("panels = 5", "panels = 5\naxis = [0, 0, 0]"), r"bodies.rotor.axis must be a nonzero"),
+    "zero axis": (ROTOR.replace("panels = 5", "panels = 5\naxis = [0, 0, 0]"),
+                  r"bodies.rotor.axis must be a nonzero"),
     "turbine without wind": (ROTOR.replace('type = "rotor"', 'type = "rotor"\nkind = "turbine"'),
                              r"a turbine needs wind blowing along its axis"),
     "propeller flying backwards": (ROTOR.replace('type = "rotor"', 'type = "rotor"\nkind = "propeller"')

@@ -37,7 +37,8 @@ def run(extra_rotor: str = "", extra: str = "", **replace):
     """Run BASE with lines added to the rotor table, tables appended and ``key = value`` replaced."""
     text = BASE
     for k, v in replace.items():
-        text = "\n".join(f"{k} = {v}" if line.startswith(f"{k} =") else line for line in text.splitlines()) + "\n"
+        lines = [f"{k} = {v}" if line.startswith(f"{k} =") else line for line in text.splitlines()]
+        text = "\n".join(lines) + "\n"
     text = text.replace("[wake]", extra_rotor + "\n[wake]") + extra
     return run_case(parse_case(tomllib.loads(text)))
 
@@ -50,7 +51,8 @@ def hover():
 def test_hover_run_reports_rotor_loads(hover):
     loads = hover.loads
     assert set(KIND_COLUMNS["rotor"]) <= set(loads.columns)
-    assert {"blade_1_thrust_N", "blade_2_thrust_N", "induced_power_W", "profile_power_W"} <= set(loads.columns)
+    extra = {"blade_1_thrust_N", "blade_2_thrust_N", "induced_power_W", "profile_power_W"}
+    assert extra <= set(loads.columns)
     s = hover.summary["bodies"]["rotor"]
     assert s["thrust_N"] > 0 and s["power_W"] > 0
     assert s["revolutions"] == pytest.approx(2.0) and s["averaged_steps"] == 18

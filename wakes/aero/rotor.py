@@ -43,7 +43,7 @@ import numpy as np
 
 from ..errors import InputError
 from .geometry import Distribution, LiftingSurface, build_surface
-from .kinematics import RigidRotation, hub_frame, rotate_about
+from .kinematics import RigidRotation, hub_frame
 
 BLADE_SPACINGS = ("cosine", "tip", "uniform")
 
@@ -70,7 +70,8 @@ def blade_stations(n_panels: int, spacing: str) -> tuple[np.ndarray, np.ndarray]
     i = np.arange(n_panels + 1, dtype=np.float64)
     h = np.arange(n_panels, dtype=np.float64) + 0.5
     if spacing == "cosine":
-        nodes, sections = 0.5 * (1.0 - np.cos(np.pi * i / n_panels)), 0.5 * (1.0 - np.cos(np.pi * h / n_panels))
+        nodes = 0.5 * (1.0 - np.cos(np.pi * i / n_panels))
+        sections = 0.5 * (1.0 - np.cos(np.pi * h / n_panels))
     elif spacing == "tip":
         nodes, sections = np.sin(0.5 * np.pi * i / n_panels), np.sin(0.5 * np.pi * h / n_panels)
     elif spacing == "uniform":
@@ -221,9 +222,3 @@ class RotorGeometry:
         """Section pitch collective + twist [deg] at eta."""
         return self.collective + self.twist(np.asarray(eta, dtype=np.float64))
 
-
-def blade_to_hub(points: np.ndarray, rotor: RotorGeometry, blade: int, time: float) -> np.ndarray:
-    """Rotate global ``points`` (M, 3) of blade ``blade`` at ``time`` back to its time-zero place."""
-    rot = rotor.rotation()
-    back = rotate_about(np.asarray(points) - rot.hub, rot.axis, -rot.angle(time))
-    return back + rot.hub

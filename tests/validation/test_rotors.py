@@ -1,0 +1,159 @@
+"""Rotors, propellers and wind turbines against measurements, momentum theory and the Betz limit.
+
+The hover checks share one run of ``cases/validation/hover-8deg.toml`` (the model rotor of
+Caradonna & Tung 1981, NASA TM-81232), about a minute on 2 cores; the propeller and turbine
+sweeps run their cases at coarser settings (stated in each test).
+"""
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from wakes import exact
+from wakes.case import load_case
+from wakes.simulate import run_case
+
+CASES = Path(__file__).resolve().parents[2] / "cases" / "validation"
+MEASURED_CT = 0.00459   # Caradonna & Tung 1981, NASA TM-81232, 8 deg (secondary transcriptions)
+
+
+@pytest.fixture(scope="module")
+def hover():
+    return run_case(load_case(CASES / "hover-8deg.toml"))
+
+
+def _rotor(run):
+    return run.summary["bodies"]["rotor"]
+
+
+def _blade_thrust(run):
+    """Blade thrust histories (B, steps) and the steps in one revolution."""
+    loads = run.loads
+    blades = [c for c in loads.columns if c.startswith("blade_") and c.endswith("_thrust_N")]
+    return np.stack([loads[c].to_numpy() for c in sorted(blades)]), _rotor(run)["averaged_steps"]
+
+
+@pytest.mark.slow
+def test_hover_thrust_coefficient_matches_the_model_rotor(hover):
+    """Caradonna & Tung 1981 (NASA TM-81232): C_T = 0.00459 at 8 deg collective, 1250 rpm.
+    Within 10 % (free-wake models land within 5-10 %: common practice). Our thin-airfoil
+    section (2 pi per radian, no compressibility) gives about +9 %."""
+    assert _rotor(hover)["CT"] == pytest.approx(MEASURED_CT, rel=0.10)
+
+
+@pytest.mark.slow
+def test_hover_run_has_converged(hover):
+    """The stated convergence criterion: the last revolution's mean thrust within 1 % of the
+    revolution before."""
+    assert abs(_rotor(hover)["thrust_change_last_revolution"]) < 0.01
+
+
+@pytest.mark.slow
+def test_hover_tip_vortex_contracts_as_landgrebe_found(hover):
+    """Landgrebe's hover fit r/R = 0.78 + 0.22 exp(-(0.145 + 27 C_T) psi), psi the wake age in
+    radians (Landgrebe 1972, J. American Helicopter Soc.; from memory), with the run's C_T: the
+    tip vortex's mean radius over the last revolution within 0.03 R over the first two
+    revolutions (the fit is of time-averaged flow pictures; the instantaneous path wanders by
+    up to 0.04 R in the second revolution)."""
+    tip = hover.tables["tip_vortex.csv"]
+    ct = _rotor(hover)["CT"]
+    two = tip[tip["wake_age_deg"] <= 720.0]
+    fit = 0.78 + 0.22 * np.exp(-(0.145 + 27.0 * ct) * np.radians(two["wake_age_deg"]))
+    assert len(two) > 60
+    assert np.max(np.abs(two["r_over_R"] - fit)) < 0.03
+
+
+@pytest.mark.slow
+def test_hover_blade_loads_repeat_blade_to_blade_and_revolution_to_revolution(hover):
+    """Periodicity of a converged hover: each blade's mean thrust over the last revolution within
+    1 % of the revolution before, and of the other blades' (our criterion). Step by step the
+    blade thrust wanders by about +-0.6 % within a revolution as the wake older than a
+    revolution and a half (helical-vortex instability) moves; that is reported, not hidden:
+    the step-by-step spread is checked against 2.5 %."""
+    thrust, n = _blade_thrust(hover)
+    last, before = thrust[:, -n:], thrust[:, -2 * n:-n]
+    mean = last.mean()
+    assert np.max(np.abs(last.mean(axis=1) - before.mean(axis=1))) / mean < 0.01
+    assert np.ptp(last.mean(axis=1)) / mean < 0.01
+    assert np.max(np.abs(last - before)) / mean < 0.025
+
+
+@pytest.mark.slow
+def test_hover_thrust_converges_with_the_azimuth_step():
+    """Halving the azimuth step (10 to 5 deg, the vortex core kept) changes C_T by less than 2 %
+    (our criterion). Run on a coarser blade (10 strips), 14 revolutions and 5 of wake so that
+    both runs take under three minutes; the shipped case (16 strips) moves by +1.0 %."""
+    over = {"panels": 10, "revolutions": 14.0, "wake_revolutions": 5.0}
+    ct = [_rotor(run_case(load_case(CASES / "hover-8deg.toml", overrides={"bodies": {"rotor": {
+        **over, "azimuth_step": step}}})))["CT"] for step in (10.0, 5.0)]
+    assert ct[1] == pytest.approx(ct[0], rel=0.02)
+
+
+@pytest.mark.slow
+def test_hover_induced_power_factor_of_a_twisted_rotor():
+    """Induced power against momentum theory, kappa = P_i / (T^(3/2)/sqrt(2 rho A)), between 1.05
+    and 1.30 (practice; Leishman, Principles of Helicopter Aerodynamics). The practice range is
+    for twisted blades: this is the model rotor with -12 deg of linear twist (14 deg collective).
+    The untwisted model rotor itself gives about 1.40 (see the report): its loading is
+    concentrated outboard, under the previous blade's tip vortex."""
+    run = run_case(load_case(CASES / "hover-8deg.toml", overrides={"bodies": {"rotor": {
+        "twist": {"law": "linear", "root": 0.0, "tip": -12.0}, "collective": 14.0}}}))
+    assert 1.05 <= _rotor(run)["induced_power_factor"] <= 1.30
+
+
+def _propeller(j: float):
+    """The validation propeller at advance ratio ``j``, coarsened: 15 deg steps, 5 revolutions
+    (the wake leaves the disc at one radius a revolution, so loads settle within two)."""
+    n, d = 4000.0 / 60.0, 0.6
+    over = {"freestream": {"velocity": [j * n * d, 0.0, 0.0]},
+            "bodies": {"prop": {"azimuth_step": 15.0, "revolutions": 5.0, "wake_revolutions": 3.0}},
+            "wake": {"core_radius": 0.018}}
+    return run_case(load_case(CASES / "propeller-axial.toml", overrides=over)).summary["bodies"]["prop"]
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("j", [0.3, 0.5, 0.7])
+def test_propeller_efficiency_stays_below_froude(j):
+    """Actuator-disk momentum theory bounds the propulsive efficiency by the Froude efficiency
+    2/(1 + sqrt(1 + 8 C_T/(pi J^2))) at the same C_T and J (Froude 1889; wakes.exact)."""
+    p = _propeller(j)
+    assert p["J"] == pytest.approx(j)
+    assert p["CT"] > 0
+    assert 0 < p["efficiency"] < exact.froude_efficiency(p["CT"], p["J"])
+
+
+@pytest.mark.slow
+def test_propeller_thrust_vanishes_near_windmilling():
+    """With a symmetric section every station meets the flow at zero lift at J = P/D = 0.8 when
+    induction is left out; the thrust changes sign between J = 0.7 and 0.9 (profile drag and
+    induction shift the zero a little)."""
+    assert _propeller(0.7)["CT"] > 0 > _propeller(0.9)["CT"]
+
+
+def _turbine(tip_speed_ratio: float):
+    """The validation turbine at a tip-speed ratio (rpm changed, wind 8 m/s), coarsened to 15 deg
+    steps. The wake is kept 1.6 x the tip-speed ratio revolutions old (about 3.5 radii
+    downstream whatever the ratio) and the run is two revolutions longer. A shorter wake
+    overstates the power: at ratio 7, 4, 8 and 12 revolutions of wake give C_P 0.545, 0.517 and
+    0.507; at ratio 10 the pressure-force C_P is 0.618, 0.574 and 0.547 for 8, 12 and 16."""
+    rpm = tip_speed_ratio * 8.0 / 5.0 * 60.0 / (2.0 * np.pi)
+    wake = 1.6 * tip_speed_ratio
+    over = {"bodies": {"turbine": {"rpm": rpm, "azimuth_step": 15.0, "revolutions": wake + 2.0,
+                                   "wake_revolutions": wake}}, "wake": {"core_radius": 0.3}}
+    return run_case(load_case(CASES / "turbine.toml", overrides=over)).summary["bodies"]["turbine"]
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("tsr", [4.0, 7.0, 10.0])
+def test_turbine_power_stays_below_betz(tsr):
+    """Betz (1920): C_P = P/(1/2 rho A V^3) <= 16/27 for any rotor in an unbounded stream. Checked
+    for the shaft power and for the power of the pressure forces alone (no profile drag), which
+    is the ideal extraction the limit bounds."""
+    t = _turbine(tsr)
+    assert t["tip_speed_ratio"] == pytest.approx(tsr)
+    ideal = -t["induced_power_W"] / (0.5 * 1.225 * np.pi * 25.0 * 8.0 ** 3)
+    assert t["CP"] < exact.BETZ_LIMIT
+    assert ideal < exact.BETZ_LIMIT
+    if tsr == 7.0:                                   # the design point extracts power
+        assert t["CP"] > 0.3
