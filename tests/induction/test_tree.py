@@ -14,7 +14,7 @@ from hypothesis import strategies as st
 
 import wakes
 from wakes.errors import InputError
-from wakes.induction import tree, tree_build, tree_expansion, tree_params
+from wakes.induction import tree_build, tree_expansion, tree_params, tree_traverse
 from wakes.induction.smoothing import CORE_MODELS, PARTICLE_KERNELS
 
 from .reference import CORE_NAMES, KERNEL_NAMES
@@ -264,6 +264,26 @@ def test_random_filaments(seed, core, n):
     u0, g0 = wakes.induce(f, nodes, gradient=True)
     assert np.linalg.norm(u - u0) <= 1e-6 * np.linalg.norm(u0)
     assert np.linalg.norm(g - g0) <= 1e-5 * np.linalg.norm(g0)
+
+
+def test_one_point_leaves_at_one_spot_are_near():
+    """Regression: a one-point leaf met itself with zero radius and zero
+    distance, passed the opening test as far and gave NaN (found on a
+    particle ring). The test is strict now: such a pair is near."""
+    rng = np.random.default_rng(RNG_SEED)
+    x = rng.uniform(-1, 1, (60, 3))
+    order, (start, count, first, n_child, _) = tree_build.build_tree(
+        *(np.ascontiguousarray(x[:, k]) for k in range(3)), 1)
+    xs = x[order]
+    center, radius = tree_build.point_cell_geometry(start, count, *(xs[:, k].copy()
+                                                                    for k in range(3)))
+    far_t, far_s, near_t, near_s = tree_traverse.dual_traverse(
+        center, radius, count, first, n_child, center, radius, count, first, n_child,
+        0.5, 0, tree_traverse.MAC_ONLY, np.zeros(len(start)), np.zeros((1, 3)), np.ones(1))
+    assert len(far_t) > 0
+    assert np.all(np.linalg.norm(center[far_t] - center[far_s], axis=1) > 0)
+    leaves = np.flatnonzero(n_child == 0)
+    assert set(leaves) <= {t for t, s in zip(near_t, near_s) if t == s}
 
 
 # ------------------------------------------------------------ method choice

@@ -6,9 +6,12 @@
   tolerance and that of the gradient below ten times it.
 * Where a regularized kernel may be replaced by the singular one: the
   smallest rho = |r|/sigma (or h/r_c for a filament core) beyond which the
-  two differ by less than a fraction of the tolerance, in the velocity and
-  in the gradient.
-* A memory estimate, checked before anything large is allocated.
+  two pair laws differ by less than the tolerance (``REGULARIZATION_SHARE``
+  of it), in the velocity and, ten times looser, in the gradient.
+* When a pair of cells is worth an expansion rather than a direct sum (a
+  cost model), and when "auto" picks the tree (measured break-even).
+* Which requests go to the tree at all, and a memory estimate checked
+  before anything large is allocated.
 """
 
 from __future__ import annotations
@@ -22,7 +25,7 @@ from scipy.optimize import brentq
 from scipy.special import erfc
 
 from .smoothing import (CORE_LAMB_OSEEN, CORE_RANKINE, CORE_SCULLY, CORE_SINGULAR,
-                        CORE_VATISTAS2, GAUSSIAN, LAMB_OSEEN_ALPHA, ROSENHEAD_MOORE, SINGULAR,
+                        GAUSSIAN, LAMB_OSEEN_ALPHA, ROSENHEAD_MOORE, SINGULAR,
                         WINCKELMANS_LEONARD)
 from ..errors import InputError
 from .tree_expansion import expansion_tables, n_terms
@@ -32,9 +35,9 @@ from .tree_expansion import expansion_tables, n_terms
 # law. The change decays fast beyond the reach (1/rho^4 or faster, except
 # Rosenhead--Moore's 1/rho^2), so only the closest far pairs come near it:
 # measured on 20,000-point cubes (Gaussian and Winckelmans--Leonard,
-# sigma = 1 and 2 mean spacings, tolerances 1e-3 to 1e-6), allowing the full
-# tolerance per pair moved the total error by at most 0.04 tolerance
-# against a tenth of it, while cutting the work within the reach.
+# sigma = 1 and 2 mean spacings, tolerances 1e-3 to 1e-6), allowing the
+# whole tolerance per pair raised the total error by at most 0.04 x
+# tolerance over allowing a tenth of it, and cut the work within the reach.
 REGULARIZATION_SHARE = 1.0
 
 # (tolerance, theta, order p, auto crossover): a request uses the first row
@@ -137,13 +140,15 @@ def _core_excess(core: int, x: float) -> tuple[float, float]:
     if core == CORE_SCULLY:
         one_minus_f = 1.0 / (1.0 + x * x)
         return one_minus_f, one_minus_f + 2.0 * x * x / (1.0 + x * x) ** 2
-    # CORE_VATISTAS2
+    # Vatistas n = 2
     s = math.sqrt(1.0 + x**4)
     one_minus_f = 1.0 - x * x / s
     return one_minus_f, one_minus_f + 2.0 * x * x / s**3
 
 
 def _solve_reach(excess, velocity_limit: float, gradient_limit: float) -> float:
+    """Smallest x >= 2 beyond which ``excess(x)`` is within both limits
+    (the excesses decrease monotonically there)."""
     def worst(r):
         ev, eg = excess(r)
         return max(ev / velocity_limit, eg / gradient_limit) - 1.0
@@ -185,6 +190,8 @@ MIN_TREE_SOURCES = 2 * LEAF_SIZE
 # Below this tolerance the expansions would need orders whose round-off
 # competes with the request; "tree" sums directly (exactly) instead.
 MIN_TREE_TOLERANCE = 1e-10
+
+
 def check_tolerance(tolerance) -> float:
     """Return ``tolerance`` as a float in (0, 1) or raise InputError."""
     try:
