@@ -1,33 +1,37 @@
-"""A rotor blade's wake: a short near vortex sheet, then a rolled-up tip vortex.
+"""A rotor blade's wake: a resolved vortex sheet, then a tip vortex and inboard trailers.
 
-Behind a rotor blade the trailed vortex sheet rolls up within a few tens of
-degrees of wake age into a concentrated tip vortex that carries the peak
-bound circulation, while the inboard sheet is weak and spread (Leishman
-2006, *Principles of Helicopter Aerodynamics*, 2nd ed., ch. 10). The usual
-free-vortex model of that wake, kept here, is
+Behind a rotor blade the trailed vortex sheet rolls up into a concentrated
+tip vortex that carries the peak bound circulation, while the inboard sheet
+of opposite sense stays weak and spread (Leishman 2006, *Principles of
+Helicopter Aerodynamics*, 2nd ed., ch. 10). This wake keeps
 
 * a near wake: the wing's free vortex lattice (:mod:`wakes.aero.wake`) of
-  the last ``rollup_steps`` rings behind the blade, every trailed and shed
-  filament resolved, open at its old end;
-* a far wake: one tip vortex, a free polyline whose node for each shed row
-  sits at the circulation centroid of the row's nodes outboard of the
-  peak bound circulation (Betz's roll-up rule), with the peak circulation
-  of that row's ring as strength.
+  the last ``rollup_steps`` rings behind the blade (one revolution by
+  default), every trailed and shed filament free and resolved, so the
+  sheet rolls up by itself; open at its old end;
+* a far wake: each older row gathered into a tip vortex -- at the
+  circulation centroid of the row's nodes outboard of the peak bound
+  circulation (Betz's roll-up rule), carrying the peak circulation -- and
+  ``inboard_trailers`` trailers, each gathering the inboard nodes of an
+  equal length of the row at their centroid, with a core at least that
+  length (the spread sheet it stands for). Each trailer is an open
+  polyline; the far wake carries no shed vorticity between its rows, so a
+  change of loading in time leaves it without its spanwise counterpart
+  (exact in steady flight).
 
-The inboard trailed vorticity ends where the sheet ends; it is not
-followed further (its influence on the blades is a fraction of the tip
-vortex's, and a concentrated root vortex would hover in the rotor plane,
-where the next blade cuts it). The tip vortex carries no shed vorticity
-between its segments, so a change of the peak circulation in time leaves
-the far wake without its spanwise counterpart (exact in steady flight).
+In axial flow (hover, climb, axial wind) the inboard trailers move along
+the axis with the local flow and keep their radius relative to their row's
+tip vortex: left free, a concentrated trailer of opposite sense pairs with
+the tip vortex and both wander off (a spread sheet does not). In any other
+flow every node is free.
 
 Every node moves with the local velocity (the time loop's
-:func:`wakes.simulate.run_case`); core radii grow with age (Squire's law,
-:meth:`WakeSettings.core_at_age`). Tip vortex older than
+:func:`wakes.simulate.run_case`, forward Euler); core radii grow with age
+(Squire's law, :meth:`WakeSettings.core_at_age`). Far wake older than
 ``settings.max_age`` is removed: the wake below is then missing, which in
 hover lowers the inflow at the disc by about 1 - L/sqrt(L^2 + R_w^2) for a
 wake column of length L and radius R_w (the field of a semi-infinite
-vortex cylinder on its axis).
+vortex cylinder on its axis), and for a turbine raises the power.
 
 Start-up drift: after an impulsive start in hover the first wake lies in
 the rotor plane, where the next blade cuts through it before the inflow
@@ -36,13 +40,13 @@ has built up. With a ``startup`` drift the wake nodes also move along
 from the latest shed circulation as rho B Omega sum Gamma r dr, fading
 linearly to zero over ``startup.duration``; wake shed during that time is
 gone once the wake is cut (``max_age``) before the end of the run, so the
-final state does not depend on it.
+final state does not depend on it directly.
 
 Node storage for the time loop: ``rows`` stacks the near rows
-(R_n, n + 1, 3) and then the tip-vortex nodes (R_f, 3), newest first, as
-one (K, 3) array; :meth:`RolledUpWake.sources` returns the near sheet and
-the tip vortex as two :class:`wakes.Filaments`, the tip vortex's nodes
-newest first.
+(R_n, n + 1, 3) and then the far rows (R_f, b, 3), b = inboard_trailers +
+1 with the tip vortex last, newest first, as one (K, 3) array;
+:meth:`RolledUpWake.sources` returns the near sheet and the far trailers as
+two :class:`wakes.Filaments`.
 """
 
 from __future__ import annotations
