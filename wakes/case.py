@@ -21,7 +21,7 @@ Units are SI; angles are in degrees. Example::
 
 Body types are registered in :data:`BODY_TYPES` (name -> spec class); a
 spec class is a frozen dataclass with a ``type`` field and the hooks
-``check``, ``resolve``, ``suggest_dt`` and ``suggest_steps``.
+``check``, ``resolve``, ``suggest_dt`` and ``suggest_steps_float``.
 """
 
 from __future__ import annotations
@@ -50,6 +50,7 @@ WAKE_MOTIONS = ("free", "frozen")
 WING_MODELS = ("lifting-line", "vortex-lattice")
 DEFAULT_CORE_CHORDS = 0.1   # initial core radius / smallest mean chord (common practice, 5-20 %)
 DEFAULT_WAKE_SPANS = 3.0    # default run length: wake this many spans long (downwash within ~1 %)
+MAX_DEFAULT_STEPS = 10_000_000  # a default step count above this means the sizes or speeds are a typo
 _NAME = re.compile(r"^[A-Za-z0-9_-]+$")
 
 
@@ -262,9 +263,9 @@ class WingSpec:
         speed = float(np.linalg.norm(case.freestream.vector()))
         return self.mean_chord() / (max(4, self.chordwise_panels or 1) * speed)
 
-    def suggest_steps(self, case: "Case", dt: float) -> int:
+    def suggest_steps_float(self, case: "Case", dt: float) -> float:
         speed = float(np.linalg.norm(case.freestream.vector()))
-        return int(math.ceil(DEFAULT_WAKE_SPANS * self.span / (speed * dt)))
+        return DEFAULT_WAKE_SPANS * self.span / (speed * dt)
 
     def omitted(self) -> set:
         return set()
@@ -376,8 +377,8 @@ class RotorSpec:
     def suggest_dt(self, case: "Case") -> float:
         return self.azimuth_step / (6.0 * self.rpm)
 
-    def suggest_steps(self, case: "Case", dt: float) -> int:
-        return int(math.ceil(self.revolutions * 60.0 / (self.rpm * dt) - 1e-9)) + 1
+    def suggest_steps_float(self, case: "Case", dt: float) -> float:
+        return self.revolutions * 60.0 / (self.rpm * dt) + 1.0
 
     def omitted(self) -> set:
         return set()
@@ -648,7 +649,18 @@ def _resolve(case: Case) -> Case:
         wake = dataclasses.replace(wake, core_radius=DEFAULT_CORE_CHORDS * chord)
     time = case.time
     dt = time.dt if time.dt is not None else min(b.suggest_dt(case) for b in bodies)
-    steps = time.steps if time.steps is not None else max(b.suggest_steps(case, dt) for b in bodies)
+    if not (math.isfinite(dt) and dt > 0.0):
+        raise CaseError(f"[time] dt: the default step from the case's sizes and speeds is {dt:g} s; "
+                        "give [time] dt, a positive number of seconds")
+    if time.steps is None:
+        wanted = max(b.suggest_steps_float(case, dt) for b in bodies)
+        if not (math.isfinite(wanted) and wanted <= MAX_DEFAULT_STEPS):
+            raise CaseError(f"[time] steps: the default from the case's sizes and speeds is {wanted:g} "
+                            f"steps (more than {MAX_DEFAULT_STEPS:,}); give [time] steps, a whole "
+                            "number of at least 1")
+        steps = max(1, int(math.ceil(wanted - 1e-9)))
+    else:
+        steps = time.steps
     return dataclasses.replace(case, wake=wake, time=TimeSpec(dt=dt, steps=steps))
 
 
