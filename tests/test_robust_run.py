@@ -6,6 +6,7 @@ import signal
 import subprocess
 import sys
 import time
+import xml.etree.ElementTree as ET
 from pathlib import Path
 
 import numpy as np
@@ -147,6 +148,8 @@ def _parses(path: Path):
         json.loads(path.read_text())
     elif path.suffix == ".npz":
         read_checkpoint(path)
+    elif path.suffix in (".vtp", ".pvd"):
+        ET.parse(path)
     elif path.suffix == ".toml":
         import tomllib
         tomllib.loads(path.read_text())

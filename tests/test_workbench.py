@@ -65,15 +65,21 @@ def _pvd_files(path):
     return [(float(d.get("timestep")), path.parent / d.get("file")) for d in root.iter("DataSet")]
 
 
-def test_filament_snapshot_is_read_back_by_vtk(run_dirs):
+def test_filament_snapshots_over_time_are_read_back_by_vtk(run_dirs):
     folder, run = run_dirs["filaments"]
     segs = pd.read_csv(folder / "wake_segments.csv")
     entries = _pvd_files(folder / "wake" / "filaments.pvd")
-    assert len(entries) == 1
-    time, file = entries[0]
-    assert time == pytest.approx((run.case.time.steps - 1) * run.case.time.dt)
-    poly = _read_vtp(file)
-    assert poly.GetNumberOfLines() == len(segs) == 71   # 6 rows x 6 spanwise + 5 x 7 streamwise
+    # 6 steps, snapshot_every worked out as 1: the wakes at the starts of steps 1..5
+    # (at step 0 there is only the first trailing-edge row, no segment)
+    assert run.case.output.snapshot_every == 1
+    dt = run.case.time.dt
+    assert [t for t, _ in entries] == pytest.approx([k * dt for k in range(1, 6)])
+    assert [f.name for _, f in entries] == [f"filaments_{k:06d}.vtp" for k in range(1, 6)]
+    lines = [_read_vtp(f).GetNumberOfLines() for _, f in entries]
+    # k rows of 6 spanwise segments and k - 1 rows of 7 streamwise ones (lattice bookkeeping)
+    assert lines == [6 * k + 7 * (k - 1) for k in range(2, 7)]
+    poly = _read_vtp(entries[-1][1])
+    assert poly.GetNumberOfLines() == len(segs) == 71   # the last snapshot is the final wake
     circ = poly.GetCellData().GetArray("circulation")
     core = poly.GetCellData().GetArray("core_radius")
     assert circ.GetNumberOfTuples() == len(segs) and core.GetNumberOfTuples() == len(segs)
@@ -85,7 +91,7 @@ def test_particle_snapshot_is_read_back_by_vtk(run_dirs):
     folder, run = run_dirs["particles"]
     parts = pd.read_csv(folder / "wake_particles.csv")
     assert len(parts) > 0
-    (_, file), = _pvd_files(folder / "wake" / "particles.pvd")
+    file = _pvd_files(folder / "wake" / "particles.pvd")[-1][1]
     poly = _read_vtp(file)
     assert poly.GetNumberOfPoints() == poly.GetNumberOfVerts() == len(parts)
     strength = poly.GetPointData().GetArray("strength")
@@ -171,7 +177,7 @@ def test_templates_pass_check_and_run(kind, tmp_path, capsys):
 
 def test_progress_bar_is_silent_off_a_terminal_and_draws_on_one():
     quiet = io.StringIO()
-    ProgressBar(0.01, stream=quiet)(3, 3)
+    ProgressBar(0.01, stream=quiet)(3, 3, (5, 0))
     assert quiet.getvalue() == ""
 
     class Tty(io.StringIO):
@@ -179,12 +185,26 @@ def test_progress_bar_is_silent_off_a_terminal_and_draws_on_one():
             return True
 
     tty = Tty()
-    bar = ProgressBar(0.01, wake_size=lambda step: 10 * step, stream=tty)
-    bar(4, 4)
+    bar = ProgressBar(0.01, origin=(2, 1.0), stream=tty)
+    bar(4, 4, (1234, 56))
     text = tty.getvalue()
     assert text.startswith("\r[") and text.endswith("\n")
-    assert "4/4" in text and "t = 0.04 s" in text and "wake 40 elements" in text
+    assert "4/4" in text and "t = 1.02 s" in text and "wake 1,234 segments 56 particles" in text
+    assert "steps/s" in text and "left" in text
     ProgressBar(0.01, stream=Tty(), quiet=True)(1, 2)
+
+
+def test_run_hands_the_live_wake_size_to_the_progress_callable(run_dirs):
+    """What the bar shows is the wake of each step, as recorded in the loads table."""
+    _, run = run_dirs["particles"]
+    seen = []
+    wakes.run_case(run.case, progress=lambda step, steps, wake: seen.append((step, steps, wake)))
+    assert [s[:2] for s in seen] == [(k, 6) for k in range(1, 7)]
+    counts = list(zip(run.loads["wake_segments"], run.loads["wake_particles"]))
+    assert [s[2] for s in seen] == counts and counts[-1][1] > 0
+    two = []
+    wakes.run_case(run.case, progress=lambda step, steps: two.append(step))   # older callables
+    assert two == list(range(1, 7))
 
 
 def test_wakes_run_subprocess_writes_every_file(tmp_path):
@@ -200,8 +220,8 @@ def test_wakes_run_subprocess_writes_every_file(tmp_path):
     assert "wing" in json.loads((out / "summary.json").read_text())["bodies"]
     assert wakes.load_case(out / "case.toml").title == "tiny test wing"
     assert len(pd.read_csv(out / "wake_segments.csv")) == 71
-    for time, file in _pvd_files(out / "wake" / "filaments.pvd"):
-        assert _read_vtp(file).GetNumberOfLines() == 71
+    snapshots = _pvd_files(out / "wake" / "filaments.pvd")
+    assert len(snapshots) == 5 and _read_vtp(snapshots[-1][1]).GetNumberOfLines() == 71
     import matplotlib.image as mpimg
     for name in ("loads.png", "span_loading.png", "wake_3d.png"):
         assert mpimg.imread(out / "plots" / name).shape[0] > 100

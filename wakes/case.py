@@ -50,6 +50,7 @@ WAKE_MOTIONS = ("free", "frozen")
 WING_MODELS = ("lifting-line", "vortex-lattice")
 DEFAULT_CORE_CHORDS = 0.1   # initial core radius / smallest mean chord (common practice, 5-20 %)
 DEFAULT_WAKE_SPANS = 3.0    # default run length: wake this many spans long (downwash within ~1 %)
+DEFAULT_SNAPSHOTS = 15       # wake snapshots of a run by default: an animation, not a copy per step
 MAX_DEFAULT_STEPS = 10_000_000  # a default step count above this means the sizes or speeds are a typo
 _NAME = re.compile(r"^[A-Za-z0-9_-]+$")
 
@@ -168,6 +169,9 @@ class OutputSpec:
     checkpoint_every: int = key(0, "write a checkpoint to resume from every this many steps "
                                 "(0: only on interruption or instability)", kind="int",
                                 minimum=0, maximum=10 ** 9)
+    snapshot_every: int | None = key(None, "write the wake to wake/*.vtp every this many steps "
+                                     "(default: about 15 snapshots a run; 0: the final wake only)",
+                                     kind="int", minimum=0, maximum=10 ** 9, resolved=True)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -661,7 +665,10 @@ def _resolve(case: Case) -> Case:
         steps = max(1, int(math.ceil(wanted - 1e-9)))
     else:
         steps = time.steps
-    return dataclasses.replace(case, wake=wake, time=TimeSpec(dt=dt, steps=steps))
+    output = case.output
+    if output.snapshot_every is None:
+        output = dataclasses.replace(output, snapshot_every=math.ceil(steps / DEFAULT_SNAPSHOTS))
+    return dataclasses.replace(case, wake=wake, time=TimeSpec(dt=dt, steps=steps), output=output)
 
 
 def _merge(base: dict, overrides: dict) -> dict:

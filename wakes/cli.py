@@ -136,7 +136,6 @@ def _parser() -> argparse.ArgumentParser:
 def _run(args) -> int:
     from .budget import parse_size
     from .case import load_case
-    from .estimate import wake_size_at
     from .io.checkpoint import prepare_resume
     from .progress import ProgressBar
     from .runfolder import check_new_folder, result_table, write_run
@@ -156,7 +155,8 @@ def _run(args) -> int:
             raise WakesError("--dt applies with --resume only; set [time] dt in the case file")
         out = check_new_folder(args.out, args.overwrite)
         case, state = load_case(args.case), None
-    bar = ProgressBar(case.time.dt, wake_size=wake_size_at(case), quiet=args.quiet)
+    bar = ProgressBar(case.time.dt, origin=(0, 0.0) if state is None else state.origin,
+                      quiet=args.quiet)
     run = run_guarded(case, out, progress=bar, max_memory=max_memory, resume=state,
                       write=lambda r, o: write_run(r, o, plots=r.status == "finished"))
     status = exit_status(run)

@@ -150,25 +150,6 @@ def wake_sizes(case: Case) -> tuple[np.ndarray, np.ndarray]:
     return seg.astype(np.int64), par.astype(np.int64)
 
 
-def wake_size_at(case: Case):
-    """A function ``size(step)`` giving the estimated wake elements after ``step`` steps.
-
-    Used by :class:`wakes.progress.ProgressBar`.
-
-    Examples
-    --------
-    >>> from wakes.case import load_case
-    >>> size = wake_size_at(load_case("cases/survey-glider.toml"))  # doctest: +SKIP
-    >>> size(10)                                                    # doctest: +SKIP
-    """
-    seg, par = wake_sizes(case)
-    total = seg + par
-
-    def size(step: int) -> int:
-        return int(total[min(max(step, 1), len(total)) - 1])
-    return size
-
-
 def measure_pair_rate(n: int = 600) -> float:
     """Biot–Savart pairs per second of :func:`wakes.induce` (direct sum) on this machine.
 

@@ -8,7 +8,8 @@ A run folder holds (see the README for the columns)::
     sections.csv         span or radial distributions at the last step
     loads.parquet, sections.parquet    the same tables, when pyarrow is installed
     wake_segments.csv, wake_particles.csv   the final wake as tables
-    wake/filaments_NNNNNN.vtp, wake/particles_NNNNNN.vtp   VTK PolyData snapshots
+    wake/filaments_NNNNNN.vtp, wake/particles_NNNNNN.vtp   VTK PolyData wake snapshots,
+                         every [output] snapshot_every steps and at the end
     wake/filaments.pvd, wake/particles.pvd                 ParaView collections over time
     plots/*.png          figures (:mod:`wakes.plots`)
 
@@ -29,7 +30,7 @@ import pandas as pd
 
 from .elements import Filaments, Particles
 from .errors import InputError
-from .io import vtk as vtk_io
+from .io.snapshots import WakeSnapshots
 
 RUN_MARKERS = ("summary.json", "case.toml", "loads.csv")
 
@@ -49,66 +50,6 @@ def check_new_folder(out: str | os.PathLike, overwrite: bool = False) -> Path:
         raise InputError(f"--out {out}: folder exists and is not empty; choose a new folder "
                          "or pass --overwrite to replace the run in it")
     return out
-
-
-def merge_wake(sources) -> tuple[Filaments | None, Particles | None]:
-    """All filaments and all particles of a wake list as one of each (None if absent)."""
-    fil = [s for s in sources if isinstance(s, Filaments) and s.segment_count]
-    par = [s for s in sources if isinstance(s, Particles) and s.count]
-    merged_f = merged_p = None
-    if fil:
-        offsets = np.cumsum([0] + [f.nodes.shape[0] for f in fil[:-1]])
-        merged_f = Filaments(np.vstack([f.nodes for f in fil]),
-                             np.vstack([f.segments + o for f, o in zip(fil, offsets)]),
-                             np.concatenate([f.circulation for f in fil]),
-                             np.concatenate([f.core_radius for f in fil]), core=fil[0].core)
-    if par:
-        merged_p = Particles(np.vstack([p.positions for p in par]), np.vstack([p.strengths for p in par]),
-                             np.concatenate([p.radii for p in par]), kernel=par[0].kernel)
-    return merged_f, merged_p
-
-
-def write_wake_snapshots(out: str | os.PathLike, snapshots) -> list[Path]:
-    """Write wake snapshots as ``.vtp`` files and their ``.pvd`` collections.
-
-    Parameters
-    ----------
-    out : path-like
-        The run folder; files go to ``out/wake/``.
-    snapshots : iterable of (int, float, list)
-        Step, simulated time [s] and the wake's elements (Filaments and
-        Particles) at that time.
-
-    Returns
-    -------
-    list of Path
-        Every file written.
-
-    Examples
-    --------
-    >>> import tempfile, numpy as np, wakes
-    >>> ring = wakes.Filaments.from_polyline(np.eye(3), 1.0, 0.01, closed=True)
-    >>> paths = write_wake_snapshots(tempfile.mkdtemp(), [(0, 0.0, [ring])])
-    >>> sorted(p.name for p in paths)
-    ['filaments.pvd', 'filaments_000000.vtp']
-    """
-    folder = Path(out) / "wake"
-    folder.mkdir(parents=True, exist_ok=True)
-    written, entries = [], {"filaments": [], "particles": []}
-    for step, time, sources in snapshots:
-        fil, par = merge_wake(sources)
-        if fil is not None:
-            p = vtk_io.write_filaments(folder / f"filaments_{step:06d}.vtp", fil)
-            entries["filaments"].append((time, p))
-            written.append(p)
-        if par is not None:
-            p = vtk_io.write_particles(folder / f"particles_{step:06d}.vtp", par)
-            entries["particles"].append((time, p))
-            written.append(p)
-    for kind, items in entries.items():
-        if items:
-            written.append(vtk_io.write_collection(folder / f"{kind}.pvd", items))
-    return written
 
 
 def write_parquet(run, out: str | os.PathLike) -> list[Path]:
@@ -190,27 +131,30 @@ def run_to_folder(case, out: str | os.PathLike, *, overwrite: bool = False, prog
     """
     from .case import Case, load_case
     from .simulate import run_case
+    from .watchdog import RunControl
 
     out = check_new_folder(out, overwrite)
     if not isinstance(case, Case):
         case = load_case(case)
-    run = run_case(case, progress=progress)
+    snapshots = WakeSnapshots(out)
+    control = RunControl(snapshot_every=case.output.snapshot_every, snapshot=snapshots.write)
+    run = run_case(case, progress=progress, control=control)
     write_run(run, out, plots=plots)
     return run
 
 
 def write_run(run, out: str | os.PathLike, *, plots: bool = True) -> list[Path]:
-    """Write a finished :class:`wakes.simulate.Run` as a complete run folder; return the paths."""
+    """Write a finished (or partial) :class:`wakes.simulate.Run` as a run folder; return the paths.
+
+    The run's final wake is added to the snapshots in ``out/wake`` (those a
+    run wrote as it went, :class:`wakes.io.snapshots.WakeSnapshots`, up to
+    the final wake's step are kept; any later ones are removed).
+    """
     out = Path(out)
     paths = run.write(out)
-    final_step = run.case.time.steps - 1
-    final_time = final_step * run.case.time.dt
     sources = [e for elements in run.wake.values() for e in elements]
-    old = list((out / "wake").glob("*_*.vtp")) if (out / "wake").is_dir() else []
-    written = write_wake_snapshots(out, [(final_step, final_time, sources)])
-    for stale in set(old) - set(written):   # left by an earlier run in this folder
-        stale.unlink()
-    paths += written + write_parquet(run, out)
+    snapshots = WakeSnapshots(out, keep_before=run.wake_step)
+    paths += snapshots.write(run.wake_step, run.wake_time_s, sources) + write_parquet(run, out)
     if plots:
         from .plots import plot_run
         paths += plot_run(out, overwrite=True)

@@ -16,6 +16,7 @@ Every velocity comes from :func:`wakes.induce`.
 
 from __future__ import annotations
 
+import inspect
 import subprocess
 import time as _time
 from dataclasses import dataclass, field
@@ -78,9 +79,29 @@ class Run:
         Final wake of every surface: ``{surface: list of Filaments/Particles}``.
     wall_time_s : float
         Run time [s].
+    status : str
+        How the run ended: "finished"; "interrupted" (a stop request, e.g.
+        SIGINT or SIGTERM, at the end of a step); "unstable" (the watchdog
+        found non-finite values, a runaway wake speed or a circulation
+        solve that did not converge); "memory" (the wake outgrew the memory
+        budget); "failed" (another error a user can cause). Anything but
+        "finished" happens only with ``RunControl(keep_partial=True)``.
+    message : str
+        Why the run stopped early ("" when finished): step, time, element,
+        likely cause and remedy.
+    resume_state : wakes.io.checkpoint.LoopState or None
+        The last good state to go on from when the run stopped early.
+    stop_signal : int or None
+        The signal that stopped an interrupted run (set by
+        :func:`wakes.watchdog.run_guarded`).
     tables : dict
         Extra result tables of the bodies, ``{file name: DataFrame}``
         (a rotor's ``tip_vortex.csv``), written beside the others.
+    wake_step : int
+        The step whose starting wake ``wake`` is (the last step for a
+        finished run, the step to resume from for a partial one).
+    wake_time_s : float
+        The time of that wake [s].
     """
 
     case: Case
@@ -94,6 +115,8 @@ class Run:
     resume_state: LoopState | None = field(default=None, repr=False)
     stop_signal: int | None = None
     tables: dict = field(default_factory=dict, repr=False)
+    wake_step: int = 0
+    wake_time_s: float = 0.0
 
     def write(self, out_dir) -> list[Path]:
         """Write the run folder: loads.csv, sections.csv, summary.json, case.toml and the wake.
@@ -181,7 +204,10 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
     case : Case
         From :func:`wakes.case.load_case`.
     progress : callable, optional
-        Called as ``progress(step, steps)`` after every step.
+        Called after every step as ``progress(step, steps, wake)`` with the
+        steps done, the steps of the run and ``wake`` = (filament segments,
+        particles) in the wake of the step just done; a callable taking two
+        arguments is called as ``progress(step, steps)``.
     control : wakes.watchdog.RunControl, optional
         Checkpoints, stop requests (signals) and what a failed check does;
         default: no checkpoints, a failed check raises.
@@ -234,6 +260,7 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
     rows = []
     strips = []
     control = control if control is not None else RunControl()
+    report = _progress_reporter(progress)
     watch = Watchdog.for_surfaces(v_inf, [s for _, ss in layout for s in ss], control.max_memory)
     origin, first = (0, 0.0), 0
     if resume is not None:
@@ -247,11 +274,13 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
             good, done_strips = LoopState.capture(step, t, origin, wakes, gamma, gamma_prev, rows,
                                                   cache), strips
             watch.check_memory(step, t, wakes)
+            if control.snapshot_due(step, steps):
+                control.snapshot(step, t, [e for w in wakes for e in w.sources(t)])
             strips, gamma = _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear,
                                   solver, settings, v_inf, dt, rho, steps, method, watch)
             gamma_prev = gamma
             if progress is not None:
-                progress(step + 1, steps)
+                report(step + 1, steps, (rows[-1]["wake_segments"], rows[-1]["wake_particles"]))
             done = step + 1
             if done < steps and (control.stop_requested or control.checkpoint_due(done)):
                 good = LoopState.capture(done, origin[1] + (done - origin[0]) * dt, origin, wakes,
@@ -278,8 +307,23 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
     run = _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t,
                     t if wake_time is None else wake_time, started, steps_done)
     run.status, run.message = status, message
+    run.wake_step = steps - 1 if status == "finished" else good.step
+    run.wake_time_s = t if wake_time is None else wake_time
     run.resume_state = good if status != "finished" else None
     return run
+
+
+def _progress_reporter(progress):
+    """``progress`` as a callable of (step, steps, wake), whether it takes the wake or not."""
+    if progress is None:
+        return None
+    try:
+        inspect.signature(progress).bind(0, 0, (0, 0))
+    except TypeError:
+        return lambda step, steps, wake: progress(step, steps)
+    except ValueError:   # no signature to inspect (some builtins): the documented three arguments
+        pass
+    return progress
 
 
 def _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear, solver, settings,

@@ -138,14 +138,23 @@ class RunControl:
         says why and whose ``resume_state`` is the last good state.
     max_memory : int, optional
         Memory budget [B] of the watchdog.
+    snapshot_every : int
+        Hand the wake to ``snapshot`` at the start of every step that is a
+        multiple of this (0: never; the final wake is the caller's).
+    snapshot : callable, optional
+        ``snapshot(step, time, sources)`` with the wake's Filaments and
+        Particles at that step's time [s], e.g.
+        :meth:`wakes.io.snapshots.WakeSnapshots.write`.
     """
 
     def __init__(self, *, checkpoint_every: int = 0, save=None, keep_partial: bool = False,
-                 max_memory: int | None = None):
+                 max_memory: int | None = None, snapshot_every: int = 0, snapshot=None):
         self.checkpoint_every = int(checkpoint_every)
         self.save = save
         self.keep_partial = keep_partial
         self.max_memory = max_memory
+        self.snapshot_every = int(snapshot_every)
+        self.snapshot = snapshot
         self.stop_signal: int | None = None
 
     @property
@@ -156,6 +165,15 @@ class RunControl:
         """Whether a checkpoint is due after ``steps_done`` steps."""
         return (self.save is not None and self.checkpoint_every > 0
                 and steps_done % self.checkpoint_every == 0)
+
+    def snapshot_due(self, step: int, steps: int) -> bool:
+        """Whether the wake at the start of ``step`` is wanted as a snapshot.
+
+        The last step's wake is the run's final wake, written with the
+        outputs, so it is never due here.
+        """
+        return (self.snapshot is not None and self.snapshot_every > 0 and step < steps - 1
+                and step % self.snapshot_every == 0)
 
     @contextlib.contextmanager
     def catch_signals(self):
@@ -198,7 +216,8 @@ def run_guarded(case, out, *, write, progress=None, max_memory: int | None = Non
     case : wakes.case.Case
         The resolved case.
     out : path-like
-        The run folder (created); checkpoints go to ``out/checkpoints``.
+        The run folder (created); checkpoints go to ``out/checkpoints``,
+        wake snapshots to ``out/wake`` every ``[output] snapshot_every`` steps.
     write : callable
         ``write(run, out)`` writes a (possibly partial) run's outputs.
     progress : callable, optional
@@ -226,6 +245,7 @@ def run_guarded(case, out, *, write, progress=None, max_memory: int | None = Non
 
     from .budget import check_budget
     from .io.checkpoint import remove_checkpoints, write_checkpoint
+    from .io.snapshots import WakeSnapshots
     from .simulate import run_case
 
     check_budget(case, max_memory)
@@ -235,8 +255,10 @@ def run_guarded(case, out, *, write, progress=None, max_memory: int | None = Non
     def save(state):
         write_checkpoint(out, state, case_toml, case.source)
 
+    snapshots = WakeSnapshots(out, keep_before=0 if resume is None else resume.step)
     control = RunControl(checkpoint_every=case.output.checkpoint_every, save=save,
-                         keep_partial=True, max_memory=max_memory)
+                         keep_partial=True, max_memory=max_memory,
+                         snapshot_every=case.output.snapshot_every, snapshot=snapshots.write)
     with control.catch_signals():
         run = run_case(case, progress=progress, control=control, resume=resume)
     run.stop_signal = control.stop_signal

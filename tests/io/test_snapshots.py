@@ -1,0 +1,55 @@
+"""Wake snapshots written as a run goes: collections stay consistent through kills and resumes."""
+
+import xml.etree.ElementTree as ET
+
+import numpy as np
+import pytest
+
+import wakes
+from wakes.io.snapshots import WakeSnapshots
+
+vtk = pytest.importorskip("vtk")
+
+
+def _ring(n):
+    t = np.linspace(0.0, 2.0 * np.pi, n, endpoint=False)
+    return wakes.Filaments.from_polyline(np.stack([np.cos(t), np.sin(t), 0 * t], 1), 1.0, 0.05,
+                                         closed=True)
+
+
+def _listed(folder):
+    root = ET.parse(folder / "filaments.pvd").getroot()
+    return [(float(d.get("timestep")), d.get("file")) for d in root.iter("DataSet")]
+
+
+def test_snapshots_accumulate_and_a_resume_keeps_only_earlier_ones(tmp_path):
+    snaps = WakeSnapshots(tmp_path)
+    for step in range(4):
+        snaps.write(step, 0.1 * step, [_ring(3 + step)])
+    folder = tmp_path / "wake"
+    assert [f for _, f in _listed(folder)] == [f"filaments_{k:06d}.vtp" for k in range(4)]
+    reader = vtk.vtkXMLPolyDataReader()
+    for k, (_, f) in enumerate(_listed(folder)):   # every listed file is complete and readable
+        reader.SetFileName(str(folder / f))
+        reader.Update()
+        assert reader.GetOutput().GetNumberOfLines() == 3 + k
+
+    (folder / "filaments_000009.vtp").write_text("left by a killed run, never listed")
+    resumed = WakeSnapshots(tmp_path, keep_before=2)   # resume from a checkpoint at step 2
+    assert resumed.times("filaments") == [0.0, 0.1]
+    assert sorted(p.name for p in folder.iterdir()) == ["filaments.pvd", "filaments_000000.vtp",
+                                                        "filaments_000001.vtp"]
+    resumed.write(2, 0.15, [_ring(8)])        # a smaller step after the resume: new times
+    assert _listed(folder) == [(0.0, "filaments_000000.vtp"), (0.1, "filaments_000001.vtp"),
+                               (0.15, "filaments_000002.vtp")]
+
+    WakeSnapshots(tmp_path)                   # a new run in the folder (--overwrite) starts clean
+    assert list(folder.iterdir()) == []
+
+
+def test_particles_get_their_own_collection_and_an_empty_wake_writes_nothing(tmp_path):
+    snaps = WakeSnapshots(tmp_path)
+    assert snaps.write(0, 0.0, []) == []
+    p = wakes.Particles(np.zeros((4, 3)), np.ones((4, 3)), 0.1)
+    names = sorted(x.name for x in snaps.write(3, 0.3, [p, _ring(5)]))
+    assert names == ["filaments.pvd", "filaments_000003.vtp", "particles.pvd", "particles_000003.vtp"]
