@@ -70,6 +70,8 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--quiet", action="store_true", help="print nothing but errors")
     run.add_argument("--overwrite", action="store_true",
                      help="replace the files of an earlier run in DIR")
+    run.add_argument("--no-plots", action="store_true",
+                     help="write no figures (draw them later with 'wakes plot DIR')")
 
     check = sub.add_parser("check", help="validate a case and estimate its cost, without running",
                            description="Check CASE, print the resolved case and estimate the "
@@ -158,7 +160,8 @@ def _run(args) -> int:
     bar = ProgressBar(case.time.dt, origin=(0, 0.0) if state is None else state.origin,
                       quiet=args.quiet)
     run = run_guarded(case, out, progress=bar, max_memory=max_memory, resume=state,
-                      write=lambda r, o: write_run(r, o, plots=r.status == "finished"))
+                      write=lambda r, o: write_run(r, o, plots=r.status == "finished"
+                                                   and not args.no_plots))
     status = exit_status(run)
     if status:
         print(f"wakes: {run.status}: {run.message}; the last good state and the outputs so far "

@@ -109,6 +109,23 @@ class RigidInfluenceCache:
         self._last = (aic, aic_load)
         return self._last
 
+    def rotated_blocks(self) -> dict:
+        """The blocks last obtained by rotating an earlier one, for a checkpoint.
+
+        Returns
+        -------
+        dict
+            ``{(source name, target name): (ref_points, ref_block,
+            last_points, last_block)}``; the arrays are the cache's own (not
+            copies). Blocks computed directly are left out: recomputing them
+            gives the same bits.
+        """
+        return {key: entry for key, entry in self._blocks.items() if entry[0] is not entry[2]}
+
+    def restore_blocks(self, blocks: dict) -> None:
+        """Put blocks from :meth:`rotated_blocks` (e.g. read from a checkpoint) back."""
+        self._blocks.update(blocks)
+
     def _block(self, source, target_surface, targets: np.ndarray):
         """Block of ``source``'s rings at ``targets``; True if it differs from last step's."""
         key = (source.name, target_surface.name)

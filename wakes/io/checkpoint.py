@@ -105,10 +105,7 @@ class LoopState:
         step even after the step has moved the wake on.
         """
         kept = [_wake_record(w) for w in wakes]
-        blocks = {}
-        for key, entry in (getattr(cache, "_blocks", None) or {}).items():
-            if entry[0] is not entry[2]:  # reused by rotation since it was computed
-                blocks[key] = entry
+        blocks = cache.rotated_blocks() if cache is not None else {}
         return cls(int(step), float(time), (int(origin[0]), float(origin[1])), gamma,
                    gamma_prev, rows, kept, blocks, len(rows))
 
@@ -124,7 +121,7 @@ class LoopState:
             for name, value in rec["state"].items():
                 setattr(w, name, value)
         if cache is not None and self.blocks:
-            cache._blocks.update(self.blocks)
+            cache.restore_blocks(self.blocks)
 
 
 def _wake_record(wake) -> dict:
