@@ -2,13 +2,11 @@
 
 Usage::
 
-    python tools/make_gallery.py [--only glider|rotor]
+    python tools/make_gallery.py [--only glider]
 
-Runs ``cases/survey-glider.toml`` (about half a minute) and
-``cases/drone-lift-rotor.toml`` (several minutes on two cores) into a
-temporary folder with the figures ``wakes run`` draws, and copies the
-chosen ones to ``docs/gallery/`` after checking each stays below
-``MAX_BYTES``.
+Runs ``cases/survey-glider.toml`` (about half a minute) into a temporary
+folder with the figures ``wakes run`` draws, and copies the chosen ones
+to ``docs/gallery/`` after checking each stays below ``MAX_BYTES``.
 """
 
 from __future__ import annotations
@@ -27,7 +25,6 @@ MAX_BYTES = 200_000   # a README figure stays small in the repository
 FIGURES = {   # demo: (case file, {figure drawn by the run: name in the gallery})
     "glider": ("cases/survey-glider.toml", {"wake_3d.png": "survey-glider-wake.png",
                                             "span_loading.png": "survey-glider-span-loading.png"}),
-    "rotor": ("cases/drone-lift-rotor.toml", {"tip_vortex.png": "lift-rotor-tip-vortex.png"}),
 }
 
 
