@@ -175,6 +175,27 @@ class OutputSpec:
 
 
 @dataclass(frozen=True, kw_only=True)
+class GroundSpec:
+    """[ground]: a flat ground, by the mirror images of every vortex element
+    (:mod:`wakes.aero.ground`); no ground unless ``point`` is given."""
+
+    point: tuple | None = key(None, "a point of the ground plane (none: no ground)", "m", kind="vec3")
+    normal: tuple = key((0.0, 0.0, 1.0), "normal of the ground plane, from the ground into the air",
+                        kind="vec3")
+
+    def plane(self):
+        """The ground as a :class:`wakes.aero.ground.GroundPlane`, or None."""
+        from .aero.ground import GroundPlane
+        return None if self.point is None else GroundPlane(np.asarray(self.point), np.asarray(self.normal))
+
+    def after_parse(self, raw: dict, where: str, ctx) -> "GroundSpec":
+        if not np.linalg.norm(self.normal) > 0.0:
+            ctx.fail(f"{where}.normal must be a nonzero vector (from the ground into the air); "
+                     f"got {list(self.normal)}")
+        return self
+
+
+@dataclass(frozen=True, kw_only=True)
 class AirfoilSpec:
     """[bodies.NAME.airfoil]: the section polar, a CSV table or thin-airfoil theory."""
 
@@ -254,6 +275,10 @@ class WingSpec:
         return self
 
     def check(self, case: "Case", where: str, ctx) -> None:
+        ground = case.ground.plane()
+        if ground is not None and not ground.height(np.asarray(self.position, dtype=np.float64)) > 0.0:
+            ctx.fail(f"{where}.position {list(self.position)} is not above the ground plane "
+                     "([ground] point and normal); the wing must be on the side the normal points to")
         if np.linalg.norm(case.freestream.vector()) == 0.0:
             ctx.fail(f"{where}: a wing needs a freestream; [freestream] speed must be positive "
                      "(or velocity nonzero), got zero")
@@ -319,6 +344,10 @@ class RotorSpec:
     revolutions: float = key(10.0, "run length when [time] steps is not given", above=0.0)
     wake_revolutions: float = key(6.0, "wake older than this many revolutions is removed (inf: kept)",
                                   above=0.0, allow_inf=True)
+    wake_fade_revolutions: float = key(2.0, "revolutions before the wake is removed over which its "
+                                       "circulation fades linearly to zero, at most half the kept wake "
+                                       "(0: cut abruptly)",
+                                       minimum=0.0)
     rollup_age: float = key(360.0, "wake age where the blade's resolved sheet rolls up into a tip "
                             "vortex and inboard trailers (inf: never)", "deg", above=0.0,
                             allow_inf=True)
@@ -356,6 +385,17 @@ class RotorSpec:
         return self
 
     def check(self, case: "Case", where: str, ctx) -> None:
+        ground = case.ground.plane()
+        if ground is not None:
+            a = np.asarray(self.axis, dtype=np.float64) / np.linalg.norm(self.axis)
+            beta = math.radians(self.precone)
+            across = math.sqrt(max(0.0, 1.0 - float(a @ ground.normal) ** 2))
+            reach = self.radius * (math.cos(beta) * across + abs(math.sin(beta)))
+            height = float(ground.height(np.asarray(self.hub, dtype=np.float64)))
+            if not height > reach:
+                ctx.fail(f"{where}.hub is {height:g} m above the ground plane ([ground] point and "
+                         f"normal); its blades reach {reach:g} m towards the ground, so the hub must "
+                         f"be more than {reach:g} m above it")
         dt = case.time.dt
         if dt is not None and 6.0 * self.rpm * dt > MAX_AZIMUTH_STEP:
             ctx.fail(f"time.dt = {dt:g} s turns the blades of {where} by {6.0 * self.rpm * dt:.3g} deg "
@@ -399,7 +439,7 @@ class Case:
     ----------
     title : str
         Free text naming the case.
-    fluid, freestream, time, solver, wake, output
+    fluid, freestream, time, solver, wake, output, ground
         The sections of the case file.
     bodies : tuple
         Body specs (e.g. :class:`WingSpec`), each with its ``name``.
@@ -414,6 +454,7 @@ class Case:
     solver: SolverSpec = key(SolverSpec(), kind="table")
     wake: WakeSpec = key(WakeSpec(), kind="table")
     output: OutputSpec = key(OutputSpec(), kind="table")
+    ground: GroundSpec = key(GroundSpec(), kind="table")
     bodies: tuple = field(default=(), metadata=dict(kind="bodies"))
     source: str = field(default="<dict>", metadata=dict(internal=True))
 
@@ -814,7 +855,8 @@ def _dump_toml(data: dict, header: str = "") -> str:
 def case_reference() -> str:
     """Markdown reference of every case key, generated from the schema."""
     sections = [("", Case), ("fluid", FluidSpec), ("freestream", FreestreamSpec), ("time", TimeSpec),
-                ("solver", SolverSpec), ("wake", WakeSpec), ("output", OutputSpec)]
+                ("solver", SolverSpec), ("wake", WakeSpec), ("output", OutputSpec),
+                ("ground", GroundSpec)]
     sections += [(f"bodies.NAME] (type = \"{t}\")", cls) for t, cls in BODY_TYPES.items()]
     sections += [("bodies.NAME.airfoil", AirfoilSpec)]
     out = []

@@ -26,6 +26,7 @@ import numpy as np
 import pandas as pd
 
 from .aero.bodies import BODY_MODELS
+from .aero.ground import with_ground
 from .aero.influence_cache import RigidInfluenceCache
 from .aero.lifting_line import LinearCache, SolverSettings, solve_circulation
 from .aero.loads import strip_loads, trefftz_induced_drag
@@ -249,7 +250,8 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
     v_inf = case.freestream.vector()
     rho, dt, steps = case.fluid.density, case.time.dt, case.time.steps
     method = {"method": case.wake.induction, "tolerance": case.wake.induction_tolerance}
-    cache = RigidInfluenceCache()
+    ground = case.ground.plane()
+    cache = RigidInfluenceCache(ground)
     linear = LinearCache()
 
     t = 0.0
@@ -277,7 +279,7 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
             if control.snapshot_due(step, steps):
                 control.snapshot(step, t, [e for w in wakes for e in w.sources(t)])
             strips, gamma = _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear,
-                                  solver, settings, v_inf, dt, rho, steps, method, watch)
+                                  solver, settings, v_inf, dt, rho, steps, method, watch, ground)
             gamma_prev = gamma
             if progress is not None:
                 report(step + 1, steps, (rows[-1]["wake_segments"], rows[-1]["wake_particles"]))
@@ -327,7 +329,7 @@ def _progress_reporter(progress):
 
 
 def _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear, solver, settings,
-          v_inf, dt, rho, steps, method, watch):
+          v_inf, dt, rho, steps, method, watch, ground=None):
     """One step of :func:`run_case` at time ``t``; appends its loads rows.
 
     Returns the step's strip loads and circulation.
@@ -340,7 +342,7 @@ def _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear, solver
     load_pts = (np.vstack([s.bound_midpoints().reshape(-1, 3) for s in vlm]) if vlm
                 else np.zeros((0, 3)))
     wake_src = [e for w in wakes for e in w.sources(t, at_surfaces=True)]
-    v_wake = induce(wake_src, np.vstack([eval_pts, load_pts]), **method)
+    v_wake = induce(with_ground(wake_src, ground), np.vstack([eval_pts, load_pts]), **method)
     motion_eval = np.vstack([s.velocity_of(s.eval_points()) for s in surfaces])
     onset = v_inf - motion_eval + v_wake[:eval_pts.shape[0]]
     aic, aic_load = cache.get(surfaces, eval_pts, load_pts)
@@ -364,7 +366,7 @@ def _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear, solver
         rows.append(row)
         k += len(ss)
     if step < steps - 1:
-        _advance_wakes(wakes, surfaces, sol.gamma, settings, v_inf, dt, t, method, watch, step)
+        _advance_wakes(wakes, surfaces, sol.gamma, settings, v_inf, dt, t, method, watch, step, ground)
         new_surfaces = [s for b in bodies for s in b.surfaces(t + dt)]
         for w, s, g in zip(wakes, new_surfaces, sol.gamma):
             w.shed(s.te_nodes, g[-1], t + dt)
@@ -437,12 +439,15 @@ def _trefftz(layout, strips, v_inf, rho):
     return drags
 
 
-def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method, watch=None, step=0):
+def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method, watch=None, step=0,
+                   ground=None):
     """Move every wake node and particle one step (free or frozen), stretching particles.
 
     ``method`` holds the keyword arguments ``method`` and ``tolerance`` of
     :func:`wakes.induce`. ``watch`` (:class:`wakes.watchdog.Watchdog`)
-    checks the velocities before anything moves.
+    checks the velocities before anything moves. A ``ground``
+    (:class:`wakes.aero.ground.GroundPlane`) adds the images of every
+    element.
     """
     nodes = np.vstack([w.rows.reshape(-1, 3) for w in wakes])
     parts = [w.positions for w in wakes]
@@ -454,7 +459,7 @@ def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method, watc
         src = [surface_filaments(s, g, core=settings.core, core_radius=settings.core_radius,
                                  te_core_radius=settings.attached_core_radius)
                for s, g in zip(surfaces, gammas)]
-        src += [e for w in wakes for e in w.sources(t)]
+        src = with_ground(src + [e for w in wakes for e in w.sources(t)], ground)
         u_nodes += induce(src, nodes, **method)
         if n_par:
             vel, grad = induce(src, np.vstack(parts), gradient=True, **method)

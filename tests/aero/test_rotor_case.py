@@ -101,3 +101,27 @@ def test_polar_not_covering_the_angles_met_names_station_time_and_angle(tmp_path
     assert re.search(r"covers -2 to 4 deg; an angle of [\d.]+ deg was met", err)
     assert re.search(r"at step \d+ \(t = [\d.e-]+ s\)", err)
     assert not out.exists()
+
+
+@pytest.mark.parametrize("ground, message", [
+    ("point = [0.0, 0.0, 0.0]", r"bodies\.rotor\.hub is 0 m above the ground plane.*more than 0 m"),
+    ("point = [0.0, 0.0, -1.0]\nnormal = [0.0, 0.0, 0.0]", r"ground\.normal must be a nonzero vector"),
+    ("point = [0.0, 0.0, 1.0]", r"hub is -1 m above the ground plane"),
+])
+def test_a_ground_the_blades_would_cut_is_refused(ground, message):
+    with pytest.raises(CaseError, match=message):
+        parsed(ROTOR + "[ground]\n" + ground + "\n")
+
+
+def test_a_tilted_disc_needs_more_height_above_the_ground():
+    """Axis tilted 90 deg: the disc stands on edge and reaches a full radius towards the ground."""
+    text = ROTOR.replace('rpm = 1200.0', 'rpm = 1200.0\naxis = [1.0, 0.0, 0.0]')
+    with pytest.raises(CaseError, match=r"reach 0\.5 m"):
+        parsed(text + "[ground]\npoint = [0.0, 0.0, -0.45]\n")
+    assert parsed(text + "[ground]\npoint = [0.0, 0.0, -0.55]\n").ground.plane() is not None
+
+
+def test_ground_effect_run_writes_its_ground_back():
+    case = parsed(ROTOR + "[ground]\npoint = [0.0, 0.0, -0.6]\n")
+    assert case.to_dict()["ground"] == {"point": [0.0, 0.0, -0.6], "normal": [0.0, 0.0, 1.0]}
+    assert parsed().ground.plane() is None

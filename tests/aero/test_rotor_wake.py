@@ -60,10 +60,10 @@ def test_inboard_trailers_zero_follows_only_the_tip_vortex():
     assert points.shape == (1, 3) and strengths[0] == pytest.approx(loading().max())
 
 
-def wake_after(steps, rollup=3, trailers=2, max_age=np.inf, dt=0.01, axial=True):
+def wake_after(steps, rollup=3, trailers=2, max_age=np.inf, dt=0.01, axial=True, fade_age=0.0):
     settings = WakeSettings(core="vatistas2", core_radius=0.02, max_age=max_age)
     w = RolledUpWake(row(), 0.0, settings, rollup_steps=rollup, inboard_trailers=trailers,
-                     tip_last=True, hub=np.zeros(3), axis=AXIS, axial_flow=axial)
+                     tip_last=True, hub=np.zeros(3), axis=AXIS, axial_flow=axial, fade_age=fade_age)
     for k in range(steps):
         w.move(np.tile([0.0, 0.0, -1.0], (w.node_count, 1)), dt)
         w.shed(row(angle=0.1 * (k + 1)), loading(), (k + 1) * dt)
@@ -86,6 +86,18 @@ def test_sheet_rolls_up_after_the_rollup_rings():
 def test_old_far_wake_is_removed():
     w = wake_after(12, max_age=0.065)
     assert np.all(0.12 - w.far_time <= 0.065 + 1e-12)
+
+
+def test_old_far_wake_fades_linearly_before_it_is_removed():
+    """Segments younger than max_age - fade_age keep their circulation; older ones carry
+    (max_age - age)/fade_age of it; the node arrays are the abrupt cut's."""
+    cut, faded = wake_after(12, max_age=0.065), wake_after(12, max_age=0.065, fade_age=0.03)
+    assert np.array_equal(cut.far, faded.far)
+    c_cut, c_fade = cut.sources(0.12)[1].circulation, faded.sources(0.12)[1].circulation
+    age = 0.12 - 0.5 * (cut.far_time[:-1] + cut.far_time[1:])
+    factor = np.repeat(np.clip((0.065 - age) / 0.03, 0.0, 1.0), 3)[cut.far_gamma.ravel() != 0.0]
+    assert np.allclose(c_fade, c_cut * factor)
+    assert factor.min() < 0.5 and factor.max() == 1.0
 
 
 def test_uniform_axial_motion_translates_every_node():

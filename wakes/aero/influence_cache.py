@@ -13,12 +13,18 @@ The rigid motion is found by the Kabsch least-squares fit (Kabsch 1976,
 Acta Cryst. A32) and accepted when it reproduces every point to within
 ``RIGID_TOLERANCE`` of the block's size; the cached block is kept in its
 original frame, so roundoff does not build up.
+
+With a ground plane (:mod:`wakes.aero.ground`) every block also holds the
+influence of the source rings' mirror images, cached the same way: the
+image of a rotor turning about an axis normal to the ground turns rigidly
+with it.
 """
 
 from __future__ import annotations
 
 import numpy as np
 
+from .ground import GroundPlane
 from .vortex_lattice import influence_matrix
 
 RIGID_TOLERANCE = 1e-10  # largest misfit of a rigid motion, relative to the block's extent
@@ -54,11 +60,17 @@ class RigidInfluenceCache:
     Call :meth:`get` every step; it returns the same array objects as the
     step before when nothing moved (so factorizations keyed on them stay
     valid).
+
+    Parameters
+    ----------
+    ground : GroundPlane or None
+        A ground whose images of the rings add to every block, or none.
     """
 
-    def __init__(self):
+    def __init__(self, ground: GroundPlane | None = None):
         self._blocks = {}
         self._last = None
+        self.ground = ground
 
     def get(self, surfaces, eval_points: np.ndarray, load_points: np.ndarray):
         """Influence of every ring at the evaluation and load points.
@@ -92,6 +104,9 @@ class RigidInfluenceCache:
             rows = []
             for q, tgt in zip(surfaces, targets):
                 block, moved = self._block(s, q, tgt)
+                if self.ground is not None:
+                    image, image_moved = self._block(_MirroredRings(s, self.ground), q, tgt)
+                    block, moved = block + image, moved or image_moved
                 rows.append(block)
                 changed |= moved
             columns.append(rows)
@@ -141,5 +156,17 @@ class RigidInfluenceCache:
                 self._blocks[key] = (ref_points, ref_block, points, block)
                 return block, True
         block = influence_matrix([source], targets)
+        if isinstance(source, _MirroredRings):
+            block = -block
         self._blocks[key] = (points, block, points, block)
         return block, True
+
+
+class _MirroredRings:
+    """The mirror images of a surface's rings, for :func:`influence_matrix`; the image of a
+    ring has the opposite circulation about its mirrored corners, which the caller applies."""
+
+    def __init__(self, surface, ground: GroundPlane):
+        self.name = f"{surface.name} (ground image)"
+        self.n_chord, self.n_span = surface.n_chord, surface.n_span
+        self.corners = ground.reflect_points(surface.corners)

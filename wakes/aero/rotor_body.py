@@ -74,6 +74,9 @@ class RotorBody:
     def new_wake(self, surface, time: float, settings):
         """The wake of one blade from ``time`` [s], cut ``wake_revolutions`` revolutions old.
 
+        Its circulation fades to zero over the last ``wake_fade_revolutions``
+        revolutions (at most half the kept wake) before the cut.
+
         A filament wake is a resolved sheet for ``rollup_age`` degrees, then
         a tip vortex and inboard trailers (:class:`RolledUpWake`); a
         particle wake is the wing's full sheet turned into particles
@@ -95,7 +98,8 @@ class RotorBody:
                             rollup_steps=max(1, int(round(min(rollup, 1e9)))),
                             inboard_trailers=self.spec.inboard_trailers, tip_last=g.spin > 0,
                             hub=self.hub, axis=self.axis, axial_flow=self.axial_flow,
-                            startup=startup, symmetry=self._symmetry)
+                            startup=startup, symmetry=self._symmetry,
+                            fade_age=min(self.spec.wake_fade_revolutions * g.period, 0.5 * settings.max_age))
         self._wakes.append(wake)
         return wake
 
