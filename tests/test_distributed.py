@@ -42,3 +42,40 @@ def test_gradient_and_mixed_sources(client):
     assert np.linalg.norm(g2 - g) <= 1e-13 * np.linalg.norm(g)
     with pytest.raises(wakes.WakesError, match="chunk_size"):
         induce_on_cluster(p, x, client, chunk_size=0)
+
+
+def _small_wing(**cluster):
+    return {"title": "cluster wing", "freestream": {"speed": 10.0, "angle_of_attack": 5.0},
+            "time": {"steps": 6}, "wake": {"model": "particles", "near_wake_steps": 2},
+            "cluster": cluster,
+            "bodies": {"wing": {"type": "wing", "span": 4.0, "chord": 0.5, "spanwise_panels": 8}}}
+
+
+def test_run_sends_the_wake_to_the_workers_once_it_is_large(client):
+    """A case run whose wake induction goes to two workers from the third step
+    equals the one-process run to round-off, loads and final wake alike."""
+    from wakes.case import parse_case
+    from wakes.simulate import run_case
+
+    serial = run_case(parse_case(_small_wing()))
+    case = parse_case(_small_wing(min_wake=20))
+    assert serial.loads["wake_particles"].iloc[2] + serial.loads["wake_segments"].iloc[2] >= 20
+    calls = []
+    real_submit = client.submit
+    client.submit = lambda *a, **k: calls.append(1) or real_submit(*a, **k)
+    try:
+        spread = run_case(case, client=client)
+    finally:
+        del client.submit
+    assert calls, "no induction reached the workers"
+    for col in ("CL", "CDi"):
+        np.testing.assert_allclose(spread.loads[col], serial.loads[col], rtol=1e-12, atol=1e-15)
+    alone = run_case(case, client=client, use_cluster=False)
+    assert alone.loads["CL"].tolist() == serial.loads["CL"].tolist()
+
+
+def test_cluster_scheduler_must_be_an_address():
+    from wakes.case import parse_case
+
+    with pytest.raises(wakes.WakesError, match=r"cluster.scheduler must be an address"):
+        parse_case(_small_wing(scheduler="localhost"))

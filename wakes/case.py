@@ -196,6 +196,23 @@ class GroundSpec:
 
 
 @dataclass(frozen=True, kw_only=True)
+class ClusterSpec:
+    """[cluster]: Dask workers that share the wake's induction once the wake is large
+    (:class:`wakes.distributed.WakeCluster`); results equal a one-process run to round-off."""
+
+    scheduler: str = key("", "address of a running Dask scheduler, tcp://HOST:PORT (empty: this "
+                         "process only)", kind="str")
+    min_wake: int = key(50_000, "wake elements (segments + particles) from which the wake's "
+                        "induction goes to the workers", kind="int", minimum=1)
+
+    def after_parse(self, raw: dict, where: str, ctx) -> "ClusterSpec":
+        if self.scheduler and "://" not in self.scheduler:
+            ctx.fail(f"{where}.scheduler must be an address such as 'tcp://10.0.0.5:8786' "
+                     f"(or empty); got {self.scheduler!r}")
+        return self
+
+
+@dataclass(frozen=True, kw_only=True)
 class AirfoilSpec:
     """[bodies.NAME.airfoil]: the section polar, a CSV table or thin-airfoil theory."""
 
@@ -439,7 +456,7 @@ class Case:
     ----------
     title : str
         Free text naming the case.
-    fluid, freestream, time, solver, wake, output, ground
+    fluid, freestream, time, solver, wake, output, ground, cluster
         The sections of the case file.
     bodies : tuple
         Body specs (e.g. :class:`WingSpec`), each with its ``name``.
@@ -455,6 +472,7 @@ class Case:
     wake: WakeSpec = key(WakeSpec(), kind="table")
     output: OutputSpec = key(OutputSpec(), kind="table")
     ground: GroundSpec = key(GroundSpec(), kind="table")
+    cluster: ClusterSpec = key(ClusterSpec(), kind="table")
     bodies: tuple = field(default=(), metadata=dict(kind="bodies"))
     source: str = field(default="<dict>", metadata=dict(internal=True))
 
@@ -854,9 +872,8 @@ def _dump_toml(data: dict, header: str = "") -> str:
 
 def case_reference() -> str:
     """Markdown reference of every case key, generated from the schema."""
-    sections = [("", Case), ("fluid", FluidSpec), ("freestream", FreestreamSpec), ("time", TimeSpec),
-                ("solver", SolverSpec), ("wake", WakeSpec), ("output", OutputSpec),
-                ("ground", GroundSpec)]
+    sections = [("", Case)] + [(f.name, type(f.default)) for f in _public_fields(Case)
+                               if f.metadata.get("kind") == "table"]
     sections += [(f"bodies.NAME] (type = \"{t}\")", cls) for t, cls in BODY_TYPES.items()]
     sections += [("bodies.NAME.airfoil", AirfoilSpec)]
     out = []

@@ -62,3 +62,77 @@ def induce_on_cluster(sources, targets, client, *, chunk_size: int | None = None
     if options.get("gradient", False):
         return (np.concatenate([p[0] for p in parts]), np.concatenate([p[1] for p in parts]))
     return np.concatenate(parts)
+
+
+SCHEDULER_TIMEOUT_S = 10.0   # how long to wait for a scheduler to answer [s]
+
+
+def connect(address: str):
+    """A client of the Dask scheduler at ``address``, or a clear error within the timeout.
+
+    Parameters
+    ----------
+    address : str
+        ``tcp://HOST:PORT`` of a running scheduler (``dask scheduler``).
+
+    Raises
+    ------
+    wakes.errors.WakesError
+        If no scheduler answers within ``SCHEDULER_TIMEOUT_S``.
+    """
+    import distributed
+
+    from .errors import WakesError
+
+    try:
+        return distributed.Client(address, timeout=SCHEDULER_TIMEOUT_S)
+    except (OSError, TimeoutError) as exc:
+        raise WakesError(f"scheduler {address}: no Dask scheduler answered within "
+                         f"{SCHEDULER_TIMEOUT_S:.0f} s ({type(exc).__name__}); start one with "
+                         "`dask scheduler` and workers with `dask worker ADDRESS`") from None
+
+
+class WakeCluster:
+    """Sends a run's wake induction to Dask workers once the wake is large.
+
+    Parameters
+    ----------
+    client : dask.distributed.Client
+        A connected client; its workers need ``wakes`` installed.
+    min_wake : int
+        Wake elements (segments + particles) from which :meth:`options`
+        adds the client; smaller wakes are cheaper in this process.
+    owned : bool
+        Whether :meth:`close` closes the client (it was opened here).
+
+    Examples
+    --------
+    >>> cluster = WakeCluster.open(case.cluster)              # doctest: +SKIP
+    >>> induce(wake, points, **cluster.options(method, 80_000))  # doctest: +SKIP
+    """
+
+    def __init__(self, client, min_wake: int, owned: bool = False):
+        self.client = client
+        self.min_wake = int(min_wake)
+        self.owned = owned
+
+    @classmethod
+    def open(cls, spec, client=None) -> "WakeCluster | None":
+        """The cluster a case asks for: ``client`` if given, else the
+        ``[cluster] scheduler`` of ``spec`` (a :class:`wakes.case.ClusterSpec`),
+        else None (this process only)."""
+        if client is not None:
+            return cls(client, spec.min_wake)
+        if spec.scheduler:
+            return cls(connect(spec.scheduler), spec.min_wake, owned=True)
+        return None
+
+    def options(self, method: dict, wake_elements: int) -> dict:
+        """``method`` (keyword arguments of :func:`wakes.induce`) with the
+        client added when the wake holds at least ``min_wake`` elements."""
+        return {**method, "client": self.client} if wake_elements >= self.min_wake else method
+
+    def close(self) -> None:
+        """Close the client if it was opened here."""
+        if self.owned:
+            self.client.close()

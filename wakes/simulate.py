@@ -33,6 +33,7 @@ from .aero.loads import strip_loads, trefftz_induced_drag
 from .aero.vortex_lattice import surface_filaments
 from .aero.wake import WakeSettings
 from .case import Case
+from .distributed import WakeCluster
 from .dynamics import stretching_rate
 from .elements import Particles
 from .errors import NumericalError, WakesError
@@ -197,7 +198,7 @@ def wake_settings(case: Case) -> WakeSettings:
 
 
 def run_case(case: Case, *, progress=None, control: RunControl | None = None,
-             resume: LoopState | None = None) -> Run:
+             resume: LoopState | None = None, client=None, use_cluster: bool = True) -> Run:
     """Run a resolved case.
 
     Parameters
@@ -214,6 +215,13 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
         default: no checkpoints, a failed check raises.
     resume : wakes.io.checkpoint.LoopState, optional
         Go on from this state (read from a checkpoint) instead of step 0.
+    client : dask.distributed.Client, optional
+        Workers that share the wake's induction once the wake holds
+        ``[cluster] min_wake`` elements; by default the case's ``[cluster]
+        scheduler``, if any.
+    use_cluster : bool
+        False runs in this process only, whatever the case says (a sweep's
+        points, which already run on the workers).
 
     Returns
     -------
@@ -250,6 +258,7 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
     v_inf = case.freestream.vector()
     rho, dt, steps = case.fluid.density, case.time.dt, case.time.steps
     method = {"method": case.wake.induction, "tolerance": case.wake.induction_tolerance}
+    cluster = WakeCluster.open(case.cluster, client) if use_cluster else None
     ground = case.ground.plane()
     cache = RigidInfluenceCache(ground)
     linear = LinearCache()
@@ -278,8 +287,9 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
             watch.check_memory(step, t, wakes)
             if control.snapshot_due(step, steps):
                 control.snapshot(step, t, [e for w in wakes for e in w.sources(t)])
+            step_method = method if cluster is None else cluster.options(method, _wake_size(rows))
             strips, gamma = _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear,
-                                  solver, settings, v_inf, dt, rho, steps, method, watch, ground)
+                                  solver, settings, v_inf, dt, rho, steps, step_method, watch, ground)
             gamma_prev = gamma
             if progress is not None:
                 report(step + 1, steps, (rows[-1]["wake_segments"], rows[-1]["wake_particles"]))
@@ -303,6 +313,9 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
         good.restore(wakes)
         rows, strips, wake_time = good.done_rows(), done_strips, good.time
         t = rows[-1]["time_s"] if rows else good.time
+    finally:
+        if cluster is not None:
+            cluster.close()
     steps_done = len(rows) // max(len(bodies), 1)
     layout = [(b, b.surfaces(t)) for b in bodies]
     surfaces = [s for _, ss in layout for s in ss]
@@ -313,6 +326,11 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
     run.wake_time_s = t if wake_time is None else wake_time
     run.resume_state = good if status != "finished" else None
     return run
+
+
+def _wake_size(rows) -> int:
+    """Wake elements (segments + particles) after the last step done."""
+    return int(rows[-1]["wake_segments"] + rows[-1]["wake_particles"]) if rows else 0
 
 
 def _progress_reporter(progress):

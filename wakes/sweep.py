@@ -35,11 +35,11 @@ import numpy as np
 import pandas as pd
 
 from .case import Case, parse_case, read_toml
+from .distributed import connect
 from .errors import CaseError, InputError, WakesError
 from .io import atomic
 
 POINT_RECORD = "point.json"
-SCHEDULER_TIMEOUT_S = 10.0
 # Coefficients plotted against the first varied key, in this order, when present.
 PLOTTED = ("CT", "CP", "FM", "efficiency", "CQ", "CL", "CDi", "span_efficiency")
 
@@ -235,7 +235,7 @@ def run_point(data: dict, source: str, base_dir: str, folder: str, expected_hash
     case = parse_case(data, source=source, base_dir=base_dir)
     if case_hash(case) != expected_hash:   # a worker with another wakes version
         raise WakesError(f"point resolved differently on the worker ({folder})")
-    run = run_case(case)
+    run = run_case(case, use_cluster=False)   # the sweep's workers are the cluster
     run.write(folder)
     atomic.write_text(Path(folder) / POINT_RECORD,
                       json.dumps({"case_sha256": expected_hash}, indent=2) + "\n")
@@ -282,12 +282,7 @@ def _connect(client, scheduler, workers):
     if client is not None:
         return client, None
     if scheduler:
-        try:
-            return distributed.Client(scheduler, timeout=SCHEDULER_TIMEOUT_S), None
-        except (OSError, TimeoutError) as exc:
-            raise WakesError(f"--scheduler {scheduler}: no Dask scheduler answered within "
-                             f"{SCHEDULER_TIMEOUT_S:.0f} s ({type(exc).__name__}); start one "
-                             "with `dask scheduler` and `dask worker ADDRESS`") from None
+        return connect(scheduler), None
     n = workers or os.cpu_count() or 1
     cluster = distributed.LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
                                        dashboard_address=None)
