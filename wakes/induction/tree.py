@@ -18,6 +18,13 @@ expansions as in Lindsay & Krasny 2001, J. Comput. Phys. 172):
    shifted down the tree and evaluated at the targets as velocity (the
    curl) and gradient. Near pairs are summed with the exact pair laws.
 
+Particle pairs are expanded as 1/|r| (harmonic, reduced tables). A
+uniform-radius algebraic kernel adds its excess over 1/|r| (which decays
+like sigma^4/r^5, Winckelmans--Leonard, or sigma^2/r^3, Rosenhead--Moore)
+as a second, low-order expansion on the far pairs where it matters, the
+order chosen per pair from its size there; other kernels keep pairs within
+their reach in the near field.
+
 The order p and the opening parameter theta come from the tolerance
 (:mod:`.tree_params`).
 """
@@ -114,11 +121,11 @@ def _far_and_near(target: _Tree, source: _Tree, theta, min_pairs, kind, reach, a
 class _Locals:
     """Local expansions of the target cells, kept in two parts.
 
-    Far fields of harmonic potentials (1/|r|: singular particles, any
-    kernel whose far field is taken as singular, segments) are summed with
-    the reduced tables on the coefficients with k_z <= 1 and completed by
-    Laplace's equation once at the end; those of regularized potentials
-    (uniform-radius algebraic kernels) are summed in full, separately.
+    Far fields of harmonic potentials (1/|r|: every particle pair's singular
+    part, segments) are summed with the reduced tables on the coefficients
+    with k_z <= 1 and completed by Laplace's equation once at the end; the
+    excess of a regularized potential over 1/|r| (uniform-radius algebraic
+    kernels, near their cores) is summed in full at a low order, separately.
     """
 
     def __init__(self, n_cells: int, tables: dict):
@@ -127,30 +134,40 @@ class _Locals:
         self.full = None
         self.has_far = np.zeros(n_cells, np.bool_)  # cells with far pairs of their own
 
-    def add_far(self, target: _Tree, source: _Tree, far, moments, delta2, wl_coef) -> None:
-        """Add far pairs (two arrays, target and source cells) of one source
-        set with moments (Cs, 3, T), for the potential of ``m2l``."""
+    def add_far(self, target: _Tree, source: _Tree, far, moments) -> None:
+        """Add the harmonic far field of far pairs (two arrays, target and
+        source cells) of one source set with moments (Cs, 3, T)."""
+        tb = self.tables
+        reduced = tree_expansion.reduce_moments(moments, tb["reduce_ptr"], tb["reduce_n"],
+                                                tb["reduce_c"])
+        self._m2l(target, source, far, reduced, 0.0, 0.0, False, tb, tb["harmonic"],
+                  self.harmonic)
+
+    def add_excess(self, target: _Tree, source: _Tree, far, orders, moments, delta2,
+                   wl_coef) -> None:
+        """Add the potential's excess over 1/|r| for far pairs, each at its
+        order in ``orders`` (-1: negligible, skipped)."""
+        if self.full is None:
+            self.full = np.zeros_like(self.harmonic)
+        for q in np.unique(orders[orders >= 0]):
+            tb = tree_expansion.expansion_tables(int(q))
+            pick = orders == q
+            mom = np.ascontiguousarray(moments[:, :, :tb["midx"].shape[0]])
+            self._m2l(target, source, (far[0][pick], far[1][pick]), mom, delta2, wl_coef,
+                      True, tb, tb["full"], self.full)
+
+    def _m2l(self, target, source, far, moments, delta2, wl_coef, excess, tb, m2l_tab,
+             local) -> None:
         ptr, src = tree_traverse.group_by_target(far[0], far[1], target.n_cells)
         t_cells = np.flatnonzero(np.diff(ptr))
         if t_cells.size == 0:
             return
         self.has_far[t_cells] = True
-        tb = self.tables
-        if delta2 == 0.0:
-            m2l_tab = tb["harmonic"]
-            moments = tree_expansion.reduce_moments(moments, tb["reduce_ptr"], tb["reduce_n"],
-                                                    tb["reduce_c"])
-            local = self.harmonic
-        else:
-            m2l_tab = tb["full"]
-            if self.full is None:
-                self.full = np.zeros_like(self.harmonic)
-            local = self.full
         tree_expansion.m2l(t_cells, ptr, src, target.center, source.center, moments, delta2,
-                           wl_coef, tb["deg"], tb["rec1"], tb["rec2"], m2l_tab["rec_list"],
-                           m2l_tab["k_list"], m2l_tab["ptr"], m2l_tab["n_idx"],
-                           m2l_tab["m_idx"], m2l_tab["coef"], 16 * numba.get_num_threads(),
-                           local)
+                           wl_coef, excess, tb["deg"], tb["rec1"], tb["rec2"],
+                           m2l_tab["rec_list"], m2l_tab["k_list"], m2l_tab["ptr"],
+                           m2l_tab["n_idx"], m2l_tab["m_idx"], m2l_tab["coef"],
+                           16 * numba.get_num_threads(), local)
 
     def total(self) -> np.ndarray:
         """The complete local coefficients (C, 3, T)."""
@@ -285,20 +302,18 @@ def _add_particles(s: ParticleSet, targets, target: _Tree, tx, ty, tz, t_leaves,
     exact, delta2, wl_coef = tree_params.kernel_far_potential(s.kernel, s.radii)
     reach = tree_params.particle_reach(s.kernel, tolerance) * \
         tree_build.cell_max(source.start, source.count, sig)
-    min_pairs = tree_params.min_far_pairs(tables["p"], delta2 != 0.0, s.kernel, False)
+    min_pairs = tree_params.min_far_pairs(tables["p"], s.kernel, False)
     far, near = _far_and_near(target, source, theta, min_pairs, MAC_ONLY if exact else GAP,
                               reach, np.zeros((1, 3)), np.ones(1))
-    if delta2 == 0.0:
-        local.add_far(target, source, far, moments, 0.0, 0.0)
-    else:
-        # the kernel's own expansion where it differs from the singular one;
-        # beyond the reach the cheaper harmonic expansion of 1/|r| is as good
-        beyond = tree_traverse.gap_at_least(far[0], far[1], target.center, target.radius,
-                                            source.center, source.radius, reach)
-        local.add_far(target, source, (far[0][beyond], far[1][beyond]), moments, 0.0, 0.0)
-        within = ~beyond
-        local.add_far(target, source, (far[0][within], far[1][within]), moments, delta2,
-                      wl_coef)
+    local.add_far(target, source, far, moments)
+    if delta2 != 0.0:
+        # the kernel's departure from 1/|r|, where it matters, at the order
+        # its size and the pair's separation call for
+        orders = tree_params.excess_orders(
+            s.kernel, tolerance, float(np.sqrt(delta2)), tables["p"],
+            *tree_traverse.pair_separation(far[0], far[1], target.center, target.radius,
+                                           source.center, source.radius))
+        local.add_excess(target, source, far, orders, moments, delta2, wl_coef)
     tree_near.particles_near(s.kernel, gradient, t_leaves, target.start, target.count,
                              near[0], near[1], source.start, source.count, tx, ty, tz,
                              sx, sy, sz, ax, ay, az, sig * sig, vel, grad)
@@ -320,9 +335,9 @@ def _add_segments(s: SegmentSet, target: _Tree, tx, ty, tz, t_leaves, tables, th
                        pbz, gam, 0.5 * gx, 0.5 * gw)
     reach = tree_params.core_reach(s.core, tolerance) * \
         tree_build.cell_max(source.start, source.count, rc)
-    min_pairs = tree_params.min_far_pairs(tables["p"], False, s.core, True)
+    min_pairs = tree_params.min_far_pairs(tables["p"], s.core, True)
     far, near = _far_and_near(target, source, theta, min_pairs, TUBE, reach, axis, cos_half)
-    local.add_far(target, source, far, moments, 0.0, 0.0)
+    local.add_far(target, source, far, moments)
     tree_near.segments_near(s.core, gradient, t_leaves, target.start, target.count,
                             near[0], near[1], source.start, source.count, tx, ty, tz,
                             pax, pay, paz, pbx, pby, pbz, gam, rc * rc, vel, grad)

@@ -392,7 +392,8 @@ def _taylor_coefficients(rx, ry, rz, inv_s, n_src, nu, deg, rec1, rec2, rec_list
 
 @njit(parallel=True, cache=True, fastmath=_FASTMATH)
 def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
-        deg, rec1, rec2, rec_list, k_list, kptr, n_idx, m_idx, coef, n_blocks, local):
+        excess, deg, rec1, rec2, rec_list, k_list, kptr, n_idx, m_idx, coef, n_blocks,
+        local):
     """Add the far source cells' potential to each target cell's local expansion.
 
     Parameters
@@ -410,6 +411,10 @@ def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
         Kernel potential G = s^(-1/2) + wl_coef s^(-3/2), s = |r|^2 + delta2
         (0, 0 singular; sigma^2, 0 Rosenhead--Moore; sigma^2, sigma^2/2
         Winckelmans--Leonard).
+    excess : bool
+        Expand G - 1/|r| instead of G: the kernel's departure from the
+        singular potential, added to a harmonic expansion of 1/|r| of the
+        same pairs. It is small far from the cores, so a low order serves.
     deg, rec1, rec2
         Multi-index tables of :func:`expansion_tables`.
     rec_list, k_list, kptr, n_idx, m_idx, coef
@@ -434,6 +439,7 @@ def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
         ry = np.empty(M2L_CHUNK)
         rz = np.empty(M2L_CHUNK)
         inv_s = np.empty(M2L_CHUNK)
+        inv_r2 = np.empty(M2L_CHUNK)
         acc = np.empty((3, nk))
         for ti in range(blk * n_t // n_blocks, (blk + 1) * n_t // n_blocks):
             t = t_cells[ti]
@@ -451,7 +457,9 @@ def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
                     rx[s] = t_center[t, 0] - s_center[src, 0]
                     ry[s] = t_center[t, 1] - s_center[src, 1]
                     rz[s] = t_center[t, 2] - s_center[src, 2]
-                    inv_s[s] = 1.0 / (rx[s] * rx[s] + ry[s] * ry[s] + rz[s] * rz[s] + delta2)
+                    r2 = rx[s] * rx[s] + ry[s] * ry[s] + rz[s] * rz[s]
+                    inv_s[s] = 1.0 / (r2 + delta2)
+                    inv_r2[s] = 1.0 / r2
                     a[0, s] = np.sqrt(inv_s[s])
                     a[nt, s] = 0.0
                     if wl:
@@ -471,6 +479,18 @@ def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
                             a[m, s] += b[m, s]
                     for s in range(ns):
                         a[0, s] += b[0, s]
+                if excess:
+                    for s in range(ns):
+                        b[0, s] = np.sqrt(inv_r2[s])
+                        b[nt, s] = 0.0
+                    _taylor_coefficients(rx, ry, rz, inv_r2, ns, 0.5, deg, rec1, rec2, rec_list,
+                                         b)
+                    for r in range(rec_list.shape[0]):
+                        m = rec_list[r]
+                        for s in range(ns):
+                            a[m, s] -= b[m, s]
+                    for s in range(ns):
+                        a[0, s] -= b[0, s]
                 for kk in range(nk):
                     s0 = 0.0
                     s1 = 0.0

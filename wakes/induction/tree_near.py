@@ -1,8 +1,8 @@
 """Near field of the treecode: exact pair laws between neighbouring leaves.
 
-For each target leaf, the sources of all its near leaves are gathered into
-contiguous buffers and summed by the same blocked pair loops that the
-direct drivers use (:mod:`.direct`, inlining the pair laws of
+For each target leaf, the sources of its near leaves are gathered into
+contiguous buffers, one cache-sized block (``direct.SOURCE_BLOCK``) at a
+time, and summed by the same blocked pair loops that the direct drivers use (:mod:`.direct`, inlining the pair laws of
 :mod:`.pairs`), so the tree's near field and the direct sum are one code.
 Drivers are compiled per (kernel or core, gradient) pair by a closure
 factory, like the direct ones: the kernel code is a closure constant and
@@ -12,7 +12,7 @@ every branch on it folds away.
 import numpy as np
 from numba import njit, prange
 
-from .direct import _particle_block, _segment_block
+from .direct import SOURCE_BLOCK, _particle_block, _segment_block
 
 _FASTMATH = {"reassoc", "contract"}
 
@@ -23,18 +23,16 @@ def _make_particle_near(kernel, gradient):
                tx, ty, tz, sx, sy, sz, ax, ay, az, s2, vel, grad):
         for li in prange(t_leaves.shape[0]):
             t = t_leaves[li]
-            n = 0
-            for e in range(near_ptr[t], near_ptr[t + 1]):
-                n += s_count[near_src[e]]
-            if n == 0:
-                continue
-            gx = np.empty(n)
-            gy = np.empty(n)
-            gz = np.empty(n)
-            gax = np.empty(n)
-            gay = np.empty(n)
-            gaz = np.empty(n)
-            gs2 = np.empty(n)
+            i0 = t_start[t]
+            i1 = i0 + t_count[t]
+            # one cache-sized block of gathered sources at a time
+            gx = np.empty(SOURCE_BLOCK)
+            gy = np.empty(SOURCE_BLOCK)
+            gz = np.empty(SOURCE_BLOCK)
+            gax = np.empty(SOURCE_BLOCK)
+            gay = np.empty(SOURCE_BLOCK)
+            gaz = np.empty(SOURCE_BLOCK)
+            gs2 = np.empty(SOURCE_BLOCK)
             k = 0
             for e in range(near_ptr[t], near_ptr[t + 1]):
                 src = near_src[e]
@@ -47,8 +45,13 @@ def _make_particle_near(kernel, gradient):
                     gaz[k] = az[j]
                     gs2[k] = s2[j]
                     k += 1
-            _particle_block(tx, ty, tz, gx, gy, gz, gax, gay, gaz, gs2, kernel, gradient,
-                            t_start[t], t_start[t] + t_count[t], vel, grad)
+                    if k == SOURCE_BLOCK:
+                        _particle_block(tx, ty, tz, gx, gy, gz, gax, gay, gaz, gs2, kernel,
+                                        gradient, i0, i1, vel, grad)
+                        k = 0
+            if k > 0:
+                _particle_block(tx, ty, tz, gx[:k], gy[:k], gz[:k], gax[:k], gay[:k], gaz[:k],
+                                gs2[:k], kernel, gradient, i0, i1, vel, grad)
 
     return driver
 

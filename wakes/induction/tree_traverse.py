@@ -151,18 +151,22 @@ def dual_traverse(t_center, t_radius, t_count, t_first, t_nchild, s_center, s_ra
 
 
 @njit(cache=True)
-def gap_at_least(pair_t, pair_s, t_center, t_radius, s_center, s_radius, reach):
-    """Mask of pairs whose closest points are at least reach[s] apart
-    (centre distance minus both radii)."""
-    out = np.empty(pair_t.shape[0], np.bool_)
-    for i in range(pair_t.shape[0]):
+def pair_separation(pair_t, pair_s, t_center, t_radius, s_center, s_radius):
+    """Gap (centre distance minus both radii, the least distance between
+    their contents) [m] and opening ratio (b_t + b_s)/D of cell pairs."""
+    n = pair_t.shape[0]
+    gap = np.empty(n)
+    ratio = np.empty(n)
+    for i in range(n):
         t = pair_t[i]
         s = pair_s[i]
         d = math.sqrt((t_center[t, 0] - s_center[s, 0]) ** 2
                       + (t_center[t, 1] - s_center[s, 1]) ** 2
                       + (t_center[t, 2] - s_center[s, 2]) ** 2)
-        out[i] = d - t_radius[t] - s_radius[s] >= reach[s]
-    return out
+        b = t_radius[t] + s_radius[s]
+        gap[i] = d - b
+        ratio[i] = b / d
+    return gap, ratio
 
 
 @njit(cache=True)
