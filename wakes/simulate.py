@@ -92,7 +92,10 @@ class Run:
         Why the run stopped early ("" when finished): step, time, element,
         likely cause and remedy.
     resume_state : wakes.io.checkpoint.LoopState or None
-        The last good state to go on from when the run stopped early.
+        The last good state to go on from when the run stopped early: for an
+        unstable run the start of the step before the failing one (the
+        failing step's starting state already came from a bad move), else
+        the start of the step that did not finish.
     stop_signal : int or None
         The signal that stopped an interrupted run (set by
         :func:`wakes.watchdog.run_guarded`).
@@ -279,11 +282,14 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
         origin, first = resume.origin, resume.step
         gamma, gamma_prev, rows = resume.gamma, resume.gamma_prev, list(resume.done_rows())
     status, message, good, wake_time = "finished", "", None, None
+    start = start_strips = previous = previous_strips = None
     try:
         for step in range(first, steps):
             t = origin[1] + (step - origin[0]) * dt
-            good, done_strips = LoopState.capture(step, t, origin, wakes, gamma, gamma_prev, rows,
-                                                  cache), strips
+            previous, previous_strips = start, start_strips
+            start, start_strips = LoopState.capture(step, t, origin, wakes, gamma, gamma_prev,
+                                                    rows, cache), strips
+            good, done_strips = start, start_strips
             watch.check_memory(step, t, wakes)
             if control.snapshot_due(step, steps):
                 control.snapshot(step, t, [e for w in wakes for e in w.sources(t)])
@@ -310,6 +316,12 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
         if not control.keep_partial or good is None or (status == "failed" and not good.n_rows):
             raise  # nothing done worth keeping
         message = str(exc)
+        if status == "unstable" and previous is not None and good is start:
+            # The failing step's numbers came from its starting state, the product of the
+            # previous step's move: go back to the start of that step, whose checks passed.
+            good, done_strips = previous, previous_strips
+            message += (f"; the last good state is the start of step {good.step} "
+                        f"(t = {good.time:.6g} s)")
         good.restore(wakes)
         rows, strips, wake_time = good.done_rows(), done_strips, good.time
         t = rows[-1]["time_s"] if rows else good.time
