@@ -5,6 +5,9 @@ Caradonna & Tung 1981, NASA TM-81232), about a minute on 2 cores; the convergenc
 ground-effect, propeller and turbine checks run their own cases, coarsened where stated.
 """
 
+import os
+import pickle
+import time
 from pathlib import Path
 
 import numpy as np
@@ -18,9 +21,46 @@ CASES = Path(__file__).resolve().parents[2] / "cases" / "validation"
 MEASURED_CT = 0.00459   # Caradonna & Tung 1981, NASA TM-81232, 8 deg (secondary transcriptions)
 
 
+class _HoverRun:
+    """What the hover checks read of a run: summary, loads and extra tables."""
+
+    def __init__(self, run):
+        self.summary, self.loads, self.tables = run.summary, run.loads, run.tables
+
+
+def _once_per_session(path: Path, make):
+    """``make()``, computed by one test process and read back by the others (pytest-xdist
+    workers share the parent of their temporary folders); a lock file taken with O_EXCL
+    makes the others wait instead of running the same case again."""
+    lock = path.with_suffix(".lock")
+    deadline = time.monotonic() + 1800.0
+    while True:
+        try:
+            fd = os.open(lock, os.O_CREAT | os.O_EXCL)
+            break
+        except FileExistsError:
+            if time.monotonic() > deadline:  # a worker died holding it: compute here
+                return make()
+            time.sleep(0.5)
+    try:
+        if path.is_file():
+            return pickle.loads(path.read_bytes())
+        value = make()
+        path.write_bytes(pickle.dumps(value))
+        return value
+    finally:
+        os.close(fd)
+        os.unlink(lock)
+
+
 @pytest.fixture(scope="module")
-def hover():
-    return run_case(load_case(CASES / "hover-8deg.toml"))
+def hover(request, tmp_path_factory):
+    def make():
+        return _HoverRun(run_case(load_case(CASES / "hover-8deg.toml")))
+
+    if not hasattr(request.config, "workerinput"):  # one process: nothing to share
+        return make()
+    return _once_per_session(tmp_path_factory.getbasetemp().parent / "hover-8deg-run.pickle", make)
 
 
 def _rotor(run):
