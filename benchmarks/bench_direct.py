@@ -185,10 +185,21 @@ METHOD = """Method (wakes/induction/direct.py, pairs.py, gaussian.py): sources i
 prange over target blocks; the inner loop runs over a contiguous source range
 with an unsigned index, so LLVM emits packed loads and arithmetic (256-bit,
 4 doubles, on AVX2); fastmath reassoc+contract only, error_model numpy. One
-square root and one division per pair, x^-1 taken as x^-1.5 * x^0.5. The
-float32 reciprocal-square-root estimate with a float64 Newton step ran at
-0.73x the exact square root and division on this CPU, so it is not used:
-every kernel is exact to round-off. Gaussian kernel: e^-x by Cody-Waite
+square root and one division per pair, x^-1 taken as x^-1.5 * x^0.5. With
+the gradient, the algebraic kernels run three passes over blocks of 256
+sources that stay in L1 (pair factors f, f'; velocity, sum f alpha and
+f' alpha x r; the eight gradient sums): one loop holding all 14 sums spilled
+on the 16 AVX2 registers (1.26-1.29x on the AMD EPYC below). Tried and not
+used on that CPU (Zen 3 class, single-thread CPU time): a float32 reciprocal
+square root estimate (vrsqrtps, emitted by LLVM for a float32 1/sqrt with
+fastmath afn+arcp) refined in float64 to round-off ran at 0.65-0.75x the exact
+square root and division (its dependency chain is longer, and the divider is
+not the limit once the loop is latency-bound); fusing the passes, or the
+square root and division issued in parallel (x^-3 * x^0.5), gained nothing;
+source blocks of 128, 384 and 512 were slower than 256; the three-pass form
+for the Gaussian gradient ran at 0.91x (short runs of sub-blocks), and
+Gaussian sub-blocks of 16 at 0.96-0.99x. Every kernel is exact to round-off.
+Gaussian kernel: e^-x by Cody-Waite
 reduction and a degree-11 polynomial (2 ulp); q(rho) from the positive Kummer
 series for t = rho^2 < 5.06 and from 1 - e^-t/2 S(rho) with a fitted
 polynomial S beyond, branch-free (g within 2.0 ulp, g' within 3.2 ulp of
