@@ -434,7 +434,8 @@ def test_harmonic_reduction_reproduces_full_local_expansion():
         mom = moments if name == "full" else tree_expansion.reduce_moments(
             moments, tab["reduce_ptr"], tab["reduce_n"], tab["reduce_c"])
         local = np.zeros((3, 3, nt))
-        tree_expansion.m2l(np.array([0]), ptr, src, centers, centers, mom, 0.0, 0.0, False,
+        tree_expansion.m2l(np.array([0]), ptr, src, centers, centers, mom, mom.shape[2],
+                           0.0, 0.0, False,
                            tab["deg"], tab["rec1"], tab["rec2"], m2l["rec_list"], m2l["k_list"],
                            m2l["ptr"], m2l["n_idx"], m2l["m_idx"], m2l["coef"], 1, local)
         if name == "harmonic":

@@ -134,14 +134,26 @@ class _Locals:
         self.full = None
         self.has_far = np.zeros(n_cells, np.bool_)  # cells with far pairs of their own
 
-    def add_far(self, target: _Tree, source: _Tree, far, moments) -> None:
+    def add_far(self, target: _Tree, source: _Tree, far, ratio, theta, moments) -> None:
         """Add the harmonic far field of far pairs (two arrays, target and
-        source cells) of one source set with moments (Cs, 3, T)."""
+        source cells, opening ratios ``ratio``) of one source set with
+        moments (Cs, 3, T).
+
+        A pair well inside the opening criterion is expanded to a lower
+        order q (:func:`.tree_params.harmonic_orders`): the tables of order
+        q are prefixes of those of order p (multi-indices are numbered by
+        degree).
+        """
         tb = self.tables
         reduced = tree_expansion.reduce_moments(moments, tb["reduce_ptr"], tb["reduce_n"],
                                                 tb["reduce_c"])
-        self._m2l(target, source, far, reduced, 0.0, 0.0, False, tb, tb["harmonic"],
-                  self.harmonic)
+        orders = tree_params.harmonic_orders(tb["p"], theta, ratio)
+        for q in np.unique(orders):
+            tq = tree_expansion.expansion_tables(int(q))
+            pick = orders == q
+            self._m2l(target, source, (far[0][pick], far[1][pick]), reduced,
+                      tq["harmonic"]["n_list"].shape[0], 0.0, 0.0, False, tq, tq["harmonic"],
+                      self.harmonic)
 
     def add_excess(self, target: _Tree, source: _Tree, far, orders, moments, delta2,
                    wl_coef) -> None:
@@ -152,19 +164,18 @@ class _Locals:
         for q in np.unique(orders[orders >= 0]):
             tb = tree_expansion.expansion_tables(int(q))
             pick = orders == q
-            mom = np.ascontiguousarray(moments[:, :, :tb["midx"].shape[0]])
-            self._m2l(target, source, (far[0][pick], far[1][pick]), mom, delta2, wl_coef,
-                      True, tb, tb["full"], self.full)
+            self._m2l(target, source, (far[0][pick], far[1][pick]), moments,
+                      tb["midx"].shape[0], delta2, wl_coef, True, tb, tb["full"], self.full)
 
-    def _m2l(self, target, source, far, moments, delta2, wl_coef, excess, tb, m2l_tab,
-             local) -> None:
+    def _m2l(self, target, source, far, moments, n_mom, delta2, wl_coef, excess, tb,
+             m2l_tab, local) -> None:
         ptr, src = tree_traverse.group_by_target(far[0], far[1], target.n_cells)
         t_cells = np.flatnonzero(np.diff(ptr))
         if t_cells.size == 0:
             return
         self.has_far[t_cells] = True
-        tree_expansion.m2l(t_cells, ptr, src, target.center, source.center, moments, delta2,
-                           wl_coef, excess, tb["deg"], tb["rec1"], tb["rec2"],
+        tree_expansion.m2l(t_cells, ptr, src, target.center, source.center, moments, n_mom,
+                           delta2, wl_coef, excess, tb["deg"], tb["rec1"], tb["rec2"],
                            m2l_tab["rec_list"], m2l_tab["k_list"], m2l_tab["ptr"],
                            m2l_tab["n_idx"], m2l_tab["m_idx"], m2l_tab["coef"],
                            16 * numba.get_num_threads(), local)
@@ -305,14 +316,14 @@ def _add_particles(s: ParticleSet, targets, target: _Tree, tx, ty, tz, t_leaves,
     min_pairs = tree_params.min_far_pairs(tables["p"], s.kernel, False)
     far, near = _far_and_near(target, source, theta, min_pairs, MAC_ONLY if exact else GAP,
                               reach, np.zeros((1, 3)), np.ones(1))
-    local.add_far(target, source, far, moments)
+    gap, ratio = tree_traverse.pair_separation(far[0], far[1], target.center, target.radius,
+                                               source.center, source.radius)
+    local.add_far(target, source, far, ratio, theta, moments)
     if delta2 != 0.0:
         # the kernel's departure from 1/|r|, where it matters, at the order
         # its size and the pair's separation call for
-        orders = tree_params.excess_orders(
-            s.kernel, tolerance, float(np.sqrt(delta2)), tables["p"],
-            *tree_traverse.pair_separation(far[0], far[1], target.center, target.radius,
-                                           source.center, source.radius))
+        orders = tree_params.excess_orders(s.kernel, tolerance, float(np.sqrt(delta2)),
+                                           tables["p"], gap, ratio)
         local.add_excess(target, source, far, orders, moments, delta2, wl_coef)
     tree_near.particles_near(s.kernel, gradient, t_leaves, target.start, target.count,
                              near[0], near[1], source.start, source.count, tx, ty, tz,
@@ -337,7 +348,9 @@ def _add_segments(s: SegmentSet, target: _Tree, tx, ty, tz, t_leaves, tables, th
         tree_build.cell_max(source.start, source.count, rc)
     min_pairs = tree_params.min_far_pairs(tables["p"], s.core, True)
     far, near = _far_and_near(target, source, theta, min_pairs, TUBE, reach, axis, cos_half)
-    local.add_far(target, source, far, moments)
+    ratio = tree_traverse.pair_separation(far[0], far[1], target.center, target.radius,
+                                          source.center, source.radius)[1]
+    local.add_far(target, source, far, ratio, theta, moments)
     tree_near.segments_near(s.core, gradient, t_leaves, target.start, target.count,
                             near[0], near[1], source.start, source.count, tx, ty, tz,
                             pax, pay, paz, pbx, pby, pbz, gam, rc * rc, vel, grad)

@@ -391,7 +391,7 @@ def _taylor_coefficients(rx, ry, rz, inv_s, n_src, nu, deg, rec1, rec2, rec_list
 
 
 @njit(parallel=True, cache=True, fastmath=_FASTMATH)
-def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
+def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, nr, delta2, wl_coef,
         excess, deg, rec1, rec2, rec_list, k_list, kptr, n_idx, m_idx, coef, n_blocks,
         local):
     """Add the far source cells' potential to each target cell's local expansion.
@@ -405,8 +405,11 @@ def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
     t_center, s_center : (C, 3) float64
         Expansion centres.
     moments : (Cs, 3, R) float64
-        Source moments on the table's moment list (reduced ones for the
-        harmonic tables).
+        Source moments on the moment list of order p >= the table's
+        (reduced ones for the harmonic tables).
+    nr : int
+        Length of the table's moment list, a prefix of the moments' (the
+        lists of lower orders are prefixes: indices are numbered by degree).
     delta2, wl_coef : float
         Kernel potential G = s^(-1/2) + wl_coef s^(-3/2), s = |r|^2 + delta2
         (0, 0 singular; sigma^2, 0 Rosenhead--Moore; sigma^2, sigma^2/2
@@ -426,7 +429,6 @@ def m2l(t_cells, far_ptr, far_src, t_center, s_center, moments, delta2, wl_coef,
         Local coefficients, accumulated on the indices of ``k_list``.
     """
     nt = deg.shape[0]
-    nr = moments.shape[2]
     nk = k_list.shape[0]
     wl = wl_coef != 0.0
     n_t = t_cells.shape[0]
