@@ -34,8 +34,9 @@ def induce_on_cluster(sources, targets, client, *, chunk_size: int | None = None
     client : dask.distributed.Client
         A connected client; its workers need ``wakes`` installed.
     chunk_size : int, optional
-        Targets per task; by default the targets are split into four tasks
-        per worker thread, so faster workers take more.
+        Targets per task; by default four tasks per worker thread for direct
+        sums (faster workers take more) and one for the treecode (which
+        builds its tree over all sources in every task).
     **options
         Passed to :func:`wakes.induce` on the workers (``gradient``,
         ``method``, ...).
@@ -48,8 +49,12 @@ def induce_on_cluster(sources, targets, client, *, chunk_size: int | None = None
     tgt = as_float_array("targets", targets, (None, 3))
     m = tgt.shape[0]
     if chunk_size is None:
+        # the treecode builds its tree over all sources in every task, so it
+        # gets one task per worker thread; direct sums take four, so that
+        # faster workers take more
         threads = max(1, sum(client.nthreads().values()))
-        chunk_size = max(1, -(-m // (4 * threads)))
+        per_thread = 4 if options.get("method", "direct") == "direct" else 1
+        chunk_size = max(1, -(-m // (per_thread * threads)))
     elif not isinstance(chunk_size, (int, np.integer)) or chunk_size < 1:
         raise InputError(f"chunk_size must be a positive integer; got {chunk_size!r}")
     if m == 0:
