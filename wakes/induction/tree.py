@@ -149,10 +149,10 @@ class _Locals:
                                                 tb["reduce_c"])
         orders = tree_params.harmonic_orders(tb["p"], theta, ratio)
         for q in np.unique(orders):
-            tq = tree_expansion.expansion_tables(int(q))
+            tq = tree_expansion.m2l_tables(int(q), True)
             pick = orders == q
             self._m2l(target, source, (far[0][pick], far[1][pick]), reduced,
-                      tq["harmonic"]["n_list"].shape[0], 0.0, 0.0, False, tq, tq["harmonic"],
+                      tq["table"]["n_list"].shape[0], 0.0, 0.0, False, tq, tq["table"],
                       self.harmonic)
 
     def add_excess(self, target: _Tree, source: _Tree, far, orders, moments, delta2,
@@ -162,10 +162,10 @@ class _Locals:
         if self.full is None:
             self.full = np.zeros_like(self.harmonic)
         for q in np.unique(orders[orders >= 0]):
-            tb = tree_expansion.expansion_tables(int(q))
+            tq = tree_expansion.m2l_tables(int(q), False)
             pick = orders == q
             self._m2l(target, source, (far[0][pick], far[1][pick]), moments,
-                      tb["midx"].shape[0], delta2, wl_coef, True, tb, tb["full"], self.full)
+                      tq["midx"].shape[0], delta2, wl_coef, True, tq, tq["table"], self.full)
 
     def _m2l(self, target, source, far, moments, n_mom, delta2, wl_coef, excess, tb,
              m2l_tab, local) -> None:

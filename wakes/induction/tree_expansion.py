@@ -102,24 +102,13 @@ def expansion_tables(p: int) -> dict:
             if upper in index:
                 up[i, d] = index[upper]
 
-    def csr(rows):
-        ptr = np.zeros(len(rows) + 1, np.int64)
-        ptr[1:] = np.cumsum([len(r) for r in rows])
-        cols = list(zip(*[e for r in rows for e in r])) or [(), (), ()]
-        return (ptr,) + tuple(np.array(c, dtype=np.int64 if i < len(cols) - 1 else np.float64)
-                              for i, c in enumerate(cols))
-
     def sub(a, b):
         return tuple(x - y for x, y in zip(a, b))
 
     out = {"p": p, "midx": mi, "deg": mi.sum(axis=1), "mono_parent": mono_parent,
            "mono_dir": mono_dir, "rec1": rec1, "rec2": rec2, "up": up}
-    rows = [[(index[j], index[sub(n, j)], float(_cbin(n, j))) for j in midx
-             if all(a <= b for a, b in zip(j, n))] for n in midx]
-    out["m2m_ptr"], out["m2m_j"], out["m2m_d"], out["m2m_c"] = csr(rows)
-    rows = [[(index[j], index[sub(j, k)], float(_cbin(j, k))) for j in midx
-             if all(a >= b for a, b in zip(j, k))] for k in midx]
-    out["l2l_ptr"], out["l2l_j"], out["l2l_d"], out["l2l_c"] = csr(rows)
+    out["m2m_ptr"], out["m2m_j"], out["m2m_d"], out["m2m_c"] = _shift_table(mi, p, False)
+    out["l2l_ptr"], out["l2l_j"], out["l2l_d"], out["l2l_c"] = _shift_table(mi, p, True)
     out["full"] = _m2l_tables(midx, index, p, harmonic=False)
     out["harmonic"] = _m2l_tables(midx, index, p, harmonic=True)
     # harmonic reduction of moments: D^n = (-1)^q sum_i C(q, i) D^(nx+2i, ny+2q-2i, r)
@@ -150,6 +139,52 @@ def expansion_tables(p: int) -> dict:
     out["fill_k"] = np.array(fk, np.int64)
     out["fill_i"] = np.array(fi, np.int64).reshape(-1, 2)
     out["fill_c"] = np.array(fc, np.float64).reshape(-1, 2)
+    return out
+
+
+def _shift_table(mi: np.ndarray, p: int, local: bool) -> tuple:
+    """CSR shift table over multi-indices ``mi`` (T, 3) of order p.
+
+    Moments (``local`` False): for each n, the j <= n with (j, n - j,
+    C(n, j)). Local coefficients (True): for each k, the j >= k with
+    (j, j - k, C(j, k)). Rows list j in index order.
+    """
+    below = (mi[None, :, :] <= mi[:, None, :]).all(axis=2)   # [a, b]: mi[b] <= mi[a]
+    row, j = np.nonzero(below.T if local else below)
+    hi, lo = (mi[j], mi[row]) if local else (mi[row], mi[j])
+    lut = np.full((p + 1,) * 3, -1, np.int64)
+    lut[mi[:, 0], mi[:, 1], mi[:, 2]] = np.arange(mi.shape[0])
+    d = hi - lo
+    binom = np.array([[comb(a, b) for b in range(p + 1)] for a in range(p + 1)], np.float64)
+    coef = np.prod(binom[hi, lo], axis=1)
+    ptr = np.zeros(mi.shape[0] + 1, np.int64)
+    ptr[1:] = np.cumsum(np.bincount(row, minlength=mi.shape[0]))
+    return ptr, j.astype(np.int64), lut[d[:, 0], d[:, 1], d[:, 2]], coef
+
+
+@lru_cache(maxsize=None)
+def m2l_tables(q: int, harmonic: bool) -> dict:
+    """What :func:`m2l` needs for order ``q``: ``deg``, ``rec1``, ``rec2``
+    as in :func:`expansion_tables` and one M2L table (``harmonic`` or
+    full), without the shift tables (a far pair expanded below the tree's
+    order uses these; building the full set costs seconds at high orders)."""
+    if q < 2:
+        raise ValueError("expansion order must be at least 2")
+    midx = [(nx, d - nx - nz, nz) for d in range(q + 1) for nx in range(d, -1, -1)
+            for nz in range(0, d - nx + 1)]
+    index = {m: i for i, m in enumerate(midx)}
+    t = len(midx)
+    mi = np.array(midx, dtype=np.int64)
+    rec1 = np.full((t, 3), t, np.int64)
+    rec2 = np.full((t, 3), t, np.int64)
+    for i, m in enumerate(midx):
+        for d in range(3):
+            if m[d] >= 1:
+                rec1[i, d] = index[tuple(a - (k == d) for k, a in enumerate(m))]
+            if m[d] >= 2:
+                rec2[i, d] = index[tuple(a - 2 * (k == d) for k, a in enumerate(m))]
+    out = {"p": q, "midx": mi, "deg": mi.sum(axis=1), "rec1": rec1, "rec2": rec2}
+    out["table"] = _m2l_tables(midx, index, q, harmonic=harmonic)
     return out
 
 

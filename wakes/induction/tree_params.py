@@ -170,12 +170,13 @@ def excess_orders(kernel: int, tolerance: float, sigma: float, p: int, gap: np.n
     e = _algebraic_excess(kernel, np.maximum(gap, 0.0) / sigma)
     limit = REGULARIZATION_SHARE * tolerance
     orders = np.full(gap.shape[0], -1, np.int64)
-    todo = e > limit
+    idx = np.flatnonzero(e > limit)
+    e, ratio = e[idx], ratio[idx]
     for q in range(2, p + 1):
-        ok = todo & (e * ratio ** (q + 1) * (q + 1.0) ** EXCESS_GROWTH <= limit)
-        orders[ok] = q
-        todo &= ~ok
-    orders[todo] = p
+        ok = e * ratio ** (q + 1) * (q + 1.0) ** EXCESS_GROWTH <= limit
+        orders[idx[ok]] = q
+        idx, e, ratio = idx[~ok], e[~ok], ratio[~ok]
+    orders[idx] = p
     return orders
 
 
@@ -326,7 +327,8 @@ def estimated_bytes(n_targets: int, source_counts: list[int], order: int,
     ~23 points on average at worst for spread-out sets), target cells
     holding local coefficients (two parts) and lists of about 150 far cells
     (40 bytes an entry), source cells their full and reduced moments.
-    Measured peak for 10^6 points at 1e-4: 1.1 GiB (estimate 1.6).
+    Measured for 10^6 points at 1e-4 (order 9): max RSS 1.56 GiB, of which
+    about 0.3 GiB is the interpreter and numba (estimate 1.41 GiB).
     """
     coeff = 8 * 3 * n_terms(order)
     per_target = 8 * (3 + 2 + 2 * (3 + (9 if gradient else 0)))
