@@ -364,8 +364,10 @@ def _run_all(todo, rows, bar, client, scheduler, workers, source, base_dir) -> N
     client, cluster = _connect(client, scheduler, workers)
     local = cluster is not None
     try:
+        # one numba thread per point: the points fill the cores, and OpenMP
+        # threads of several points on the same cores stall each other
         futures = {client.submit(run_point, p.data, source, base_dir, str(p.folder), p.case_hash,
-                                 1 if local else None, pure=False): p for p in todo}
+                                 1, pure=False): p for p in todo}
         for fut in as_completed(futures):
             p = futures[fut]
             try:
