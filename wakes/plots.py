@@ -164,13 +164,44 @@ def plot_wake(run, path) -> Path | None:
         return _save(fig, Path(path))
 
 
-def plot_tip_vortex(run, path) -> Path | None:
-    """Tip-vortex path of every rotor: radius and axial distance of its strongest filaments.
+def tip_vortex_points(segments, body: dict) -> tuple[np.ndarray, np.ndarray]:
+    """Axial and radial positions of a rotor wake's tip-vortex filaments.
 
-    The filaments drawn are those of a rotor's wake carrying at least half
-    the largest circulation in it, which after roll-up is the tip vortex.
-    None if the run has no rotor wake.
+    After roll-up the tip and root vortices are the strongest filaments,
+    with opposite signs; those carrying at least half the largest |Γ| with
+    the sign of the group farther from the axis are the tip vortex.
+
+    Parameters
+    ----------
+    segments : pandas.DataFrame
+        Wake segments of one rotor (columns ``x0_m`` ... ``z1_m``, ``gamma_m2_s``).
+    body : dict
+        The rotor's case table (``hub``, ``axis``).
+
+    Returns
+    -------
+    axial, radial : ndarray (K,)
+        Distance of each filament's midpoint along the axis from the hub, and
+        from the axis [m].
     """
+    gamma = segments["gamma_m2_s"].to_numpy()
+    mid = 0.5 * (segments[["x0_m", "y0_m", "z0_m"]].to_numpy()
+                 + segments[["x1_m", "y1_m", "z1_m"]].to_numpy())
+    axis = np.asarray(body["axis"], dtype=np.float64)
+    axis = axis / np.linalg.norm(axis)
+    rel = mid - np.asarray(body["hub"], dtype=np.float64)
+    axial = rel @ axis
+    radial = np.linalg.norm(rel - axial[:, None] * axis, axis=1)
+    strong = np.abs(gamma) >= 0.5 * np.abs(gamma).max()
+    mean_r = {sign: radial[strong & (np.sign(gamma) == sign)].mean()
+              for sign in (-1.0, 1.0) if np.any(strong & (np.sign(gamma) == sign))}
+    tip = strong & (np.sign(gamma) == max(mean_r, key=mean_r.get))
+    return axial[tip], radial[tip]
+
+
+def plot_tip_vortex(run, path) -> Path | None:
+    """Tip-vortex path of every rotor: radius and axial distance of the
+    filaments :func:`tip_vortex_points` picks. None if the run has no rotor wake."""
     import matplotlib.pyplot as plt
 
     seg = run.wake_segments
@@ -184,24 +215,16 @@ def plot_tip_vortex(run, path) -> Path | None:
             mine = seg[seg["surface"].astype(str).str.startswith(f"{name}/")]
             if not len(mine):
                 continue
-            g = np.abs(mine["gamma_m2_s"].to_numpy())
-            strong = mine[g >= 0.5 * g.max()]
-            mid = 0.5 * (strong[["x0_m", "y0_m", "z0_m"]].to_numpy() + strong[["x1_m", "y1_m", "z1_m"]].to_numpy())
-            axis = np.asarray(body["axis"], dtype=np.float64)
-            axis /= np.linalg.norm(axis)
-            rel = mid - np.asarray(body["hub"], dtype=np.float64)
-            axial = rel @ axis
-            radial = np.linalg.norm(rel - axial[:, None] * axis, axis=1)
+            axial, radial = tip_vortex_points(mine, body)
             big_r = float(body["radius"])
             ax.scatter(-axial / big_r, radial / big_r, s=6, label=name)
             drawn = True
         if not drawn:
-            import matplotlib.pyplot as plt2
-            plt2.close(fig)
+            plt.close(fig)
             return None
         ax.set_xlabel("distance behind the rotor disc along -axis, z/R [-]")
         ax.set_ylabel("radius r/R [-]")
-        ax.set_title(f"{run.title}: tip-vortex path (filaments with |Γ| ≥ half the peak)")
+        ax.set_title(f"{run.title}: tip-vortex path")
         ax.legend()
         return _save(fig, Path(path))
 
