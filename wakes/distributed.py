@@ -59,7 +59,10 @@ def induce_on_cluster(sources, targets, client, *, chunk_size: int | None = None
         raise InputError(f"chunk_size must be a positive integer; got {chunk_size!r}")
     if m == 0:
         return _induce_chunk(sources, tgt, options)
-    src_future = client.scatter(sources, broadcast=True)
+    # hash=False: a unique key per call. With content hashing two calls on the
+    # same sources share one key, and the first call releasing it can drop
+    # the data under the second call's tasks ("lost dependencies").
+    src_future = client.scatter(sources, broadcast=True, hash=False)
     futures = [client.submit(_induce_chunk, src_future, tgt[i:i + chunk_size], options,
                              pure=False)
                for i in range(0, m, chunk_size)]
