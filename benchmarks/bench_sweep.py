@@ -39,9 +39,9 @@ HERE = Path(__file__).resolve().parent
 CASE = {
     "title": "bench sweep wing",
     "freestream": {"speed": 10.0, "angle_of_attack": 4.0},
-    "bodies": {"wing": {"type": "wing", "span": 6.0, "chord": 0.5, "spanwise_panels": 16}},
+    "bodies": {"wing": {"type": "wing", "span": 6.0, "chord": 0.5, "spanwise_panels": 12}},
     "wake": {"motion": "free"},
-    "time": {"steps": 100},
+    "time": {"steps": 40},
 }
 
 
@@ -124,7 +124,7 @@ def main() -> None:
         "",
         "| what | points | one after another (s) | sweep on 2 local workers (s) | speed-up |",
         "|---|---|---|---|---|",
-        f"| small free-wake wing, 16 panels, 100 steps | {s['points']} | {s['serial_s']:.1f} | "
+        f"| small free-wake wing, 12 panels, 40 steps | {s['points']} | {s['serial_s']:.1f} | "
         f"{s['sweep_s']:.1f} | {s['speedup']:.2f}x |",
         "",
         "| what | particles | one process (s) | 2 workers with client= (s) | relative difference |",
