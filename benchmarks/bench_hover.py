@@ -32,7 +32,7 @@ import sys
 
 RESULTS = os.path.join(os.path.dirname(os.path.abspath(__file__)), "RESULTS.md")
 CASE = os.path.join(os.path.dirname(RESULTS), "..", "cases", "validation", "hover-8deg.toml")
-MEASURED_CT = 0.00459  # Caradonna & Tung 1981, NASA TM-81232 (secondary transcriptions)
+MEASURED_CT = 0.00459  # Caradonna & Tung 1981, NASA TM-81232 (value from memory)
 TARGET_S = 60.0
 
 # One timed run in a fresh process: warm-up (compiles), then the case.

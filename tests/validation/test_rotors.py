@@ -18,7 +18,7 @@ from wakes.case import load_case
 from wakes.simulate import run_case
 
 CASES = Path(__file__).resolve().parents[2] / "cases" / "validation"
-MEASURED_CT = 0.00459   # Caradonna & Tung 1981, NASA TM-81232, 8 deg (secondary transcriptions)
+MEASURED_CT = 0.00459   # Caradonna & Tung 1981, NASA TM-81232, 8 deg (value from memory)
 
 
 class _HoverRun:
