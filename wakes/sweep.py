@@ -219,19 +219,19 @@ def _finished(point: Point) -> dict | None:
     return summary if record.get("case_sha256") == point.case_hash else None
 
 
-def run_point(data: dict, source: str, base_dir: str, folder: str, expected_hash: str,
-              numba_threads: int | None) -> dict:
+def run_point(data: dict, source: str, base_dir: str, folder: str, expected_hash: str) -> dict:
     """Run one point in a worker and write its folder; returns the summary.
 
-    The point record (with the case hash) is written last, so a folder
-    without it is an unfinished run and is run again on resume.
+    The point runs its numba loops on one thread: the points fill the
+    cores, and OpenMP threads of several points on the same cores stall
+    each other. The point record (with the case hash) is written last, so
+    a folder without it is an unfinished run and is run again on resume.
     """
+    import numba
+
     from .simulate import run_case
 
-    if numba_threads:
-        import numba
-
-        numba.set_num_threads(min(numba_threads, numba.config.NUMBA_NUM_THREADS))
+    numba.set_num_threads(1)
     case = parse_case(data, source=source, base_dir=base_dir)
     if case_hash(case) != expected_hash:   # a worker with another wakes version
         raise WakesError(f"point resolved differently on the worker ({folder})")
@@ -364,10 +364,8 @@ def _run_all(todo, rows, bar, client, scheduler, workers, source, base_dir) -> N
     client, cluster = _connect(client, scheduler, workers)
     local = cluster is not None
     try:
-        # one numba thread per point: the points fill the cores, and OpenMP
-        # threads of several points on the same cores stall each other
         futures = {client.submit(run_point, p.data, source, base_dir, str(p.folder), p.case_hash,
-                                 1, pure=False): p for p in todo}
+                                 pure=False): p for p in todo}
         for fut in as_completed(futures):
             p = futures[fut]
             try:
