@@ -72,7 +72,6 @@ def configurations(sizes, overlap, dense):
 
 def run_timings(rows, threads, repeats):
     import numba
-
     import wakes
 
     cache = {}

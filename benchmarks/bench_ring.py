@@ -31,7 +31,6 @@ import time
 import tracemalloc
 
 import numba
-
 import wakes
 from wakes.dynamics import induction_methods
 

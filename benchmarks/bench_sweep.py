@@ -20,7 +20,6 @@ import argparse
 import datetime
 import os
 import platform
-import shutil
 import statistics
 import subprocess
 import tempfile
@@ -28,7 +27,6 @@ import time
 from pathlib import Path
 
 import numpy as np
-
 import wakes
 from wakes.case import parse_case
 from wakes.simulate import run_case

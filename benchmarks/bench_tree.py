@@ -68,7 +68,6 @@ def _fmm3dpy(x, alpha, eps):
 
 def worker(spec: dict) -> dict:
     import numba
-
     import wakes
 
     x, alpha, h = _problem(spec["n"])
@@ -212,7 +211,7 @@ def main():
     sections.append(("Direct against tree for small N (auto crossover)", rows))
     load1 = os.getloadavg()
 
-    text = [f"\n## Treecode (bench_tree.py)\n",
+    text = ["\n## Treecode (bench_tree.py)\n",
             f"{machine()}.",
             f"Load average {load0[0]:.1f} before, {load1[0]:.1f} after the run "
             f"(2 cores shared with other work: wall-clock times are upper bounds).",

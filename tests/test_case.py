@@ -5,7 +5,6 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-
 from wakes.case import WingSpec, case_reference, load_case, parse_case, read_toml
 from wakes.errors import CaseError
 

@@ -2,7 +2,6 @@
 
 import numpy as np
 import pytest
-
 import wakes
 from wakes.distributed import induce_on_cluster
 

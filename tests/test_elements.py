@@ -2,7 +2,6 @@
 
 import numpy as np
 import pytest
-
 import wakes
 from wakes.errors import InputError
 
@@ -16,10 +15,12 @@ def test_wakes_error_is_a_value_error():
     (dict(positions=np.zeros((3, 2)), strengths=np.zeros((3, 3)), radii=0.1), ["positions", "(N, 3)", "(3, 2)"]),
     (dict(positions=np.zeros((3, 3)), strengths=np.zeros((2, 3)), radii=0.1), ["strengths", "(3, 3)"]),
     (dict(positions=[[0, 0, np.nan]], strengths=np.zeros((1, 3)), radii=0.1), ["positions", "finite", "[0, 2]"]),
-    (dict(positions=np.zeros((2, 3)), strengths=np.zeros((2, 3)), radii=[0.1, -0.002]), ["radii", "positive", "radii[1] = -0.002"]),
+    (dict(positions=np.zeros((2, 3)), strengths=np.zeros((2, 3)), radii=[0.1, -0.002]),
+     ["radii", "positive", "radii[1] = -0.002"]),
     (dict(positions=np.zeros((2, 3)), strengths=np.zeros((2, 3)), radii=0.0), ["radii", "positive"]),
     (dict(positions=np.zeros((2, 3)), strengths=np.zeros((2, 3)), radii=[0.1, 0.1, 0.1]), ["radii", "(2,)"]),
-    (dict(positions=np.zeros((2, 3)), strengths=np.zeros((2, 3)), radii=0.1, kernel="gauss"), ["kernel", "'gaussian'", "'gauss'"]),
+    (dict(positions=np.zeros((2, 3)), strengths=np.zeros((2, 3)), radii=0.1, kernel="gauss"),
+     ["kernel", "'gaussian'", "'gauss'"]),
     (dict(positions="abc", strengths=np.zeros((2, 3)), radii=0.1), ["positions"]),
 ])
 def test_particles_reject_bad_input_naming_it(kwargs, words):

@@ -6,7 +6,6 @@ import time
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
-
 from wakes.case import parse_case
 from wakes.errors import CaseError, WakesError
 

@@ -12,7 +12,6 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-
 import wakes.watchdog as watchdog
 from wakes.case import parse_case
 from wakes.io.checkpoint import list_checkpoints, newest_checkpoint, prepare_resume, read_checkpoint

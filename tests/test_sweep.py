@@ -3,7 +3,6 @@
 import time
 
 import pytest
-
 from wakes.case import parse_case, read_toml
 from wakes.errors import CaseError, WakesError
 from wakes.simulate import run_case

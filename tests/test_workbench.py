@@ -10,13 +10,12 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-
 import wakes
 from wakes.cli import main
 from wakes.estimate import estimate_case, wake_sizes
 from wakes.progress import ProgressBar
 from wakes.runfolder import read_run, run_to_folder
-from wakes.templates import available_kinds, new_case
+from wakes.templates import available_kinds
 
 vtk = pytest.importorskip("vtk")
 
@@ -293,7 +292,6 @@ def test_tip_vortex_figure_leaves_out_the_root_vortex():
     """Tip (r = 0.8 R, +Γ) and root (r = 0.2 R, -Γ) helices of equal strength,
     and a weak sheet: only the tip helix is picked."""
     import pandas as pd
-
     from wakes.plots import tip_vortex_points
 
     psi = np.linspace(0.0, 4 * np.pi, 49)

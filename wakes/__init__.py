@@ -11,13 +11,13 @@ import os as _os
 # nothing measurable. A user's own setting wins.
 _os.environ.setdefault("OMP_WAIT_POLICY", "PASSIVE")
 
-from .elements import Filaments, Particles
 from . import exact
-from .errors import CaseError, InputError, NumericalError, WakesError
-from .induction.api import induce
-from .flow import ParticleFlow
-from .initial import lamb_oseen_ring, vortex_ring
 from .case import Case, load_case, parse_case
+from .elements import Filaments, Particles
+from .errors import CaseError, InputError, NumericalError, WakesError
+from .flow import ParticleFlow
+from .induction.api import induce
+from .initial import lamb_oseen_ring, vortex_ring
 from .simulate import Run, run_case
 from .sweep import sweep
 

@@ -188,7 +188,7 @@ class GroundSpec:
         from .aero.ground import GroundPlane
         return None if self.point is None else GroundPlane(np.asarray(self.point), np.asarray(self.normal))
 
-    def after_parse(self, raw: dict, where: str, ctx) -> "GroundSpec":
+    def after_parse(self, raw: dict, where: str, ctx) -> GroundSpec:
         if not np.linalg.norm(self.normal) > 0.0:
             ctx.fail(f"{where}.normal must be a nonzero vector (from the ground into the air); "
                      f"got {list(self.normal)}")
@@ -205,7 +205,7 @@ class ClusterSpec:
     min_wake: int = key(50_000, "wake elements (segments + particles) from which the wake's "
                         "induction goes to the workers", kind="int", minimum=1)
 
-    def after_parse(self, raw: dict, where: str, ctx) -> "ClusterSpec":
+    def after_parse(self, raw: dict, where: str, ctx) -> ClusterSpec:
         if self.scheduler and "://" not in self.scheduler:
             ctx.fail(f"{where}.scheduler must be an address such as 'tcp://10.0.0.5:8786' "
                      f"(or empty); got {self.scheduler!r}")
@@ -228,7 +228,7 @@ class AirfoilSpec:
 
     _THIN = ("lift_slope", "zero_lift_angle", "cd0", "cd2")
 
-    def after_parse(self, raw: dict, where: str, ctx) -> "AirfoilSpec":
+    def after_parse(self, raw: dict, where: str, ctx) -> AirfoilSpec:
         if self.polar is not None:
             both = [k for k in self._THIN if k in raw]
             if both:
@@ -281,7 +281,7 @@ class WingSpec:
         """Planform area over span [m]."""
         return self.planform().area() / self.span
 
-    def after_parse(self, raw: dict, where: str, ctx) -> "WingSpec":
+    def after_parse(self, raw: dict, where: str, ctx) -> WingSpec:
         for name in ("chord", "twist", "sweep", "dihedral"):
             problem = getattr(self, name).problem(self.symmetric)
             if problem:
@@ -291,7 +291,7 @@ class WingSpec:
                      f"{self.chordwise_panels} (use model = \"vortex-lattice\" for chordwise panels)")
         return self
 
-    def check(self, case: "Case", where: str, ctx) -> None:
+    def check(self, case: Case, where: str, ctx) -> None:
         ground = case.ground.plane()
         if ground is not None and not ground.height(np.asarray(self.position, dtype=np.float64)) > 0.0:
             ctx.fail(f"{where}.position {list(self.position)} is not above the ground plane "
@@ -300,16 +300,16 @@ class WingSpec:
             ctx.fail(f"{where}: a wing needs a freestream; [freestream] speed must be positive "
                      "(or velocity nonzero), got zero")
 
-    def resolve(self, case: "Case") -> "WingSpec":
+    def resolve(self, case: Case) -> WingSpec:
         n_c = self.chordwise_panels or (1 if self.model == "lifting-line" else 4)
         area = self.reference_area or self.planform().area()
         return dataclasses.replace(self, chordwise_panels=n_c, reference_area=area)
 
-    def suggest_dt(self, case: "Case") -> float:
+    def suggest_dt(self, case: Case) -> float:
         speed = float(np.linalg.norm(case.freestream.vector()))
         return self.mean_chord() / (max(4, self.chordwise_panels or 1) * speed)
 
-    def suggest_steps_float(self, case: "Case", dt: float) -> float:
+    def suggest_steps_float(self, case: Case, dt: float) -> float:
         speed = float(np.linalg.norm(case.freestream.vector()))
         return DEFAULT_WAKE_SPANS * self.span / (speed * dt)
 
@@ -389,7 +389,7 @@ class RotorSpec:
         """Chord averaged along the blade [m]."""
         return self.geometry().mean_chord()
 
-    def after_parse(self, raw: dict, where: str, ctx) -> "RotorSpec":
+    def after_parse(self, raw: dict, where: str, ctx) -> RotorSpec:
         if not self.root_cutout < self.radius:
             ctx.fail(f"{where}.root_cutout must be less than {where}.radius = {self.radius:g} m "
                      f"(the blade runs from the cut-out to the tip); got {self.root_cutout:g} m")
@@ -401,7 +401,7 @@ class RotorSpec:
             ctx.fail(f"{where}.axis must be a nonzero vector (the thrust direction); got {list(self.axis)}")
         return self
 
-    def check(self, case: "Case", where: str, ctx) -> None:
+    def check(self, case: Case, where: str, ctx) -> None:
         ground = case.ground.plane()
         if ground is not None:
             a = np.asarray(self.axis, dtype=np.float64) / np.linalg.norm(self.axis)
@@ -432,13 +432,13 @@ class RotorSpec:
                      f"[freestream] velocity along {where}.axis is {axial:g} m/s, it must be zero "
                      "or negative")
 
-    def resolve(self, case: "Case") -> "RotorSpec":
+    def resolve(self, case: Case) -> RotorSpec:
         return self
 
-    def suggest_dt(self, case: "Case") -> float:
+    def suggest_dt(self, case: Case) -> float:
         return self.azimuth_step / (6.0 * self.rpm)
 
-    def suggest_steps_float(self, case: "Case", dt: float) -> float:
+    def suggest_steps_float(self, case: Case, dt: float) -> float:
         return self.revolutions * 60.0 / (self.rpm * dt) + 1.0
 
     def omitted(self) -> set:
@@ -847,7 +847,7 @@ def _toml_scalar(v) -> str:
 
 
 def _is_section(v) -> bool:
-    return isinstance(v, dict) and not ("law" in v)
+    return isinstance(v, dict) and "law" not in v
 
 
 def _dump_toml(data: dict, header: str = "") -> str:

@@ -168,7 +168,8 @@ def _run(args) -> int:
               f"are in {out}/ (go on with: wakes run --resume {out})", file=sys.stderr)
         return status
     if not args.quiet:
-        print(f"{case.title}: {case.time.steps} steps of {case.time.dt:.4g} s in {run.summary['run']['wall_time_s']:.1f} s")
+        wall = run.summary["run"]["wall_time_s"]
+        print(f"{case.title}: {case.time.steps} steps of {case.time.dt:.4g} s in {wall:.1f} s")
         print(result_table(run.summary))
         print(f"results in {out}/")
     return 0

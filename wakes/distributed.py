@@ -125,7 +125,7 @@ class WakeCluster:
         self.owned = owned
 
     @classmethod
-    def open(cls, spec, client=None) -> "WakeCluster | None":
+    def open(cls, spec, client=None) -> WakeCluster | None:
         """The cluster a case asks for: ``client`` if given, else the
         ``[cluster] scheduler`` of ``spec`` (a :class:`wakes.case.ClusterSpec`),
         else None (this process only)."""

@@ -67,7 +67,7 @@ class Particles:
     def __repr__(self) -> str:
         return f"Particles(N={self.count}, kernel={self.kernel!r})"
 
-    def replace(self, *, positions=None, strengths=None, radii=None, kernel=None) -> "Particles":
+    def replace(self, *, positions=None, strengths=None, radii=None, kernel=None) -> Particles:
         """Return a copy with some fields replaced (each re-validated)."""
         return Particles(self.positions if positions is None else positions,
                          self.strengths if strengths is None else strengths,
@@ -129,7 +129,7 @@ class Filaments:
 
     @classmethod
     def from_polyline(cls, points, circulation, core_radius, closed: bool = False,
-                      core: str = "lamb-oseen") -> "Filaments":
+                      core: str = "lamb-oseen") -> Filaments:
         """Build one filament from a polyline of points.
 
         Parameters
@@ -171,7 +171,7 @@ class Filaments:
         """Start and end points of every segment, each shape (K, 3) [m]."""
         return self.nodes[self.segments[:, 0]], self.nodes[self.segments[:, 1]]
 
-    def replace(self, *, nodes=None, circulation=None, core_radius=None, core=None) -> "Filaments":
+    def replace(self, *, nodes=None, circulation=None, core_radius=None, core=None) -> Filaments:
         """Return a copy with some fields replaced (each re-validated)."""
         return Filaments(self.nodes if nodes is None else nodes, self.segments,
                          self.circulation if circulation is None else circulation,

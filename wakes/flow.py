@@ -13,8 +13,13 @@ import pandas as pd
 
 from ._validate import choice, per_element, positive_scalar
 from .diagnostics import DIAGNOSTIC_COLUMNS, field_diagnostics
-from .dynamics import (STRETCHING_SCHEMES, VISCOUS_SCHEMES, ParticleDynamics,
-                       induction_methods, relax_divergence)
+from .dynamics import (
+    STRETCHING_SCHEMES,
+    VISCOUS_SCHEMES,
+    ParticleDynamics,
+    induction_methods,
+    relax_divergence,
+)
 from .elements import Particles
 from .errors import InputError, NumericalError
 from .induction.particle_ops import smoothed_fields_at
@@ -314,7 +319,7 @@ class ParticleFlow:
             raise
 
     @classmethod
-    def load(cls, path) -> "ParticleFlow":
+    def load(cls, path) -> ParticleFlow:
         """Restore a flow written by :meth:`save`.
 
         Raises

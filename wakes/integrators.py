@@ -31,9 +31,9 @@ Equations*, 3rd ed., Wiley.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Callable
 
 import numpy as np
 

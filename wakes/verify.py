@@ -8,8 +8,8 @@ what ``wakes verify`` prints; :func:`run_checks` returns it for notebooks.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Callable
 
 import numpy as np
 import pandas as pd

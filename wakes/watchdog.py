@@ -60,7 +60,7 @@ class Watchdog:
         self.budget, self.budget_source = budget_bytes(max_memory)
 
     @classmethod
-    def for_surfaces(cls, v_inf: np.ndarray, surfaces, max_memory: int | None = None) -> "Watchdog":
+    def for_surfaces(cls, v_inf: np.ndarray, surfaces, max_memory: int | None = None) -> Watchdog:
         """A watchdog scaled on the freestream and the surfaces' own motion at the start."""
         speeds = [float(np.linalg.norm(v_inf))]
         for s in surfaces:

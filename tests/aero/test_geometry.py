@@ -2,9 +2,15 @@
 
 import numpy as np
 import pytest
-
-from wakes.aero.geometry import (Distribution, WingPlanform, build_surface, rotation_matrix,
-                                 section_etas, station_etas, wing_surface)
+from wakes.aero.geometry import (
+    Distribution,
+    WingPlanform,
+    build_surface,
+    rotation_matrix,
+    section_etas,
+    station_etas,
+    wing_surface,
+)
 from wakes.aero.polars import SectionPolars, ThinAirfoilPolar
 
 

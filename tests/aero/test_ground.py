@@ -2,7 +2,6 @@
 
 import numpy as np
 import pytest
-
 from wakes import Filaments, Particles, induce
 from wakes.aero.geometry import Distribution
 from wakes.aero.ground import GroundPlane, with_ground

@@ -2,7 +2,6 @@
 
 import numpy as np
 import pytest
-
 from wakes.aero.geometry import Distribution, WingPlanform, wing_surface
 from wakes.aero.influence_cache import RigidInfluenceCache, rigid_motion
 from wakes.aero.polars import SectionPolars, ThinAirfoilPolar

@@ -2,7 +2,6 @@
 
 import numpy as np
 import pytest
-
 from wakes.aero.geometry import Distribution, WingPlanform, wing_surface
 from wakes.aero.lifting_line import LinearCache, SolverSettings, solve_circulation
 from wakes.aero.polars import PolarRangeError, SectionPolars, TablePolar, ThinAirfoilPolar

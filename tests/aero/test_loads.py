@@ -2,7 +2,6 @@
 
 import numpy as np
 import pytest
-
 from wakes.aero.geometry import section_etas, station_etas
 from wakes.aero.loads import StripLoads, trefftz_induced_drag, wing_totals
 

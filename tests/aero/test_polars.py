@@ -2,9 +2,7 @@
 
 import numpy as np
 import pytest
-
-from wakes.aero.polars import (PolarRangeError, SectionPolars, TablePolar, ThinAirfoilPolar,
-                               load_polar_table)
+from wakes.aero.polars import PolarRangeError, SectionPolars, TablePolar, ThinAirfoilPolar, load_polar_table
 from wakes.errors import CaseError, InputError
 
 

@@ -4,7 +4,6 @@ import math
 import re
 
 import pytest
-
 from wakes.case import MAX_AZIMUTH_STEP, case_reference, parse_case
 from wakes.cli import main
 from wakes.errors import CaseError

@@ -2,7 +2,6 @@
 
 import numpy as np
 import pytest
-
 from wakes.aero.geometry import Distribution
 from wakes.aero.kinematics import RigidRotation, hub_frame, rotate_about
 from wakes.aero.polars import SectionPolars, ThinAirfoilPolar

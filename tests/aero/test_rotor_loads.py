@@ -2,11 +2,9 @@
 
 import numpy as np
 import pytest
-
 from wakes import exact
 from wakes.aero.loads import StripLoads
-from wakes.aero.rotor_loads import (KIND_COLUMNS, blade_forces, coefficients, last_revolution,
-                                    radial_table)
+from wakes.aero.rotor_loads import KIND_COLUMNS, blade_forces, coefficients, last_revolution, radial_table
 
 RHO, OMEGA, R = 1.2, 100.0, 0.5
 

@@ -5,7 +5,6 @@ import tomllib
 import numpy as np
 import pandas as pd
 import pytest
-
 from wakes.aero.rotor_loads import KIND_COLUMNS
 from wakes.case import parse_case
 from wakes.simulate import run_case

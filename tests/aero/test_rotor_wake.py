@@ -2,10 +2,8 @@
 
 import numpy as np
 import pytest
-
 import wakes
-from wakes.aero.rotor_wake import (BladeSymmetry, RolledUpWake, StartupDrift, condense_row,
-                                   tip_vortex_table)
+from wakes.aero.rotor_wake import BladeSymmetry, RolledUpWake, StartupDrift, condense_row, tip_vortex_table
 from wakes.aero.vortex_lattice import lattice_filaments
 from wakes.aero.wake import WakeSettings
 

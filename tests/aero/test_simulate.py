@@ -2,7 +2,6 @@
 
 import numpy as np
 import pytest
-
 from wakes.aero.geometry import Distribution, WingPlanform
 from wakes.case import parse_case
 from wakes.simulate import run_case

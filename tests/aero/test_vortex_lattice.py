@@ -3,7 +3,6 @@
 import numpy as np
 from hypothesis import given
 from hypothesis import strategies as st
-
 from wakes.aero.geometry import Distribution, WingPlanform, wing_surface
 from wakes.aero.polars import SectionPolars, ThinAirfoilPolar
 from wakes.aero.vortex_lattice import influence_matrix, lattice_filaments, lattice_segments

@@ -2,7 +2,6 @@
 
 import numpy as np
 import pytest
-
 from wakes.aero.wake import WakeSettings, WakeSheet
 
 

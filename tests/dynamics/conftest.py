@@ -5,7 +5,6 @@ from contextlib import contextmanager
 import numba
 import numpy as np
 import pytest
-
 import wakes
 
 RNG_SEED = 31415

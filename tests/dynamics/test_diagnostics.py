@@ -4,7 +4,6 @@ import math
 
 import numpy as np
 import pytest
-
 import wakes
 from wakes.diagnostics import DIAGNOSTIC_COLUMNS, field_diagnostics, ring_centroid
 from wakes.induction.particle_ops import zeta

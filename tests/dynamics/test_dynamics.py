@@ -2,10 +2,15 @@
 
 import numpy as np
 import pytest
-
 import wakes
-from wakes.dynamics import (KERNEL_SECOND_MOMENTS, STRETCHING_SCHEMES, VISCOUS_SCHEMES,
-                            curl_from_gradient, relax_divergence, stretching_rate)
+from wakes.dynamics import (
+    KERNEL_SECOND_MOMENTS,
+    STRETCHING_SCHEMES,
+    VISCOUS_SCHEMES,
+    curl_from_gradient,
+    relax_divergence,
+    stretching_rate,
+)
 from wakes.induction.particle_ops import smoothed_fields_at
 from wakes.induction.pse import pse_exchange
 from wakes.induction.smoothing import PARTICLE_KERNELS

@@ -5,11 +5,10 @@ import pathlib
 import numpy as np
 import pandas as pd
 import pytest
+import wakes
 from hypothesis import given
 from hypothesis import strategies as st
 from scipy.spatial.transform import Rotation
-
-import wakes
 from wakes import ParticleFlow
 from wakes.diagnostics import DIAGNOSTIC_COLUMNS
 from wakes.errors import InputError, NumericalError, WakesError

@@ -5,7 +5,6 @@ from fractions import Fraction
 
 import numpy as np
 import pytest
-
 from wakes.integrators import INTEGRATORS, RungeKuttaScheme, rk_step
 
 ALL = sorted(INTEGRATORS)

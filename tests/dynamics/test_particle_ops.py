@@ -4,9 +4,8 @@ import math
 
 import numpy as np
 import pytest
-from scipy.integrate import quad
-
 import wakes
+from scipy.integrate import quad
 from wakes.induction.particle_ops import smoothed_fields_at, zeta
 from wakes.induction.smoothing import PARTICLE_KERNELS
 

@@ -2,9 +2,8 @@
 
 import numpy as np
 import pytest
-from scipy import integrate
-
 import wakes
+from scipy import integrate
 from wakes import exact
 
 from .reference import CORE_NAMES, KERNEL_NAMES, particle_field, q_and_dq
@@ -131,7 +130,7 @@ def test_segment_against_quadrature_of_biot_savart():
     for x in ([0.7, 0.9, 0.3], [-1.0, 0.2, 2.0], [0.65, 0.15, -0.2]):
         x = np.array(x)
 
-        def integrand(s, k):
+        def integrand(s, k, x=x):
             p = a + s * (b - a)
             r = x - p
             return (2.5 / (4 * np.pi) * np.cross(b - a, r) / np.linalg.norm(r) ** 3)[k]

@@ -11,7 +11,6 @@ import numpy as np
 import pytest
 from numba import njit
 from scipy.special import erfc
-
 from wakes.induction import direct, gaussian
 from wakes.induction.gaussian import T_FAR, T_NEAR, exp_neg, gaussian_g
 from wakes.induction.smoothing import GAUSSIAN

@@ -5,11 +5,10 @@ divergence of particle velocity fields, and independence of source order.
 """
 
 import numpy as np
+import wakes
 from hypothesis import given
 from hypothesis import strategies as st
 from scipy.spatial.transform import Rotation
-
-import wakes
 
 from .reference import CORE_NAMES, KERNEL_NAMES
 

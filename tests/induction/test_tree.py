@@ -9,10 +9,9 @@ points around them, the use a wake simulation makes of the tree.
 
 import numpy as np
 import pytest
+import wakes
 from hypothesis import given
 from hypothesis import strategies as st
-
-import wakes
 from wakes.errors import InputError
 from wakes.induction import tree_build, tree_expansion, tree_params, tree_traverse
 from wakes.induction.smoothing import CORE_MODELS, PARTICLE_KERNELS

@@ -4,7 +4,6 @@ import xml.etree.ElementTree as ET
 
 import numpy as np
 import pytest
-
 import wakes
 from wakes.io.snapshots import WakeSnapshots
 

@@ -2,7 +2,6 @@
 
 import numpy as np
 import pytest
-
 import wakes
 from wakes.io import vtk as vtkio
 

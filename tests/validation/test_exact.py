@@ -15,7 +15,6 @@ from scipy.integrate import quad
 from scipy.optimize import minimize_scalar
 from scipy.spatial.transform import Rotation
 from scipy.special import ellipe, ellipk, erf
-
 from wakes import exact
 from wakes.errors import WakesError
 
@@ -377,7 +376,7 @@ def test_particle_line_swirl_profile(kernel):
     # profile used for the filled-core constants: g(x) = x² ∫₀^∞ q(ρ)/|r|³ dt.
     q, g = KERNEL_Q[kernel], LINE_SWIRL[kernel]
     for x in (0.1, 0.7, 1.0, 2.5, 6.0):
-        val = x * x * quad(lambda t: q(math.hypot(x, t)) / math.hypot(x, t) ** 3,
+        val = x * x * quad(lambda t, x=x: q(math.hypot(x, t)) / math.hypot(x, t) ** 3,
                            0.0, np.inf, epsabs=0.0, epsrel=1e-12, limit=200)[0]
         assert val == pytest.approx(g(x), rel=1e-9)
 

@@ -18,9 +18,8 @@ import math
 import numba
 import numpy as np
 import pytest
-from scipy.integrate import quad
-
 import wakes
+from scipy.integrate import quad
 from wakes import ParticleFlow, exact
 from wakes.diagnostics import ring_centroid
 from wakes.initial import core_lattice

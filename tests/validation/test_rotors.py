@@ -12,7 +12,6 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-
 from wakes import exact
 from wakes.case import load_case
 from wakes.simulate import run_case

@@ -6,7 +6,6 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-
 from wakes import exact
 from wakes.case import load_case, parse_case
 from wakes.simulate import run_case

@@ -24,8 +24,8 @@ is solved at its quarter-chord section points with sectional polars.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Callable
 
 import numpy as np
 
@@ -65,7 +65,7 @@ class Distribution:
     values: tuple = ()
 
     @classmethod
-    def constant(cls, value: float) -> "Distribution":
+    def constant(cls, value: float) -> Distribution:
         """A constant value along the span."""
         return cls("constant", value=float(value))
 

@@ -156,7 +156,7 @@ class _System:
         """Evaluate each lifting-line surface's polars on its own strips."""
         cl, cd, dcl = (np.empty_like(alpha) for _ in range(3))
         k = 0
-        for si, s in enumerate(self.surfaces):
+        for s in self.surfaces:
             if not s.lifting_line:
                 continue
             m = s.n_unknowns

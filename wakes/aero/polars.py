@@ -253,7 +253,7 @@ class SectionPolars:
         self.index = np.asarray(index, dtype=np.int64)
 
     @classmethod
-    def uniform(cls, polar, n: int) -> "SectionPolars":
+    def uniform(cls, polar, n: int) -> SectionPolars:
         """All ``n`` sections use one polar."""
         return cls((polar,), np.zeros(n, dtype=np.int64))
 

@@ -200,7 +200,7 @@ class BladeSymmetry:
         self.wakes = []
         self._moved = 0
 
-    def join(self, wake: "RolledUpWake") -> None:
+    def join(self, wake: RolledUpWake) -> None:
         """Register the next blade's wake (in blade order)."""
         self.wakes.append(wake)
 

@@ -36,8 +36,14 @@ import numpy as np
 from numba import njit, prange
 
 from .gaussian import T_FAR, T_NEAR
-from .pairs import (SINGULAR_LINE_FRACTION_SQ, gaussian_f, gaussian_f_far, particle_f,
-                    segment_geometry, segment_phi)
+from .pairs import (
+    SINGULAR_LINE_FRACTION_SQ,
+    gaussian_f,
+    gaussian_f_far,
+    particle_f,
+    segment_geometry,
+    segment_phi,
+)
 from .smoothing import CORE_SINGULAR, GAUSSIAN, SINGULAR
 
 TARGET_BLOCK = 128

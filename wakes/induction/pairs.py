@@ -20,10 +20,17 @@ import math
 
 from numba import njit
 
-from .smoothing import (CORE_LAMB_OSEEN, CORE_RANKINE, CORE_SCULLY, CORE_SINGULAR,
-                        CORE_VATISTAS2, GAUSSIAN, LAMB_OSEEN_ALPHA, ROSENHEAD_MOORE,
-                        SINGULAR, WINCKELMANS_LEONARD)
 from .gaussian import gaussian_g, gaussian_g_far
+from .smoothing import (
+    CORE_LAMB_OSEEN,
+    CORE_RANKINE,
+    CORE_SCULLY,
+    CORE_SINGULAR,
+    LAMB_OSEEN_ALPHA,
+    ROSENHEAD_MOORE,
+    SINGULAR,
+    WINCKELMANS_LEONARD,
+)
 
 # A target closer than this fraction of a segment's length to a singular
 # segment's line gets nothing from it (the line itself carries no velocity).

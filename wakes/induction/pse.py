@@ -23,7 +23,6 @@ from numba import njit, prange
 
 from .particle_ops import zeta
 
-
 _FASTMATH = {"reassoc", "contract"}
 _BLOCK = 1024
 

@@ -29,7 +29,7 @@ the tables that drive the kernels are built once per order in
 :func:`expansion_tables`.
 """
 
-from functools import lru_cache
+from functools import cache
 from math import comb, factorial
 
 import numpy as np
@@ -45,7 +45,7 @@ def n_terms(p: int) -> int:
     return (p + 1) * (p + 2) * (p + 3) // 6
 
 
-@lru_cache(maxsize=None)
+@cache
 def expansion_tables(p: int) -> dict:
     """Index tables for expansions of order ``p`` (p >= 2).
 
@@ -162,7 +162,7 @@ def _shift_table(mi: np.ndarray, p: int, local: bool) -> tuple:
     return ptr, j.astype(np.int64), lut[d[:, 0], d[:, 1], d[:, 2]], coef
 
 
-@lru_cache(maxsize=None)
+@cache
 def m2l_tables(q: int, harmonic: bool) -> dict:
     """What :func:`m2l` needs for order ``q``: ``deg``, ``rec1``, ``rec2``
     as in :func:`expansion_tables` and one M2L table (``harmonic`` or

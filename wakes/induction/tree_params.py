@@ -18,16 +18,24 @@ from __future__ import annotations
 
 import math
 import os
-from functools import lru_cache
+from functools import cache
 
 import numpy as np
 from scipy.optimize import brentq
 from scipy.special import erfc
 
-from .smoothing import (CORE_LAMB_OSEEN, CORE_RANKINE, CORE_SCULLY, CORE_SINGULAR,
-                        GAUSSIAN, LAMB_OSEEN_ALPHA, ROSENHEAD_MOORE, SINGULAR,
-                        WINCKELMANS_LEONARD)
 from ..errors import InputError
+from .smoothing import (
+    CORE_LAMB_OSEEN,
+    CORE_RANKINE,
+    CORE_SCULLY,
+    CORE_SINGULAR,
+    GAUSSIAN,
+    LAMB_OSEEN_ALPHA,
+    ROSENHEAD_MOORE,
+    SINGULAR,
+    WINCKELMANS_LEONARD,
+)
 from .tree_expansion import expansion_tables, n_terms
 
 # Largest change of a far pair's velocity, relative to the tolerance, allowed
@@ -226,7 +234,7 @@ def _solve_reach(excess, velocity_limit: float, gradient_limit: float) -> float:
     return brentq(worst, lo, hi, xtol=1e-6, rtol=1e-10)
 
 
-@lru_cache(maxsize=None)
+@cache
 def particle_reach(kernel: int, tolerance: float) -> float:
     """rho_far: beyond |r| = rho_far * sigma the singular law may stand in
     for the kernel (0 for the singular kernel itself)."""
@@ -236,7 +244,7 @@ def particle_reach(kernel: int, tolerance: float) -> float:
     return _solve_reach(lambda r: _kernel_excess(kernel, r), share, 10.0 * share)
 
 
-@lru_cache(maxsize=None)
+@cache
 def core_reach(core: int, tolerance: float) -> float:
     """h_far / r_c: beyond this distance from a segment's line the core
     factor may be dropped (0 for the singular core, 1 for Rankine, where the

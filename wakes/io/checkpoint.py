@@ -97,7 +97,7 @@ class LoopState:
         return self.rows[:self.n_rows]
 
     @classmethod
-    def capture(cls, step, time, origin, wakes, gamma, gamma_prev, rows, cache=None) -> "LoopState":
+    def capture(cls, step, time, origin, wakes, gamma, gamma_prev, rows, cache=None) -> LoopState:
         """Record the loop's state without copying arrays.
 
         The loop replaces a wake's arrays instead of writing into them, so
