@@ -39,7 +39,7 @@ TARGET_S = 60.0
 _CHILD = """
 import json, sys, time
 from wakes.case import load_case
-from wakes.simulate import run_case
+from wakes.run import run_case
 method, path = sys.argv[1], sys.argv[2]
 over = {"wake": {"induction": method}}
 run_case(load_case(path, overrides={**over, "bodies": {"rotor": {"revolutions": 0.3}}}))

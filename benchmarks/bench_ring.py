@@ -32,7 +32,7 @@ import tracemalloc
 
 import numba
 import wakes
-from wakes.dynamics import induction_methods
+from wakes.vortex.dynamics import induction_methods
 
 RESULTS = os.path.join(os.path.dirname(os.path.abspath(__file__)), "RESULTS.md")
 

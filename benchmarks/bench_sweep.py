@@ -29,7 +29,7 @@ from pathlib import Path
 import numpy as np
 import wakes
 from wakes.case import parse_case
-from wakes.simulate import run_case
+from wakes.run import run_case
 from wakes.sweep import sweep
 
 HERE = Path(__file__).resolve().parent

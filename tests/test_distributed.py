@@ -3,7 +3,7 @@
 import numpy as np
 import pytest
 import wakes
-from wakes.distributed import induce_on_cluster
+from wakes.cluster import induce_on_cluster
 
 distributed = pytest.importorskip("distributed")
 
@@ -54,7 +54,7 @@ def test_run_sends_the_wake_to_the_workers_once_it_is_large(client):
     """A case run whose wake induction goes to two workers from the third step
     equals the one-process run to round-off, loads and final wake alike."""
     from wakes.case import parse_case
-    from wakes.simulate import run_case
+    from wakes.run import run_case
 
     serial = run_case(parse_case(_small_wing()))
     case = parse_case(_small_wing(min_wake=20))

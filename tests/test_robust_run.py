@@ -15,8 +15,10 @@ import pytest
 import wakes.watchdog as watchdog
 from wakes.case import parse_case
 from wakes.io.checkpoint import list_checkpoints, newest_checkpoint, prepare_resume, read_checkpoint
-from wakes.simulate import run_case
-from wakes.watchdog import EXIT_UNSTABLE, RunControl, UnstableRunError, run_guarded
+from wakes.run import run_case
+from wakes.errors import UnstableRunError
+from wakes.run import run_guarded
+from wakes.watchdog import EXIT_UNSTABLE, RunControl
 
 TINY = """title = "tiny"
 [freestream]
@@ -134,7 +136,7 @@ def test_sigint_mid_run_then_resume_equals_uninterrupted_cli_run(tmp_path):
     that never stopped. The reference and the resume run in this process (same library build
     and thread count as the subprocess), so only the interrupted run pays a process start."""
     from wakes.cli import main
-    from wakes.runfolder import write_run
+    from wakes.run import write_run
 
     case_file = tmp_path / "tiny.toml"
     case_file.write_text(TINY.format(steps=20, every=1))

@@ -5,7 +5,7 @@ import time
 import pytest
 from wakes.case import parse_case, read_toml
 from wakes.errors import CaseError, WakesError
-from wakes.simulate import run_case
+from wakes.run import run_case
 from wakes.sweep import parse_values, parse_vary, sweep
 
 distributed = pytest.importorskip("distributed")

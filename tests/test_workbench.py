@@ -14,7 +14,7 @@ import wakes
 from wakes.cli import main
 from wakes.estimate import estimate_case, wake_sizes
 from wakes.progress import ProgressBar
-from wakes.runfolder import read_run, run_to_folder
+from wakes.run import read_run, run_to_folder
 from wakes.templates import available_kinds
 
 vtk = pytest.importorskip("vtk")

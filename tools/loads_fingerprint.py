@@ -16,12 +16,18 @@ on both sides of a comparison). The hashes cover the tables' CSV text with
 every float written with 17 significant digits (round-trip exact), so they
 change with the last bit of any value. The timing column ``wall_time_s`` is
 not in the tables.
+
+Each case runs in a fresh Python process: within one process a run's loads
+may depend on the cases run before it (measured on the rotor cases: the
+same case gave other hashes after other cases than alone), which would
+make the comparison depend on the order of the list.
 """
 
 from __future__ import annotations
 
 import argparse
 import hashlib
+import subprocess
 import sys
 from pathlib import Path
 
@@ -57,8 +63,17 @@ def main(argv=None) -> int:
                         help="cap on the steps of each case (default 0: no cap)")
     parser.add_argument("--dump", type=Path, default=None,
                         help="also write each case's loads and sections CSV into this folder")
+    parser.add_argument("--one", type=Path, default=None,
+                        help="fingerprint this case file only, in this process")
     args = parser.parse_args(argv)
-    for path in case_files():
+    if args.one is None:
+        for path in case_files():
+            cmd = [sys.executable, __file__, "--one", str(path), "--max-steps", str(args.max_steps)]
+            if args.dump is not None:
+                cmd += ["--dump", str(args.dump)]
+            subprocess.run(cmd, check=True)
+        return 0
+    for path in [args.one.resolve()]:
         line, run = fingerprint(path, args.max_steps)
         print(line, flush=True)
         if args.dump is not None:

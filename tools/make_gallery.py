@@ -16,7 +16,7 @@ import shutil
 import tempfile
 from pathlib import Path
 
-from wakes.runfolder import run_to_folder
+from wakes.run import run_to_folder
 
 ROOT = Path(__file__).resolve().parents[1]
 GALLERY = ROOT / "docs" / "gallery"

@@ -12,16 +12,16 @@ import os as _os
 _os.environ.setdefault("OMP_WAIT_POLICY", "PASSIVE")
 
 from . import exact
+from ._version import __version__
 from .case import Case, load_case, parse_case
-from .elements import Filaments, Particles
+from .cluster import induce
 from .errors import CaseError, InputError, NumericalError, WakesError
-from .flow import ParticleFlow
-from .induction.api import induce
-from .initial import lamb_oseen_ring, vortex_ring
-from .simulate import Run, run_case
+from .induction.elements import Filaments, Particles
+from .run import run_case
+from .simulate import Run
 from .sweep import sweep
-
-__version__ = "0.1.0"
+from .vortex.flow import ParticleFlow
+from .vortex.initial import lamb_oseen_ring, vortex_ring
 
 __all__ = [
     "CaseError", "Filaments", "InputError", "NumericalError", "Particles",

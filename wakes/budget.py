@@ -10,17 +10,14 @@ else the memory the system still has available (``MemAvailable`` of
 from __future__ import annotations
 
 import math
-import os
 import re
 
-from .errors import WakesError
+from ._system import available_bytes
+from .errors import MemoryBudgetError, WakesError
+from .estimate import estimate_case, peak_bytes  # noqa: F401  (peak_bytes: re-exported)
 
 _SIZE = re.compile(r"^\s*(\d+(?:\.\d*)?|\.\d+)\s*([kmgt]?)i?b?\s*$", re.IGNORECASE)
 _UNITS = {"": 1, "k": 2 ** 10, "m": 2 ** 20, "g": 2 ** 30, "t": 2 ** 40}
-
-
-class MemoryBudgetError(WakesError):
-    """A run would need more memory than it may use."""
 
 
 def parse_size(text: str) -> int:
@@ -37,32 +34,6 @@ def parse_size(text: str) -> int:
         raise WakesError(f"--max-memory must be a positive size such as 8G, 512M or 1.5GiB; "
                          f"got {text!r}")
     return int(value)
-
-
-def available_bytes() -> int | None:
-    """Memory the system can still give this process [B] (MemAvailable), or None if unknown."""
-    try:
-        with open("/proc/meminfo", encoding="ascii") as fh:
-            for line in fh:
-                if line.startswith("MemAvailable:"):
-                    return int(line.split()[1]) * 1024
-    except (OSError, ValueError, IndexError):
-        pass
-    try:
-        return os.sysconf("SC_AVPHYS_PAGES") * os.sysconf("SC_PAGE_SIZE")
-    except (ValueError, OSError, AttributeError):
-        return None
-
-
-def peak_bytes(segments: int, particles: int, unknowns: int) -> int:
-    """Peak memory [B] of a step with this many wake segments, particles and unknowns.
-
-    The same accounting as :func:`wakes.estimate.estimate_case`.
-    """
-    from .estimate import BASE_MEMORY_MB, BYTES_PER_PARTICLE, BYTES_PER_SEGMENT
-
-    return int(BASE_MEMORY_MB * 1e6 + segments * BYTES_PER_SEGMENT + particles * BYTES_PER_PARTICLE
-               + 3 * 8 * 2 * unknowns ** 2)
 
 
 def budget_bytes(max_memory: int | None) -> tuple[int | None, str]:
@@ -91,8 +62,6 @@ def check_budget(case, max_memory: int | None = None):
     MemoryBudgetError
         Naming the estimate, the limit and the remedies.
     """
-    from .estimate import estimate_case
-
     est = estimate_case(case, pair_rate=1.0)   # the run time is not wanted: skip measuring it
     need = int(est.memory_mb * 1e6)
     limit, where = budget_bytes(max_memory)

@@ -38,7 +38,21 @@ import argparse
 import sys
 from pathlib import Path
 
-from .errors import WakesError
+import pandas as pd
+
+from .budget import parse_size
+from .case import load_case
+from .errors import MemoryBudgetError, WakesError
+from .estimate import estimate_case
+from .io.checkpoint import prepare_resume
+from .plots import plot_run
+from .probe import probe_plane, probe_points
+from .progress import ProgressBar
+from .run import check_new_folder, result_table, run_guarded, write_run
+from .sweep import parse_vary, sweep
+from .templates import new_case
+from .verify import run_checks
+from .watchdog import EXIT_MEMORY, exit_status
 
 EXIT_USER_ERROR = 2
 
@@ -136,13 +150,6 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def _run(args) -> int:
-    from .budget import parse_size
-    from .case import load_case
-    from .io.checkpoint import prepare_resume
-    from .progress import ProgressBar
-    from .runfolder import check_new_folder, result_table, write_run
-    from .watchdog import exit_status, run_guarded
-
     max_memory = parse_size(args.max_memory) if args.max_memory is not None else None
     if args.resume is not None:
         if args.case is not None or args.out is not None:
@@ -176,9 +183,6 @@ def _run(args) -> int:
 
 
 def _check(args) -> int:
-    from .case import load_case
-    from .estimate import estimate_case
-
     case = load_case(args.case)
     if not args.quiet:
         print(case.to_toml(f"Resolved case of {args.case}: every default filled in."))
@@ -191,16 +195,12 @@ def _check(args) -> int:
 
 
 def _new(args) -> int:
-    from .templates import new_case
-
     path = new_case(args.kind, args.file, overwrite=args.overwrite)
     print(f"wrote {path}; check it with: wakes check {path}")
     return 0
 
 
 def _probe(args) -> int:
-    from .probe import probe_plane, probe_points
-
     if args.points is not None:
         if args.extent is not None:
             raise WakesError("--extent applies to --plane only")
@@ -220,8 +220,6 @@ def _probe(args) -> int:
 
 
 def _plot(args) -> int:
-    from .plots import plot_run
-
     paths = plot_run(args.run_dir, out=args.out, overwrite=args.overwrite)
     for p in paths:
         print(p)
@@ -229,9 +227,7 @@ def _plot(args) -> int:
 
 
 def _verify(args) -> int:
-    import pandas as pd
 
-    from .verify import run_checks
 
     table = run_checks()
     shown = table.assign(error=table["error"].map(lambda e: f"{e:.1e}"),
@@ -246,8 +242,6 @@ def _verify(args) -> int:
 
 
 def _sweep(args) -> int:
-    from .sweep import parse_vary, sweep
-
     vary = dict(parse_vary(v) for v in args.vary)
     if args.workers is not None and args.workers < 1:
         raise WakesError(f"--workers must be at least 1; got {args.workers}")
@@ -269,8 +263,6 @@ def main(argv=None) -> int:
     args = parser.parse_args(argv)
     if args.command == "run" and args.resume is None and (args.case is None or args.out is None):
         parser.error("wakes run needs CASE and --out DIR, or --resume RUN_DIR")
-    from .budget import MemoryBudgetError
-    from .watchdog import EXIT_MEMORY
 
     try:
         if args.command == "run":

@@ -24,3 +24,32 @@ class NumericalError(WakesError):
     Raised with the step, the time and the likely cause; the last good
     state is kept by whoever raised it.
     """
+
+
+class MemoryBudgetError(WakesError):
+    """A run would need more memory than it may use."""
+
+
+class UnstableRunError(NumericalError):
+    """The run went unstable; the message names step, time, element, cause and remedy."""
+
+
+class PolarRangeError(InputError):
+    """An angle of attack fell outside a polar table.
+
+    Attributes
+    ----------
+    index : int
+        Index of the first offending section in the evaluated array.
+    alpha_deg : float
+        The offending angle [deg].
+    """
+
+    def __init__(self, message: str, index: int, alpha_deg: float):
+        super().__init__(message)
+        self.index = index
+        self.alpha_deg = alpha_deg
+
+
+class CheckpointError(WakesError):
+    """A run folder holds no checkpoint, or one that cannot be read."""

@@ -17,7 +17,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .aero.bodies import BODY_MODELS
+from .aero.rotor import blade_turn_deg
 from .case import Case
+from .induction.api import induce
+from .induction.elements import Filaments
 
 # Bytes held per wake element during a step: a filament segment keeps two
 # node coordinates, an index pair, circulation and core (about 80 B) and the
@@ -29,6 +33,25 @@ BYTES_PER_SEGMENT = 2 * 120
 BYTES_PER_PARTICLE = 2 * 200
 BASE_MEMORY_MB = 150.0    # interpreter, numpy, numba and pandas at start (measured: 120-160 MB)
 STEP_OVERHEAD_S = 0.005   # per step and surface: solve, loads, bookkeeping (measured 3-15 ms here)
+
+
+def influence_matrix_bytes(unknowns: int) -> int:
+    """Memory [B] of the influence matrices of ``unknowns`` bound circulations.
+
+    Three float64 components for every (point, unknown) pair, at the
+    evaluation points and again at the load points (as many of each as
+    there are unknowns).
+    """
+    return 3 * 8 * 2 * unknowns ** 2
+
+
+def peak_bytes(segments: int, particles: int, unknowns: int) -> int:
+    """Peak memory [B] of a step with this many wake segments, particles and unknowns.
+
+    The same accounting as :func:`estimate_case`.
+    """
+    return int(BASE_MEMORY_MB * 1e6 + segments * BYTES_PER_SEGMENT + particles * BYTES_PER_PARTICLE
+               + influence_matrix_bytes(unknowns))
 
 
 @dataclass(frozen=True)
@@ -122,7 +145,6 @@ def wake_sizes(case: Case) -> tuple[np.ndarray, np.ndarray]:
     >>> seg, par = wake_sizes(load_case("cases/survey-glider.toml"))  # doctest: +SKIP
     >>> int(seg[-1])                                                   # doctest: +SKIP
     """
-    from .aero.bodies import BODY_MODELS
 
     steps = case.time.steps
     seg = np.zeros(steps)
@@ -135,7 +157,7 @@ def wake_sizes(case: Case) -> tuple[np.ndarray, np.ndarray]:
             rows = _rows_kept(spec, case, steps)
             rollup = getattr(spec, "rollup_age", float("inf"))
             if math.isfinite(rollup):      # rotor blade: sheet rows, then b trailers per row
-                per_step = 6.0 * spec.rpm * case.time.dt
+                per_step = blade_turn_deg(spec.rpm, case.time.dt)
                 sheet = np.minimum(rows, max(1, math.ceil(rollup / per_step)) + 1)
                 far = rows - sheet
                 b = spec.inboard_trailers + 1
@@ -156,8 +178,6 @@ def measure_pair_rate(n: int = 600) -> float:
     Times ``n`` filament segments acting on ``n`` targets after one warm-up
     call (which also loads or compiles the kernel).
     """
-    from .elements import Filaments
-    from .induction.api import induce
 
     rng = np.random.default_rng(7)
     nodes = rng.random((n + 1, 3))
@@ -194,16 +214,14 @@ def estimate_case(case: Case, *, pair_rate: float | None = None) -> Estimate:
     >>> est = estimate_case(load_case("cases/survey-glider.toml"))  # doctest: +SKIP
     >>> est.final_segments, est.run_time_s                           # doctest: +SKIP
     """
-    from .aero.bodies import BODY_MODELS
 
     seg, par = wake_sizes(case)
     surfaces = []
     for spec in case.bodies:
         surfaces += BODY_MODELS[spec.type](spec, case).surfaces(0.0)
     unknowns = sum(s.n_unknowns for s in surfaces)
-    eval_pts = unknowns
     nodes = seg  # a lattice has about one node per segment pair; one target per segment is an upper bound
-    targets = eval_pts + (nodes + par if case.wake.motion == "free" else 0)
+    targets = unknowns + (nodes + par if case.wake.motion == "free" else 0)
     # per step: the surfaces see the wake, and a free wake sees the wake and the surfaces
     pairs = float(np.sum(targets * (seg + par + unknowns)))
     pairs += float(np.sum(par * (seg + par))) * 3.0  # velocity gradient for stretching: ~3x the work
@@ -212,7 +230,7 @@ def estimate_case(case: Case, *, pair_rate: float | None = None) -> Estimate:
     peak = int(total.max()) if len(total) else 0
     memory = (BASE_MEMORY_MB + (int(seg.max()) * BYTES_PER_SEGMENT
                                 + int(par.max()) * BYTES_PER_PARTICLE) / 1e6
-              + 3 * 8 * eval_pts * unknowns * 2 / 1e6)  # influence matrices (eval and load points)
+              + influence_matrix_bytes(unknowns) / 1e6)
     return Estimate(steps=case.time.steps, dt_s=case.time.dt, surfaces=len(surfaces),
                     bound_unknowns=unknowns, final_segments=int(seg[-1]), final_particles=int(par[-1]),
                     peak_elements=peak, memory_mb=memory, pair_evaluations=pairs,

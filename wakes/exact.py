@@ -33,11 +33,11 @@ import math
 from types import MappingProxyType
 
 import numpy as np
-from scipy.optimize import brentq
 from scipy.special import elliprd, elliprf
 
 from ._validate import as_float_array, choice, positive_scalar
 from .errors import InputError
+from .induction.smoothing import LAMB_OSEEN_ALPHA
 
 __all__ = [
     "BETZ_LIMIT", "LAMB_OSEEN_ALPHA", "PARTICLE_RING_CONSTANTS", "RING_CORE_CONSTANTS",
@@ -58,14 +58,8 @@ _ON_LINE_FRACTION = 1e-12
 BETZ_LIMIT = 16.0 / 27.0
 
 
-def _lamb_oseen_alpha() -> float:
-    """Root of e^a = 1 + 2a, a > 0: where d u_theta / dr = 0 in x = r^2/(4 nu t)."""
-    return brentq(lambda a: math.expm1(a) - 2.0 * a, 1.0, 2.0, xtol=1e-15)
-
-
-# Lamb-Oseen peak-velocity constant: the swirl peaks at r^2 = alpha * 4 nu t
-# (1.25643 in Devenport et al. 1996, J. Fluid Mech. 312; solved here).
-LAMB_OSEEN_ALPHA = _lamb_oseen_alpha()
+# Lamb-Oseen peak-velocity constant, the root of e^a = 1 + 2a (where d u_theta / dr = 0
+# in x = r^2/(4 nu t)): the engine's one value (wakes.induction.smoothing).
 
 _EULER_GAMMA = float(np.euler_gamma)
 _LN2 = math.log(2.0)

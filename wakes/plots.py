@@ -22,6 +22,7 @@ from pathlib import Path
 import numpy as np
 
 from .errors import InputError
+from .io.runfolder import read_run
 
 # Our palette: ink for text and axes, a deep teal for the first series,
 # then ochre, plum and slate; the wake colour map runs light to dark.
@@ -45,16 +46,16 @@ HISTORY = (("CL", "lift coefficient CL [-]"), ("CDi", "induced drag coefficient 
 
 
 def _look():
-    import matplotlib
+    import matplotlib  # optional heavy library: loaded only when drawing
     matplotlib.use("Agg", force=False)
-    from cycler import cycler
+    from cycler import cycler  # comes with matplotlib
     rc = dict(LOOK)
     rc["axes.prop_cycle"] = cycler(color=PALETTE)
     return matplotlib.rc_context(rc)
 
 
 def _save(fig, path: Path) -> Path:
-    import matplotlib.pyplot as plt
+    import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
     fig.savefig(path, bbox_inches="tight")
     plt.close(fig)
     return path
@@ -62,7 +63,7 @@ def _save(fig, path: Path) -> Path:
 
 def plot_loads(run, path) -> Path | None:
     """Load history of every body: two main quantities against time; None if there is none."""
-    import matplotlib.pyplot as plt
+    import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
 
     loads = run.loads
     bodies = list(dict.fromkeys(loads["body"])) if "body" in loads else []
@@ -87,7 +88,7 @@ def plot_loads(run, path) -> Path | None:
 
 def plot_sections(run, folder) -> list[Path]:
     """Span loading of wings and radial loading of rotors at the last step."""
-    import matplotlib.pyplot as plt
+    import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
 
     s = run.sections
     out = []
@@ -122,9 +123,9 @@ def plot_sections(run, folder) -> list[Path]:
 
 def plot_wake(run, path) -> Path | None:
     """3-D view of the final wake: filaments coloured by |Γ|, particles by |α|; None if no wake."""
-    import matplotlib.pyplot as plt
-    from matplotlib import colors
-    from mpl_toolkits.mplot3d.art3d import Line3DCollection
+    import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
+    from matplotlib import colors  # optional heavy library: loaded only when drawing
+    from mpl_toolkits.mplot3d.art3d import Line3DCollection  # comes with matplotlib
 
     seg, par = run.wake_segments, run.wake_particles
     if not len(seg) and not len(par):
@@ -202,7 +203,7 @@ def tip_vortex_points(segments, body: dict) -> tuple[np.ndarray, np.ndarray]:
 def plot_tip_vortex(run, path) -> Path | None:
     """Tip-vortex path of every rotor: radius and axial distance of the
     filaments :func:`tip_vortex_points` picks. None if the run has no rotor wake."""
-    import matplotlib.pyplot as plt
+    import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
 
     seg = run.wake_segments
     rotors = {name: b for name, b in run.case.get("bodies", {}).items() if b.get("type") == "rotor"}
@@ -258,8 +259,6 @@ def plot_run(run_dir: str | os.PathLike, *, out: str | os.PathLike | None = None
     >>> [p.name for p in paths]                           # doctest: +SKIP
     ['loads.png', 'span_loading.png', 'wake_3d.png']
     """
-    from .runfolder import read_run
-
     run = read_run(run_dir)
     folder = Path(out) if out is not None else run.path / "plots"
     if folder.exists() and not folder.is_dir():

@@ -21,8 +21,12 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from .case import FreestreamSpec
 from .errors import InputError
-from .io.tables import read_numeric_table
+from .induction.api import induce
+from .io.runfolder import RunFolder, read_run
+from .io.tables import read_numeric_table, write_table
+from .io.vtk_grid import write_structured_grid
 
 AXES = "xyz"
 DEFAULT_GRID = (41, 41)
@@ -31,8 +35,6 @@ _PLANE = re.compile(r"^\s*([xyzXYZ])\s*=\s*([-+0-9.eE]+)\s*$")
 
 
 def _freestream(case: dict) -> np.ndarray:
-    from .case import FreestreamSpec
-
     fs = dict(case.get("freestream", {}))
     if fs.get("velocity") is not None:
         fs["velocity"] = tuple(fs["velocity"])
@@ -45,7 +47,7 @@ def velocity_at(run, points) -> pd.DataFrame:
     Parameters
     ----------
     run : RunFolder or path-like
-        A run folder (:func:`wakes.runfolder.read_run`).
+        A run folder (:func:`wakes.io.runfolder.read_run`).
     points : array_like, shape (M, 3)
         Points in the global frame [m].
 
@@ -64,8 +66,6 @@ def velocity_at(run, points) -> pd.DataFrame:
     >>> table = velocity_at("glider-run", [[2.0, 0.0, 0.0]])  # doctest: +SKIP
     >>> table["w_ind_m_s"].iloc[0]                           # doctest: +SKIP
     """
-    from .induction.api import induce
-    from .runfolder import RunFolder, read_run
 
     if not isinstance(run, RunFolder):
         run = read_run(run)
@@ -119,13 +119,10 @@ def probe_points(run_dir: str | os.PathLike, points_file: str | os.PathLike, *,
     --------
     >>> table = probe_points("glider-run", "points.csv")   # doctest: +SKIP
     """
-    from .runfolder import read_run
-
     run = read_run(run_dir)
     cols = read_numeric_table(points_file, ("x_m", "y_m", "z_m"), what="points file")
     target = _check_out(Path(out) if out is not None else run.path / "probe_points.csv", overwrite)
     table = velocity_at(run, np.stack([cols["x_m"], cols["y_m"], cols["z_m"]], axis=1))
-    from .io.tables import write_table
     write_table(table, target)
     return table
 
@@ -203,9 +200,6 @@ def probe_plane(run_dir: str | os.PathLike, plane: str, *, extent=None, grid=DEF
     --------
     >>> table = probe_plane("glider-run", "x=3", extent="-2:2,-1:1", grid=(21, 11))  # doctest: +SKIP
     """
-    from .io.tables import write_table
-    from .io.vtk_grid import write_structured_grid
-    from .runfolder import read_run
 
     normal, value = parse_plane(plane)
     na, nb = (int(g) for g in grid)

@@ -1,65 +1,42 @@
-"""A one-line progress bar for runs on a terminal.
+"""The progress bar of a run, drawn by tqdm.
 
-The bar shows the step, the simulated time, the live size of the wake
-(filament segments and particles), the rate in steps per second and the
-time left, redrawn in place with a carriage return. It stays silent when the stream is not a terminal (a log file, a
-pipe, a batch job) or when the user asked for quiet, so logs hold no
-control characters.
+The bar shows the steps done, the simulated time, the live size of the
+wake (filament segments and particles), the rate in steps per second and
+the time left. tqdm draws it in place on a terminal and as a widget in a
+notebook (``tqdm.auto``), and stays silent when the stream is not a
+terminal (a log file, a pipe, a batch job) or when the user asked for
+quiet, so logs hold no control characters.
 """
 
 from __future__ import annotations
 
 import sys
-import time
 from typing import TextIO
+
+from tqdm.auto import tqdm
 
 BAR_WIDTH = 24          # characters of the bar itself
 MIN_REDRAW_S = 0.1      # at most ten redraws a second: a terminal is slow at hundreds
+BAR_FORMAT = ("[{bar:" + str(BAR_WIDTH) + "}] {n_fmt}/{total_fmt}  {postfix}  "
+              "{rate_fmt}  {remaining} left")
 
 
-def _clock(seconds: float) -> str:
-    """``h:mm:ss`` or ``m:ss`` for a duration in seconds."""
-    s = int(round(max(seconds, 0.0)))
-    h, rest = divmod(s, 3600)
-    m, s = divmod(rest, 60)
-    return f"{h}:{m:02d}:{s:02d}" if h else f"{m}:{s:02d}"
-
-
-def progress_line(step: int, steps: int, sim_time_s: float, wake: tuple[int, int] | None,
-                  rate: float, left_s: float) -> str:
-    """The text of the bar after ``step`` of ``steps`` steps.
-
-    Parameters
-    ----------
-    step, steps : int
-        Steps done and steps in the run.
-    sim_time_s : float
-        Simulated time reached [s].
-    wake : (int, int) or None
-        Filament segments and particles in the wake now (None: not shown).
-    rate : float
-        Steps per second of wall time (nan: not known yet).
-    left_s : float
-        Wall time left [s] (nan: not known yet).
+def wake_text(sim_time_s: float, wake: tuple[int, int] | None) -> str:
+    """The simulated time and the wake size, as the bar shows them.
 
     Examples
     --------
-    >>> progress_line(5, 10, 0.05, (120, 0), 2.5, 2.0)
-    '[############------------]  5/10  t = 0.05 s  wake 120 segments 0 particles  2.50 steps/s  0:02 left'
+    >>> wake_text(0.05, (1234, 0))
+    't = 0.05 s  wake 1,234 segments 0 particles'
     """
-    frac = step / steps if steps else 1.0
-    filled = int(round(BAR_WIDTH * frac))
-    parts = [f"[{'#' * filled}{'-' * (BAR_WIDTH - filled)}] {step:>{len(str(steps))}}/{steps}",
-             f"t = {sim_time_s:.4g} s"]
+    text = f"t = {sim_time_s:.4g} s"
     if wake is not None:
-        parts.append(f"wake {wake[0]:,} segments {wake[1]:,} particles")
-    parts.append(f"{rate:.2f} steps/s" if rate == rate else "- steps/s")
-    parts.append(f"{_clock(left_s)} left" if left_s == left_s else "-:-- left")
-    return "  ".join(parts)
+        text += f"  wake {wake[0]:,} segments {wake[1]:,} particles"
+    return text
 
 
 class ProgressBar:
-    """Callable progress bar for :func:`wakes.simulate.run_case`.
+    """Callable progress bar for :func:`wakes.run.run_case`.
 
     Shows the live wake size handed over by the run (filament segments and
     particles), the simulated time, and the rate and time left measured
@@ -93,26 +70,18 @@ class ProgressBar:
         self.stream = sys.stderr if stream is None else stream
         isatty = getattr(self.stream, "isatty", None)
         self.enabled = not quiet and bool(isatty and isatty())
-        self._start = time.perf_counter()
-        self._first: int | None = None
-        self._last = -1.0
-        self._width = 0
+        self._bar = None
 
     def __call__(self, step: int, steps: int, wake: tuple[int, int] | None = None) -> None:
         if not self.enabled:
             return
-        now = time.perf_counter()
-        if self._first is None:
-            self._first = step - 1   # steps done before this bar started
-        if step < steps and now - self._last < MIN_REDRAW_S:
-            return
-        self._last = now
-        elapsed = now - self._start
-        rate = (step - self._first) / elapsed if elapsed > 0 else float("nan")
-        left = (steps - step) / rate if rate == rate and rate > 0 else float("nan")
+        if self._bar is None:
+            # steps done before this bar started count as done, not as this bar's rate
+            self._bar = tqdm(total=steps, initial=step - 1, file=self.stream, unit=" steps",
+                             bar_format=BAR_FORMAT, mininterval=MIN_REDRAW_S, dynamic_ncols=False,
+                             leave=True)
         sim_time = self.origin[1] + (step - self.origin[0]) * self.dt
-        line = progress_line(step, steps, sim_time, wake, rate, left)
-        pad = max(self._width - len(line), 0)
-        self._width = len(line)
-        self.stream.write("\r" + line + " " * pad + ("\n" if step >= steps else ""))
-        self.stream.flush()
+        self._bar.set_postfix_str(wake_text(sim_time, wake), refresh=False)
+        self._bar.update(step - self._bar.n)
+        if step >= steps:
+            self._bar.close()

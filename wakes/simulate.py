@@ -25,6 +25,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from ._version import __version__
 from .aero.bodies import BODY_MODELS
 from .aero.ground import with_ground
 from .aero.influence_cache import RigidInfluenceCache
@@ -32,21 +33,16 @@ from .aero.lifting_line import LinearCache, SolverSettings, solve_circulation
 from .aero.loads import strip_loads, trefftz_induced_drag
 from .aero.vortex_lattice import surface_filaments
 from .aero.wake import WakeSettings
+from .budget import MemoryBudgetError
 from .case import Case
-from .distributed import WakeCluster
-from .dynamics import stretching_rate
-from .elements import Particles
 from .errors import NumericalError, WakesError
 from .induction.api import induce
+from .induction.elements import Particles
 from .io.atomic import write_text
 from .io.checkpoint import LoopState
 from .io.tables import write_json, write_table
+from .vortex.dynamics import stretching_rate
 from .watchdog import RunControl, Watchdog
-
-
-def _version() -> str:
-    from . import __version__
-    return __version__
 
 
 def _revision() -> str | None:
@@ -135,7 +131,7 @@ class Run:
         write_table(self.sections, paths[1])
         write_json(self.summary, paths[2])
         revision = self.summary["run"].get("revision")
-        header = (f"Resolved case written by wakes {_version()}"
+        header = (f"Resolved case written by wakes {__version__}"
                   + (f" (revision {revision})" if revision else "")
                   + f"; every default filled in.\nSource: {self.case.source}")
         write_text(paths[3], self.case.to_toml(header))
@@ -150,21 +146,6 @@ class Run:
             write_table(table, out / name)
             paths.append(out / name)
         return paths
-
-    def short_report(self) -> str:
-        """A few lines summarising each body, for the console."""
-        lines = [f"{self.case.title}: {self.case.time.steps} steps of {self.case.time.dt:.4g} s "
-                 f"in {self.wall_time_s:.1f} s"]
-        for name, b in self.summary["bodies"].items():
-            if "CL" not in b:  # rotors: every figure of the summary
-                lines.append(f"  {name}: " + "  ".join(f"{k} = {v:.5g}" for k, v in b.items()))
-                continue
-            lines.append(f"  {name}: CL = {b['CL']:.4f}  CDi = {b['CDi']:.5f}  "
-                         f"e = {b['span_efficiency']:.4f}  lift = {b['lift_N']:.4g} N  "
-                         f"induced drag = {b['induced_drag_N']:.4g} N  "
-                         f"(Trefftz {100 * b['trefftz_difference']:+.2f} %)  "
-                         f"profile drag = {b['profile_drag_N']:.4g} N")
-        return "\n".join(lines)
 
 
 def wake_tables(wake: dict) -> tuple[pd.DataFrame, pd.DataFrame]:
@@ -200,144 +181,178 @@ def wake_settings(case: Case) -> WakeSettings:
                         cores_at_surfaces=w.cores_at_surfaces)
 
 
-def run_case(case: Case, *, progress=None, control: RunControl | None = None,
-             resume: LoopState | None = None, client=None, use_cluster: bool = True) -> Run:
-    """Run a resolved case.
+class TimeLoop:
+    """The state of one run of a case and the step that advances it.
+
+    Built from a resolved case; owns the bodies, their wakes, the bound
+    circulation of the last two steps, the rows of the loads table done so
+    far and the caches of influence matrices. :meth:`step` runs one time
+    step at the loop's own time; :meth:`run` drives the steps, calling the
+    ``control`` (:class:`wakes.watchdog.RunControl`) for checkpoints,
+    snapshots and stop requests and the :class:`wakes.watchdog.Watchdog`
+    for every check, and returns a :class:`Run`.
 
     Parameters
     ----------
     case : Case
-        From :func:`wakes.case.load_case`.
-    progress : callable, optional
-        Called after every step as ``progress(step, steps, wake)`` with the
-        steps done, the steps of the run and ``wake`` = (filament segments,
-        particles) in the wake of the step just done; a callable taking two
-        arguments is called as ``progress(step, steps)``.
+        The resolved case.
     control : wakes.watchdog.RunControl, optional
-        Checkpoints, stop requests (signals) and what a failed check does;
-        default: no checkpoints, a failed check raises.
-    resume : wakes.io.checkpoint.LoopState, optional
-        Go on from this state (read from a checkpoint) instead of step 0.
-    client : dask.distributed.Client, optional
-        Workers that share the wake's induction once the wake holds
-        ``[cluster] min_wake`` elements; by default the case's ``[cluster]
-        scheduler``, if any.
-    use_cluster : bool
-        False runs in this process only, whatever the case says (a sweep's
-        points, which already run on the workers).
-
-    Returns
-    -------
-    Run
-        Loads per step, final sections, summary and final wake. Nothing is
-        written; call :meth:`Run.write`.
-
-    With ``control.keep_partial`` a failed check or a stop request ends
-    the loop early instead: the returned run holds the steps done, its
-    ``status`` ("interrupted", "unstable", "memory" or "failed") and
-    ``message`` say why, and ``resume_state`` is the state to go on from.
-
-    Raises
-    ------
-    wakes.errors.NumericalError
-        If a circulation solve does not converge or the wake blows up
-        (:class:`wakes.watchdog.UnstableRunError`).
-    wakes.budget.MemoryBudgetError
-        If the wake outgrows the memory budget.
-    wakes.aero.polars.PolarRangeError
-        If a section leaves its polar table.
-
-    Examples
-    --------
-    >>> from wakes.case import load_case
-    >>> from wakes.simulate import run_case
-    >>> run = run_case(load_case("cases/validation/elliptic-wing.toml"))  # doctest: +SKIP
-    >>> run.summary["bodies"]["wing"]["CL"]                                # doctest: +SKIP
+        Default: no checkpoints, a failed check raises.
+    cluster : object, optional
+        Something with ``inducer(wake_elements)`` returning the function
+        that computes induced velocities for a wake of that size (keyword
+        arguments of :func:`wakes.induce`), e.g.
+        :class:`wakes.cluster.WakeCluster`; default: this process only.
     """
-    started = _time.perf_counter()
-    bodies = [BODY_MODELS[spec.type](spec, case) for spec in case.bodies]
-    settings = wake_settings(case)
-    solver = SolverSettings(case.solver.tolerance, case.solver.max_iterations, case.solver.relaxation)
-    v_inf = case.freestream.vector()
-    rho, dt, steps = case.fluid.density, case.time.dt, case.time.steps
-    method = {"method": case.wake.induction, "tolerance": case.wake.induction_tolerance}
-    cluster = WakeCluster.open(case.cluster, client) if use_cluster else None
-    ground = case.ground.plane()
-    cache = RigidInfluenceCache(ground)
-    linear = LinearCache()
 
-    t = 0.0
-    layout = [(b, b.surfaces(t)) for b in bodies]
-    wakes = [b.new_wake(s, t, settings) for b, ss in layout for s in ss]
-    gamma = np.zeros(sum(s.n_unknowns for _, ss in layout for s in ss))
-    gamma_prev = None
-    rows = []
-    strips = []
-    control = control if control is not None else RunControl()
-    report = _progress_reporter(progress)
-    watch = Watchdog.for_surfaces(v_inf, [s for _, ss in layout for s in ss], control.max_memory)
-    origin, first = (0, 0.0), 0
-    if resume is not None:
-        resume.restore(wakes, cache)
-        origin, first = resume.origin, resume.step
-        gamma, gamma_prev, rows = resume.gamma, resume.gamma_prev, list(resume.done_rows())
-    status, message, good, wake_time = "finished", "", None, None
-    start = start_strips = previous = previous_strips = None
-    try:
-        for step in range(first, steps):
-            t = origin[1] + (step - origin[0]) * dt
-            previous, previous_strips = start, start_strips
-            start, start_strips = LoopState.capture(step, t, origin, wakes, gamma, gamma_prev,
-                                                    rows, cache), strips
-            good, done_strips = start, start_strips
-            watch.check_memory(step, t, wakes)
-            if control.snapshot_due(step, steps):
-                control.snapshot(step, t, [e for w in wakes for e in w.sources(t)])
-            step_method = method if cluster is None else cluster.options(method, _wake_size(rows))
-            strips, gamma = _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear,
-                                  solver, settings, v_inf, dt, rho, steps, step_method, watch, ground)
-            gamma_prev = gamma
-            if progress is not None:
-                report(step + 1, steps, (rows[-1]["wake_segments"], rows[-1]["wake_particles"]))
-            done = step + 1
-            if done < steps and (control.stop_requested or control.checkpoint_due(done)):
-                good = LoopState.capture(done, origin[1] + (done - origin[0]) * dt, origin, wakes,
-                                         gamma, gamma_prev, rows, cache)
-                if control.save is not None:
-                    control.save(good)
-                if control.stop_requested:
-                    status, message = "interrupted", f"stopped after step {step} (t = {t:.6g} s)"
-                    wake_time = good.time
-                    break
-    except WakesError as exc:
-        from .budget import MemoryBudgetError
-        status = ("unstable" if isinstance(exc, NumericalError)
-                  else "memory" if isinstance(exc, MemoryBudgetError) else "failed")
-        if not control.keep_partial or good is None or (status == "failed" and not good.n_rows):
-            raise  # nothing done worth keeping
-        message = str(exc)
-        if status == "unstable" and previous is not None and good is start:
-            # The failing step's numbers came from its starting state, the product of the
-            # previous step's move: go back to the start of that step, whose checks passed.
-            good, done_strips = previous, previous_strips
-            message += (f"; the last good state is the start of step {good.step} "
-                        f"(t = {good.time:.6g} s)")
-        good.restore(wakes)
-        rows, strips, wake_time = good.done_rows(), done_strips, good.time
-        t = rows[-1]["time_s"] if rows else good.time
-    finally:
-        if cluster is not None:
-            cluster.close()
-    steps_done = len(rows) // max(len(bodies), 1)
-    layout = [(b, b.surfaces(t)) for b in bodies]
-    surfaces = [s for _, ss in layout for s in ss]
-    run = _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t,
-                    t if wake_time is None else wake_time, started, steps_done)
-    run.status, run.message = status, message
-    run.wake_step = steps - 1 if status == "finished" else good.step
-    run.wake_time_s = t if wake_time is None else wake_time
-    run.resume_state = good if status != "finished" else None
-    return run
+    def __init__(self, case: Case, control: RunControl | None = None, cluster=None):
+        self.case = case
+        self.bodies = [BODY_MODELS[spec.type](spec, case) for spec in case.bodies]
+        self.settings = wake_settings(case)
+        self.solver = SolverSettings(case.solver.tolerance, case.solver.max_iterations,
+                                     case.solver.relaxation)
+        self.v_inf = case.freestream.vector()
+        self.rho, self.dt, self.steps = case.fluid.density, case.time.dt, case.time.steps
+        self.method = {"method": case.wake.induction, "tolerance": case.wake.induction_tolerance}
+        self.cluster = cluster
+        self.induce = induce
+        self.ground = case.ground.plane()
+        self.cache = RigidInfluenceCache(self.ground)
+        self.linear = LinearCache()
+        self.control = control if control is not None else RunControl()
+        layout = [(b, b.surfaces(0.0)) for b in self.bodies]
+        self.wakes = [b.new_wake(s, 0.0, self.settings) for b, ss in layout for s in ss]
+        self.gamma = np.zeros(sum(s.n_unknowns for _, ss in layout for s in ss))
+        self.gamma_prev = None
+        self.rows: list = []
+        self.strips: list = []
+        self.origin = (0, 0.0)
+        self.first = 0
+        self.watch = Watchdog.for_surfaces(self.v_inf, [s for _, ss in layout for s in ss],
+                                           self.control.max_memory)
+
+    def resume(self, state: LoopState) -> None:
+        """Go on from ``state`` (read from a checkpoint) instead of step 0."""
+        state.restore(self.wakes, self.cache)
+        self.origin, self.first = state.origin, state.step
+        self.gamma, self.gamma_prev, self.rows = state.gamma, state.gamma_prev, list(state.done_rows())
+
+    def time_of(self, step: int) -> float:
+        """The time [s] at the start of ``step``."""
+        return self.origin[1] + (step - self.origin[0]) * self.dt
+
+    def capture(self, step: int, time: float) -> LoopState:
+        """The loop's state at the start of ``step``, to go back to or to write."""
+        return LoopState.capture(step, time, self.origin, self.wakes, self.gamma, self.gamma_prev,
+                                 self.rows, self.cache)
+
+    def run(self, progress=None) -> Run:
+        """Run the steps left; see :func:`wakes.run.run_case` for ``progress`` and the result."""
+        started = _time.perf_counter()
+        control, steps = self.control, self.steps
+        report = _progress_reporter(progress)
+        status, message, good, wake_time = "finished", "", None, None
+        start = start_strips = previous = previous_strips = None
+        t = 0.0
+        try:
+            for step in range(self.first, steps):
+                t = self.time_of(step)
+                previous, previous_strips = start, start_strips
+                start, start_strips = self.capture(step, t), self.strips
+                good, done_strips = start, start_strips
+                self.watch.check_memory(step, t, self.wakes)
+                if control.snapshot_due(step, steps):
+                    control.snapshot(step, t, [e for w in self.wakes for e in w.sources(t)])
+                self.induce = (induce if self.cluster is None
+                               else self.cluster.inducer(_wake_size(self.rows)))
+                self.step(step, t)
+                if progress is not None:
+                    report(step + 1, steps, (self.rows[-1]["wake_segments"],
+                                             self.rows[-1]["wake_particles"]))
+                done = step + 1
+                if done < steps and (control.stop_requested or control.checkpoint_due(done)):
+                    good = self.capture(done, self.time_of(done))
+                    if control.save is not None:
+                        control.save(good)
+                    if control.stop_requested:
+                        status, message = "interrupted", f"stopped after step {step} (t = {t:.6g} s)"
+                        wake_time = good.time
+                        break
+        except WakesError as exc:
+            status = ("unstable" if isinstance(exc, NumericalError)
+                      else "memory" if isinstance(exc, MemoryBudgetError) else "failed")
+            if not control.keep_partial or good is None or (status == "failed" and not good.n_rows):
+                raise  # nothing done worth keeping
+            message = str(exc)
+            if status == "unstable" and previous is not None and good is start:
+                # The failing step's numbers came from its starting state, the product of the
+                # previous step's move: go back to the start of that step, whose checks passed.
+                good, done_strips = previous, previous_strips
+                message += (f"; the last good state is the start of step {good.step} "
+                            f"(t = {good.time:.6g} s)")
+            good.restore(self.wakes)
+            self.rows, self.strips, wake_time = good.done_rows(), done_strips, good.time
+            t = self.rows[-1]["time_s"] if self.rows else good.time
+        bodies = self.bodies
+        steps_done = len(self.rows) // max(len(bodies), 1)
+        layout = [(b, b.surfaces(t)) for b in bodies]
+        surfaces = [s for _, ss in layout for s in ss]
+        run = _assemble(self.case, bodies, layout, self.rows, self.strips, self.wakes, surfaces, t,
+                        t if wake_time is None else wake_time, started, steps_done)
+        run.status, run.message = status, message
+        run.wake_step = steps - 1 if status == "finished" else good.step
+        run.wake_time_s = t if wake_time is None else wake_time
+        run.resume_state = good if status != "finished" else None
+        return run
+
+    def step(self, step: int, t: float) -> None:
+        """One step at time ``t``: solve, append the loads rows, move and shed the wakes.
+
+        Sets :attr:`strips` (the step's strip loads), :attr:`gamma` and
+        :attr:`gamma_prev`. Wakes are changed only by replacing their
+        arrays, after every check.
+        """
+        bodies, wakes, v_inf, ground = self.bodies, self.wakes, self.v_inf, self.ground
+        layout = [(b, b.surfaces(t)) for b in bodies]
+        surfaces = [s for _, ss in layout for s in ss]
+        eval_pts = np.vstack([s.eval_points() for s in surfaces])
+        vlm = [s for s in surfaces if not s.lifting_line]
+        load_pts = (np.vstack([s.bound_midpoints().reshape(-1, 3) for s in vlm]) if vlm
+                    else np.zeros((0, 3)))
+        wake_src = [e for w in wakes for e in w.sources(t, at_surfaces=True)]
+        v_wake = self.induce(with_ground(wake_src, ground), np.vstack([eval_pts, load_pts]),
+                             **self.method)
+        motion_eval = np.vstack([s.velocity_of(s.eval_points()) for s in surfaces])
+        onset = v_inf - motion_eval + v_wake[:eval_pts.shape[0]]
+        aic, aic_load = self.cache.get(surfaces, eval_pts, load_pts)
+        sol = solve_circulation(surfaces, aic, onset, self.gamma, self.solver, step=step, time=t,
+                                linear_cache=self.linear)
+        self.watch.check_circulation(step, t, surfaces, sol.gamma)
+        gamma = np.concatenate([g.ravel() for g in sol.gamma])
+
+        strips = _strip_loads(surfaces, sol, gamma, aic_load, v_wake[eval_pts.shape[0]:], v_inf,
+                              self.gamma_prev, self.dt, self.rho)
+        drags = _trefftz(layout, strips, v_inf, self.rho)
+        k = 0
+        n_seg = sum(e.segment_count for e in wake_src if not isinstance(e, Particles))
+        n_par = sum(e.count for e in wake_src if isinstance(e, Particles))
+        for body, ss in layout:
+            mine = strips[k:k + len(ss)]
+            row = {"step": step, "time_s": t, "body": body.name}
+            row.update(body.loads_row(mine, sum(drags[k:k + len(ss)])))
+            row.update({"iterations": sol.iterations, "residual": sol.residual,
+                        "wake_segments": n_seg, "wake_particles": n_par})
+            self.rows.append(row)
+            k += len(ss)
+        if step < self.steps - 1:
+            _advance_wakes(wakes, surfaces, sol.gamma, self.settings, v_inf, self.dt, t,
+                           self.method, self.watch, step, ground, self.induce)
+            new_surfaces = [s for b in bodies for s in b.surfaces(t + self.dt)]
+            for w, s, g in zip(wakes, new_surfaces, sol.gamma):
+                w.shed(s.te_nodes, g[-1], t + self.dt)
+                w.age_out(t + self.dt)
+        self.strips, self.gamma = strips, gamma
+        self.gamma_prev = gamma
 
 
 def _wake_size(rows) -> int:
@@ -358,52 +373,6 @@ def _progress_reporter(progress):
     return progress
 
 
-def _step(step, t, bodies, wakes, gamma, gamma_prev, rows, cache, linear, solver, settings,
-          v_inf, dt, rho, steps, method, watch, ground=None):
-    """One step of :func:`run_case` at time ``t``; appends its loads rows.
-
-    Returns the step's strip loads and circulation.
-    Wakes are changed only by replacing their arrays, after every check.
-    """
-    layout = [(b, b.surfaces(t)) for b in bodies]
-    surfaces = [s for _, ss in layout for s in ss]
-    eval_pts = np.vstack([s.eval_points() for s in surfaces])
-    vlm = [s for s in surfaces if not s.lifting_line]
-    load_pts = (np.vstack([s.bound_midpoints().reshape(-1, 3) for s in vlm]) if vlm
-                else np.zeros((0, 3)))
-    wake_src = [e for w in wakes for e in w.sources(t, at_surfaces=True)]
-    v_wake = induce(with_ground(wake_src, ground), np.vstack([eval_pts, load_pts]), **method)
-    motion_eval = np.vstack([s.velocity_of(s.eval_points()) for s in surfaces])
-    onset = v_inf - motion_eval + v_wake[:eval_pts.shape[0]]
-    aic, aic_load = cache.get(surfaces, eval_pts, load_pts)
-    sol = solve_circulation(surfaces, aic, onset, gamma, solver, step=step, time=t,
-                            linear_cache=linear)
-    watch.check_circulation(step, t, surfaces, sol.gamma)
-    gamma = np.concatenate([g.ravel() for g in sol.gamma])
-
-    strips = _strip_loads(surfaces, sol, gamma, aic_load, v_wake[eval_pts.shape[0]:], v_inf,
-                          gamma_prev, dt, rho)
-    drags = _trefftz(layout, strips, v_inf, rho)
-    k = 0
-    n_seg = sum(e.segment_count for e in wake_src if not isinstance(e, Particles))
-    n_par = sum(e.count for e in wake_src if isinstance(e, Particles))
-    for body, ss in layout:
-        mine = strips[k:k + len(ss)]
-        row = {"step": step, "time_s": t, "body": body.name}
-        row.update(body.loads_row(mine, sum(drags[k:k + len(ss)])))
-        row.update({"iterations": sol.iterations, "residual": sol.residual,
-                    "wake_segments": n_seg, "wake_particles": n_par})
-        rows.append(row)
-        k += len(ss)
-    if step < steps - 1:
-        _advance_wakes(wakes, surfaces, sol.gamma, settings, v_inf, dt, t, method, watch, step, ground)
-        new_surfaces = [s for b in bodies for s in b.surfaces(t + dt)]
-        for w, s, g in zip(wakes, new_surfaces, sol.gamma):
-            w.shed(s.te_nodes, g[-1], t + dt)
-            w.age_out(t + dt)
-    return strips, gamma
-
-
 def _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t, wake_time, started,
               steps_done) -> Run:
     """The run's tables and summary: loads rows, the strips of the last step done (at ``t``)
@@ -417,7 +386,7 @@ def _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t, wake_time,
         k += len(ss)
     sections = pd.concat(tables, ignore_index=True) if tables else pd.DataFrame()
     summary = {"bodies": {b.name: b.summary(loads) for b in bodies} if rows else {},
-               "case": case.to_dict(), "version": _version(),
+               "case": case.to_dict(), "version": __version__,
                "run": {"steps": steps, "steps_done": steps_done, "dt_s": dt, "final_time_s": t,
                        "wall_time_s": _time.perf_counter() - started, "revision": _revision()}}
     final_wake = {s.name: w.sources(wake_time) for s, w in zip(surfaces, wakes)}
@@ -470,14 +439,15 @@ def _trefftz(layout, strips, v_inf, rho):
 
 
 def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method, watch=None, step=0,
-                   ground=None):
+                   ground=None, induce=induce):
     """Move every wake node and particle one step (free or frozen), stretching particles.
 
     ``method`` holds the keyword arguments ``method`` and ``tolerance`` of
     :func:`wakes.induce`. ``watch`` (:class:`wakes.watchdog.Watchdog`)
     checks the velocities before anything moves. A ``ground``
     (:class:`wakes.aero.ground.GroundPlane`) adds the images of every
-    element.
+    element. ``induce`` is the function that sums the velocities (the
+    engine's, or a cluster's for a large wake).
     """
     nodes = np.vstack([w.rows.reshape(-1, 3) for w in wakes])
     parts = [w.positions for w in wakes]

@@ -22,6 +22,7 @@ from __future__ import annotations
 import copy
 import difflib
 import hashlib
+import io
 import itertools
 import json
 import math
@@ -31,13 +32,15 @@ import time
 from dataclasses import dataclass
 from pathlib import Path
 
+import numba
 import numpy as np
 import pandas as pd
 
 from .case import Case, parse_case, read_toml
-from .distributed import connect
+from .cluster import connect
 from .errors import CaseError, InputError, WakesError
 from .io import atomic
+from .run import run_guarded, write_run
 
 POINT_RECORD = "point.json"
 # Coefficients plotted against the first varied key, in this order, when present.
@@ -227,16 +230,15 @@ def run_point(data: dict, source: str, base_dir: str, folder: str, expected_hash
     each other. The point record (with the case hash) is written last, so
     a folder without it is an unfinished run and is run again on resume.
     """
-    import numba
-
-    from .simulate import run_case
-
     numba.set_num_threads(1)
     case = parse_case(data, source=source, base_dir=base_dir)
     if case_hash(case) != expected_hash:   # a worker with another wakes version
         raise WakesError(f"point resolved differently on the worker ({folder})")
-    run = run_case(case, use_cluster=False)   # the sweep's workers are the cluster
-    run.write(folder)
+    # the one orchestrator, as `wakes run` uses it; the sweep's workers are the cluster
+    run = run_guarded(case, folder, write=lambda r, o: write_run(r, o, plots=False),
+                      use_cluster=False)
+    if run.status != "finished":
+        raise WakesError(f"point {folder}: {run.status}: {run.message}")
     atomic.write_text(Path(folder) / POINT_RECORD,
                       json.dumps({"case_sha256": expected_hash}, indent=2) + "\n")
     return run.summary
@@ -277,7 +279,7 @@ class _Progress:
 
 def _connect(client, scheduler, workers):
     """Return (client, owned): a client to use and whether we must close it."""
-    import distributed
+    import distributed  # optional heavy library: a local cluster only when no client is given
 
     if client is not None:
         return client, None
@@ -359,7 +361,7 @@ def sweep(case, vary: dict, *, out="sweep", zipped: bool = False, client=None,
 
 
 def _run_all(todo, rows, bar, client, scheduler, workers, source, base_dir) -> None:
-    from distributed import as_completed
+    from distributed import as_completed  # optional heavy library: only while a sweep runs
 
     client, cluster = _connect(client, scheduler, workers)
     local = cluster is not None
@@ -384,9 +386,7 @@ def _write_outputs(table: pd.DataFrame, keys: list, out: Path) -> None:
     out.mkdir(parents=True, exist_ok=True)
     atomic.write_text(out / "sweep.csv", table.to_csv(index=False, float_format="%.10g"))
     try:
-        import io
-
-        import pyarrow  # noqa: F401
+        import pyarrow  # noqa: F401  (optional: the parquet copy only when it is installed)
 
         buf = io.BytesIO()
         table.to_parquet(buf, index=False)
@@ -397,12 +397,10 @@ def _write_outputs(table: pd.DataFrame, keys: list, out: Path) -> None:
 
 
 def _plot(table: pd.DataFrame, key: str, path: Path) -> None:
-    import io
-
-    import matplotlib
+    import matplotlib  # optional heavy library: loaded only when drawing
 
     matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
+    import matplotlib.pyplot as plt  # after choosing the Agg backend
 
     ok = table[table["status"] != "failed"]
     cols = [c for c in table.columns for base in PLOTTED

@@ -12,6 +12,8 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
+from .aero.rotor_loads import ROTOR_KINDS
+from .case import BODY_TYPES
 from .errors import InputError
 from .io import atomic
 
@@ -120,11 +122,8 @@ TEMPLATE_KINDS = ("wing", "rotor", "propeller", "turbine")
 
 def available_kinds() -> tuple[str, ...]:
     """The template kinds whose body type exists in this installation."""
-    from .case import BODY_TYPES
-
     out = ["wing"] if "wing" in BODY_TYPES else []
     if "rotor" in BODY_TYPES:
-        from .aero.rotor_loads import ROTOR_KINDS
         out += [k for k in ("rotor", "propeller", "turbine") if k in ROTOR_KINDS]
     return tuple(out)
 

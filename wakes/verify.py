@@ -15,8 +15,8 @@ import numpy as np
 import pandas as pd
 
 from . import exact
-from .elements import Filaments, Particles
 from .induction.api import induce
+from .induction.elements import Filaments, Particles
 
 
 @dataclass(frozen=True)

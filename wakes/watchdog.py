@@ -1,6 +1,6 @@
 """Watching a run: stop it politely when it goes unstable, outgrows memory or is interrupted.
 
-:class:`Watchdog` checks every step of :func:`wakes.simulate.run_case`:
+:class:`Watchdog` checks every step of :class:`wakes.simulate.TimeLoop`:
 
 * the bound circulation and the wake velocities are finite;
 * no wake node or particle moves faster than ``SPEED_FACTOR`` times the
@@ -27,17 +27,14 @@ import signal
 
 import numpy as np
 
-from .budget import MemoryBudgetError, budget_bytes, peak_bytes
-from .errors import NumericalError
+from .budget import budget_bytes
+from .errors import MemoryBudgetError, UnstableRunError
+from .estimate import peak_bytes
 
 SPEED_FACTOR = 50.0   # largest wake speed accepted / flow speed scale (our choice, generous)
 
 REMEDY = ("a smaller [time] dt, a larger [wake] core_radius, or coarser wake trimming "
           "([wake] max_age, model = \"particles\")")
-
-
-class UnstableRunError(NumericalError):
-    """The run went unstable; the message names step, time, element, cause and remedy."""
 
 
 class Watchdog:
@@ -206,66 +203,3 @@ def exit_status(run) -> int:
     if run.status == "interrupted":
         return 128 + int(run.stop_signal or signal.SIGINT)
     return {"unstable": EXIT_UNSTABLE, "memory": EXIT_MEMORY}.get(run.status, EXIT_FAILED)
-
-
-def run_guarded(case, out, *, write, progress=None, max_memory: int | None = None, resume=None):
-    """Run a case so that no work is lost: budget check, checkpoints, signals, partial outputs.
-
-    Parameters
-    ----------
-    case : wakes.case.Case
-        The resolved case.
-    out : path-like
-        The run folder (created); checkpoints go to ``out/checkpoints``,
-        wake snapshots to ``out/wake`` every ``[output] snapshot_every`` steps.
-    write : callable
-        ``write(run, out)`` writes a (possibly partial) run's outputs.
-    progress : callable, optional
-        ``progress(step, steps)``.
-    max_memory : int, optional
-        Memory budget [B] (default: the memory available).
-    resume : wakes.io.checkpoint.LoopState, optional
-        State to go on from (:func:`wakes.io.checkpoint.prepare_resume`).
-
-    Returns
-    -------
-    wakes.simulate.Run
-        Its ``status`` is "finished", "interrupted" (SIGINT/SIGTERM: the
-        current step was finished), "unstable", "memory" or "failed"; in
-        every case but "finished" the newest checkpoint holds the last good
-        state, and the outputs of the steps done are written. A finished
-        run's checkpoints are removed.
-
-    Raises
-    ------
-    wakes.budget.MemoryBudgetError
-        Before the run, if its estimated peak memory exceeds the budget.
-    """
-    from pathlib import Path
-
-    from .budget import check_budget
-    from .io.checkpoint import remove_checkpoints, write_checkpoint
-    from .io.snapshots import WakeSnapshots
-    from .simulate import run_case
-
-    check_budget(case, max_memory)
-    out = Path(out)
-    case_toml = case.to_toml()
-
-    def save(state):
-        write_checkpoint(out, state, case_toml, case.source)
-
-    snapshots = WakeSnapshots(out, keep_before=0 if resume is None else resume.step)
-    control = RunControl(checkpoint_every=case.output.checkpoint_every, save=save,
-                         keep_partial=True, max_memory=max_memory,
-                         snapshot_every=case.output.snapshot_every, snapshot=snapshots.write)
-    with control.catch_signals():
-        run = run_case(case, progress=progress, control=control, resume=resume)
-    run.stop_signal = control.stop_signal
-    if run.status not in ("finished", "interrupted") and run.resume_state is not None:
-        save(run.resume_state)
-    if len(run.loads):
-        write(run, out)
-    if run.status == "finished":
-        remove_checkpoints(out)
-    return run

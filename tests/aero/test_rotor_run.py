@@ -7,7 +7,7 @@ import pandas as pd
 import pytest
 from wakes.aero.rotor_loads import KIND_COLUMNS
 from wakes.case import parse_case
-from wakes.simulate import run_case
+from wakes.run import run_case
 
 # A coarse two-bladed rotor: 20 deg steps, two revolutions, a short wake (seconds to run).
 BASE = """

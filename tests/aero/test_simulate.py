@@ -4,7 +4,7 @@ import numpy as np
 import pytest
 from wakes.aero.geometry import Distribution, WingPlanform
 from wakes.case import parse_case
-from wakes.simulate import run_case
+from wakes.run import run_case
 
 
 def _case(bodies, steps=24, **extra):

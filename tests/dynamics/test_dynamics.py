@@ -3,7 +3,7 @@
 import numpy as np
 import pytest
 import wakes
-from wakes.dynamics import (
+from wakes.vortex.dynamics import (
     KERNEL_SECOND_MOMENTS,
     STRETCHING_SCHEMES,
     VISCOUS_SCHEMES,

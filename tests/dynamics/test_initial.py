@@ -9,7 +9,7 @@ from scipy.spatial.transform import Rotation
 from wakes.errors import InputError
 from wakes.induction.particle_ops import smoothed_fields_at
 from wakes.induction.smoothing import PARTICLE_KERNELS
-from wakes.initial import ALONG_RING_SPACING, core_lattice
+from wakes.vortex.initial import ALONG_RING_SPACING, core_lattice
 
 
 def test_single_circle_geometry():

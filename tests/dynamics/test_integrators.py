@@ -5,7 +5,7 @@ from fractions import Fraction
 
 import numpy as np
 import pytest
-from wakes.integrators import INTEGRATORS, RungeKuttaScheme, rk_step
+from wakes.vortex.integrators import INTEGRATORS, RungeKuttaScheme, rk_step
 
 ALL = sorted(INTEGRATORS)
 

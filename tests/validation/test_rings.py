@@ -21,8 +21,8 @@ import pytest
 import wakes
 from scipy.integrate import quad
 from wakes import ParticleFlow, exact
-from wakes.diagnostics import ring_centroid
-from wakes.initial import core_lattice
+from wakes.vortex.diagnostics import ring_centroid
+from wakes.vortex.initial import core_lattice
 
 R, GAMMA, SIGMA = 1.0, 1.0, 0.1   # R/sigma = 10, the thin-ring formula's stated range
 

@@ -14,7 +14,7 @@ import numpy as np
 import pytest
 from wakes import exact
 from wakes.case import load_case
-from wakes.simulate import run_case
+from wakes.run import run_case
 
 CASES = Path(__file__).resolve().parents[2] / "cases" / "validation"
 MEASURED_CT = 0.00459   # Caradonna & Tung 1981, NASA TM-81232, 8 deg (value from memory)

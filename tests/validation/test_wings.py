@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 from wakes import exact
 from wakes.case import load_case, parse_case
-from wakes.simulate import run_case
+from wakes.run import run_case
 
 CASES = Path(__file__).resolve().parents[2] / "cases" / "validation"
 ALPHA = np.radians(5.0)

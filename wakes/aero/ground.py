@@ -28,7 +28,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..elements import Filaments, Particles
+from ..induction.elements import Filaments, Particles
 
 
 @dataclass(frozen=True)

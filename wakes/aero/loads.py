@@ -29,8 +29,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..elements import Filaments
 from ..induction.api import induce
+from ..induction.elements import Filaments
 
 TREFFTZ_LENGTH_SPANS = 1.0e4  # half-length of the "infinite" trailed lines, in spans: (1e-4)^2 error
 

@@ -20,29 +20,12 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import CaseError, InputError
+from ..errors import CaseError, InputError, PolarRangeError
 from ..io.tables import read_numeric_table
 
 POLAR_COLUMNS = ("alpha_deg", "cl", "cd")
 OUT_OF_RANGE_MODES = ("error", "flat-plate")
 FLAT_PLATE_BLEND = np.radians(10.0)  # angle over which a table blends into flat-plate values
-
-
-class PolarRangeError(InputError):
-    """An angle of attack fell outside a polar table.
-
-    Attributes
-    ----------
-    index : int
-        Index of the first offending section in the evaluated array.
-    alpha_deg : float
-        The offending angle [deg].
-    """
-
-    def __init__(self, message: str, index: int, alpha_deg: float):
-        super().__init__(message)
-        self.index = index
-        self.alpha_deg = alpha_deg
 
 
 @dataclass(frozen=True)
@@ -134,11 +117,6 @@ class TablePolar:
     def __repr__(self) -> str:
         lo, hi = np.degrees(self.alpha[[0, -1]])
         return f"TablePolar({self.name!r}, {lo:g} to {hi:g} deg, out_of_range={self.out_of_range!r})"
-
-    @property
-    def alpha_range(self) -> tuple[float, float]:
-        """First and last tabulated angle [rad]."""
-        return float(self.alpha[0]), float(self.alpha[-1])
 
     def evaluate(self, alpha: np.ndarray):
         """Return cl, cd and dcl/dalpha [1/rad] at angles ``alpha`` [rad].
@@ -279,3 +257,12 @@ class SectionPolars:
             sel = self.index == k
             out[sel] = polar.alpha_for_cl(cl[sel])
         return out
+
+
+def make_polar(airfoil):
+    """The polar an airfoil spec asks for: a CSV table or thin-airfoil theory."""
+    if airfoil.polar is not None:
+        return load_polar_table(airfoil.polar, out_of_range=airfoil.out_of_range)
+    return ThinAirfoilPolar(lift_slope=airfoil.lift_slope,
+                            zero_lift_angle=np.radians(airfoil.zero_lift_angle),
+                            cd0=airfoil.cd0, cd2=airfoil.cd2)

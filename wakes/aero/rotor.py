@@ -47,6 +47,32 @@ from .kinematics import RigidRotation, hub_frame
 
 BLADE_SPACINGS = ("cosine", "tip", "uniform")
 
+DEG_PER_S_PER_RPM = 6.0   # 360 deg per revolution / 60 s per minute
+AXIAL_FLOW_TOLERANCE = 1e-9  # freestream component across the axis / its magnitude, for "axial"
+
+
+def blade_turn_deg(rpm: float, dt: float) -> float:
+    """Angle [deg] a blade turns in one step of ``dt`` [s] at ``rpm``."""
+    return DEG_PER_S_PER_RPM * rpm * dt
+
+
+def dt_for_turn(turn_deg: float, rpm: float) -> float:
+    """The step [s] in which a blade at ``rpm`` turns ``turn_deg`` [deg]."""
+    return turn_deg / (DEG_PER_S_PER_RPM * rpm)
+
+
+def is_axial_flow(v_inf, axis) -> bool:
+    """Whether the freestream ``v_inf`` [m/s] runs along ``axis`` (or is zero: hover).
+
+    True when its component across the axis is at most
+    ``AXIAL_FLOW_TOLERANCE`` times its magnitude.
+    """
+    v = np.asarray(v_inf, dtype=np.float64)
+    a = np.asarray(axis, dtype=np.float64)
+    a = a / np.linalg.norm(a)
+    return bool(np.linalg.norm(np.cross(v, a)) <= AXIAL_FLOW_TOLERANCE * np.linalg.norm(v))
+
+
 
 def blade_stations(n_panels: int, spacing: str) -> tuple[np.ndarray, np.ndarray]:
     """Node and section positions along a blade, eta from 0 (root cut-out) to 1 (tip).

@@ -16,14 +16,14 @@ import dataclasses
 import numpy as np
 import pandas as pd
 
-from .polars import SectionPolars
+from .polars import SectionPolars, make_polar
+from .rotor import blade_turn_deg, is_axial_flow
 from .rotor_loads import KIND_COLUMNS, blade_forces, coefficients, last_revolution, radial_table
 from .rotor_wake import BladeSymmetry, RolledUpWake, StartupDrift, tip_vortex_table
 from .wake import WakeSheet
 
 # Summary figures beyond the kind's own columns.
 _EXTRA_SUMMARY = ("induced_power_W", "profile_power_W")
-AXIAL_FLOW_TOLERANCE = 1e-9  # freestream component across the axis / its magnitude, for "axial"
 
 
 class RotorBody:
@@ -40,8 +40,6 @@ class RotorBody:
     trefftz = False
 
     def __init__(self, spec, case):
-        from .bodies import make_polar  # bodies registers this class: import here, not at the top
-
         self.name = spec.name
         self.spec = spec
         self.kind = spec.kind
@@ -55,8 +53,7 @@ class RotorBody:
         self.speed = {"propeller": float(-(v_inf @ self.axis)), "turbine": float(np.linalg.norm(v_inf)),
                       "rotor": 0.0}[self.kind]
         self.hover = not np.any(v_inf)
-        self.axial_flow = bool(np.linalg.norm(np.cross(v_inf, self.axis))
-                               <= AXIAL_FLOW_TOLERANCE * np.linalg.norm(v_inf))
+        self.axial_flow = is_axial_flow(v_inf, self.axis)
         self.dt = case.time.dt
         self.end_time = (case.time.steps - 1) * case.time.dt
         self.steps_per_revolution = max(1, int(round(g.period / case.time.dt)))
@@ -93,7 +90,7 @@ class RotorBody:
                                    self.spec.startup_revolutions * g.period)
         if self.spec.symmetric_wake and self._symmetry is None:
             self._symmetry = BladeSymmetry(self.hub, self.axis, g.blades)
-        rollup = self.spec.rollup_age / (6.0 * g.rpm * self.dt)
+        rollup = self.spec.rollup_age / blade_turn_deg(g.rpm, self.dt)
         wake = RolledUpWake(surface.te_nodes, time, settings,
                             rollup_steps=max(1, int(round(min(rollup, 1e9)))),
                             inboard_trailers=self.spec.inboard_trailers, tip_last=g.spin > 0,

@@ -65,7 +65,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from ..elements import Filaments
+from ..induction.elements import Filaments
 from .kinematics import rotate_about
 from .vortex_lattice import lattice_segments
 from .wake import WakeSettings

@@ -20,8 +20,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..elements import Filaments
 from ..induction.api import induce
+from ..induction.elements import Filaments
 
 # Segments shorter than this fraction of the lattice size are dropped: the
 # straight-segment law is undefined for zero length (an elliptic wing's tip).

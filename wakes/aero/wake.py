@@ -31,11 +31,15 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..elements import Filaments, Particles
+from ..induction.elements import Filaments, Particles
 from ..induction.smoothing import LAMB_OSEEN_ALPHA
 from .vortex_lattice import lattice_filaments, lattice_segments
 
 ATTACHED_CORE_FRACTION = 1e-6  # attached row's core radius / core_radius: a singular line in effect
+
+# Kinematic viscosity of air at ISA sea level [m^2/s] (ISO 2533:1975 standard atmosphere,
+# from memory): the one default of the case's [fluid] and of WakeSettings.
+SEA_LEVEL_KINEMATIC_VISCOSITY = 1.4607e-5
 
 
 @dataclass(frozen=True)
@@ -83,7 +87,7 @@ class WakeSettings:
     core: str = "lamb-oseen"
     core_radius: float = 0.05
     core_growth: float = 1.0
-    viscosity: float = 1.5e-5
+    viscosity: float = SEA_LEVEL_KINEMATIC_VISCOSITY
     particle_kernel: str = "gaussian"
     particle_overlap: float = 1.3
     near_wake_steps: int = 8

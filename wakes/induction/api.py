@@ -1,7 +1,9 @@
 """Front end of the induction engine: velocity and velocity gradient of vortex elements.
 
 Everything in ``wakes`` that needs an induced velocity calls :func:`induce`;
-nothing else sums Biot--Savart.
+nothing else sums Biot--Savart. The engine knows nothing of clusters:
+:func:`wakes.cluster.induce` (exported as ``wakes.induce``) adds a Dask
+``client`` in front of it.
 """
 
 from __future__ import annotations
@@ -9,15 +11,15 @@ from __future__ import annotations
 import numpy as np
 
 from .._validate import as_float_array, choice
-from ..elements import Filaments, Particles
 from ..errors import InputError
 from . import direct, tree, tree_params
+from .elements import Filaments, Particles
 from .smoothing import CORE_MODELS, PARTICLE_KERNELS
 
 METHODS = ("direct", "tree", "auto")
 
 
-def _as_source_list(sources) -> list:
+def as_source_list(sources) -> list:
     if isinstance(sources, (Particles, Filaments)):
         return [sources]
     if isinstance(sources, (list, tuple)):
@@ -31,7 +33,7 @@ def _as_source_list(sources) -> list:
 
 
 def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
-           tolerance: float = 1e-6, client=None):
+           tolerance: float = 1e-6):
     """Velocity (and its gradient) induced by vortex elements at target points.
 
     Parameters
@@ -59,10 +61,6 @@ def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
         from all sources where the field is a small residual of cancelling
         contributions the error is of the same absolute size, so larger
         relative to that residual.
-    client : dask.distributed.Client, optional
-        Evaluate chunks of the targets on the cluster's workers
-        (:func:`wakes.distributed.induce_on_cluster`): the sources are sent
-        once, the result equals the single-process one.
 
     Returns
     -------
@@ -90,14 +88,9 @@ def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
     >>> round(u[0, 2], 3)   # Gamma/(2R) at the centre
     0.5
     """
-    src = _as_source_list(sources)
+    src = as_source_list(sources)
     tgt = as_float_array("targets", targets, (None, 3))
     choice("method", method, METHODS)
-    if client is not None:
-        from ..distributed import induce_on_cluster
-
-        return induce_on_cluster(src, tgt, client, gradient=gradient, method=method,
-                                 tolerance=tolerance)
     tol = tree_params.check_tolerance(tolerance)
     if not isinstance(gradient, (bool, np.bool_)):
         raise InputError(f"gradient must be True or False; got {gradient!r}")

@@ -5,7 +5,7 @@ block of ``TARGET_BLOCK`` targets uses them; the inner loop runs over
 contiguous slices so LLVM emits vector loads (about 3x faster than indexing
 the full arrays), and reductions are allowed to reassociate (fastmath
 ``reassoc``/``contract`` only: no NaN/Inf assumptions) so they vectorize.
-``error_model="numpy"`` keeps division from raising, so nothing in a pair
+``error_model=ERROR_MODEL`` keeps division from raising, so nothing in a pair
 loop branches out of it.
 
 With the gradient, the algebraic kernels' sources are summed in three
@@ -35,6 +35,8 @@ import math
 import numpy as np
 from numba import njit, prange
 
+from ._jit import ERROR_MODEL
+from ._jit import FASTMATH as _FASTMATH
 from .gaussian import T_FAR, T_NEAR
 from .pairs import (
     SINGULAR_LINE_FRACTION_SQ,
@@ -51,7 +53,6 @@ SOURCE_BLOCK = 1024
 GRADIENT_BLOCK = 256     # 7 source and 5 scratch arrays of it fit a 32 KiB L1
 SUB_BLOCK = 32
 INV_4PI = 1.0 / (4.0 * math.pi)
-_FASTMATH = {"reassoc", "contract"}
 # Internal law code next to the kernel codes of .smoothing: the Gaussian
 # kernel where every pair has t >= T_NEAR.
 _GAUSSIAN_FAR = -1
@@ -61,7 +62,7 @@ _GAUSSIAN_FAR = -1
 # particles
 # ----------------------------------------------------------------------------
 
-@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model="numpy")
+@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model=ERROR_MODEL)
 def _add_target_sums(ux, uy, uz, fax, fay, faz, gxx, gxy, gxz, gyx, gyy, gyz, gzx, gzy,
                      i, vel, grad):
     """Scale one target's sums by 1/(4 pi) and add them to vel[i], grad[i]."""
@@ -81,7 +82,7 @@ def _add_target_sums(ux, uy, uz, fax, fay, faz, gxx, gxy, gxz, gyx, gyy, gyz, gz
     grad[i, 2, 2] -= (gxx + gyy) * d
 
 
-@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model="numpy")
+@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model=ERROR_MODEL)
 def _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, binv2, binv3, k0, k1, law,
                  gradient, i, vel, grad):
     """Add sources k0..k1 of one source block to target i.
@@ -151,7 +152,7 @@ def _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, binv2, binv3, k0, k
         vel[i, 2] += uz * INV_4PI
 
 
-@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model="numpy")
+@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model=ERROR_MODEL)
 def _gradient_sums(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, k0, k1, law, i, vel, grad,
                    scratch):
     """Add sources k0..k1 (at most GRADIENT_BLOCK) to target i, velocity and gradient.
@@ -242,7 +243,7 @@ def _make_gaussian_block(gradient):
     would multiply every driver's compile time.
     """
 
-    @njit(cache=True, fastmath=_FASTMATH, error_model="numpy")
+    @njit(cache=True, fastmath=_FASTMATH, error_model=ERROR_MODEL)
     def gaussian_block(tx, ty, tz, i0, i1, bx, by, bz, bax, bay, baz, bs2, inv, box,
                        vel, grad):
         m = bx.shape[0]
@@ -314,7 +315,7 @@ _gaussian_velocity_block = _make_gaussian_block(False)
 _gaussian_gradient_block = _make_gaussian_block(True)
 
 
-@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model="numpy")
+@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model=ERROR_MODEL)
 def _particle_block(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient,
                     i0, i1, vel, grad):
     """Accumulate all sources on targets i0..i1 (one target block)."""
@@ -360,7 +361,7 @@ def _make_particle_driver(kernel, gradient):
     the closure's contents), and only the pairs a run uses get compiled.
     """
 
-    @njit(parallel=True, cache=True, fastmath=_FASTMATH, error_model="numpy")
+    @njit(parallel=True, cache=True, fastmath=_FASTMATH, error_model=ERROR_MODEL)
     def driver(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, vel, grad):
         n_tgt = tx.shape[0]
         n_blocks = (n_tgt + TARGET_BLOCK - 1) // TARGET_BLOCK
@@ -443,7 +444,7 @@ def particles_direct(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient, v
 # filament segments
 # ----------------------------------------------------------------------------
 
-@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model="numpy")
+@njit(inline="always", cache=True, fastmath=_FASTMATH, error_model=ERROR_MODEL)
 def _segment_block(tx, ty, tz, pax, pay, paz, pbx, pby, pbz, gam, rc2, core, gradient,
                    i0, i1, vel, grad):
     n_src = pax.shape[0]
@@ -536,7 +537,7 @@ def _segment_block(tx, ty, tz, pax, pay, paz, pbx, pby, pbz, gam, rc2, core, gra
 def _make_segment_driver(core, gradient):
     """Compile-on-demand parallel driver for one (core, gradient) pair."""
 
-    @njit(parallel=True, cache=True, fastmath=_FASTMATH, error_model="numpy")
+    @njit(parallel=True, cache=True, fastmath=_FASTMATH, error_model=ERROR_MODEL)
     def driver(tx, ty, tz, pax, pay, paz, pbx, pby, pbz, gam, rc2, vel, grad):
         n_tgt = tx.shape[0]
         n_blocks = (n_tgt + TARGET_BLOCK - 1) // TARGET_BLOCK

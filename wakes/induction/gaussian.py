@@ -32,6 +32,8 @@ from llvmlite import ir
 from numba import njit, types
 from numba.extending import intrinsic
 
+from ._jit import ERROR_MODEL, FASTMATH, FASTMATH_CONTRACT_ONLY
+
 SQRT_2_OVER_PI = math.sqrt(2.0 / math.pi)
 INV_SQRT_2PI = 1.0 / math.sqrt(2.0 * math.pi)
 
@@ -154,7 +156,7 @@ def _bits_double(typingctx, i):
 # The polynomial helpers are compiled once and inlined by LLVM (they are
 # small); numba-level inlining would copy them into every caller's IR and
 # multiply the drivers' compile time.
-@njit(cache=True, fastmath={"reassoc", "contract"}, error_model="numpy")
+@njit(cache=True, fastmath=FASTMATH, error_model=ERROR_MODEL)
 def _estrin12(x, c):
     """sum_{k<12} c[k] x^k by Estrin's scheme (short dependency chains)."""
     x2 = x * x
@@ -172,7 +174,7 @@ def _estrin12(x, c):
     return (b0 + b1 * x4) + b2 * x8
 
 
-@njit(cache=True, fastmath={"reassoc", "contract"}, error_model="numpy")
+@njit(cache=True, fastmath=FASTMATH, error_model=ERROR_MODEL)
 def _estrin16(x, c):
     """sum_{k<16} c[k] x^k by Estrin's scheme."""
     x2 = x * x
@@ -196,7 +198,7 @@ def _estrin16(x, c):
 # Not inlined by numba and compiled with "contract" only: LLVM still inlines
 # it into the vectorized loops, but "reassoc" would be allowed to fold
 # (x + C) - C to x and the two-part ln2 back into one constant.
-@njit(cache=True, fastmath={"contract"}, error_model="numpy")
+@njit(cache=True, fastmath=FASTMATH_CONTRACT_ONLY, error_model=ERROR_MODEL)
 def exp_neg(h):
     """e^-h for 0 <= h <= 700, within 2 ulp, vectorizable.
 

@@ -26,6 +26,7 @@ import math
 import numpy as np
 from numba import njit, prange
 
+from ._jit import FASTMATH as _FASTMATH
 from .smoothing import GAUSSIAN, ROSENHEAD_MOORE, WINCKELMANS_LEONARD
 
 _GAUSS_NORM = 1.0 / (2.0 * math.pi) ** 1.5
@@ -58,7 +59,6 @@ def zeta(t, kernel):
     return 0.0, 0.0
 
 
-_FASTMATH = {"reassoc", "contract"}
 _BLOCK = 1024
 
 

@@ -21,9 +21,9 @@ import math
 
 from numba import njit, prange
 
+from ._jit import FASTMATH as _FASTMATH
 from .particle_ops import zeta
 
-_FASTMATH = {"reassoc", "contract"}
 _BLOCK = 1024
 
 

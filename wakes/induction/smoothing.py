@@ -26,7 +26,7 @@ name        factor
 ==========  ====================================
 singular    1 (zero on the line itself)
 rankine     min(h^2 / rc^2, 1)
-lamb-oseen  1 - exp(-1.25643 h^2 / rc^2)
+lamb-oseen  1 - exp(-alpha h^2 / rc^2), alpha = 1.2564312
 scully      h^2 / (rc^2 + h^2)
 vatistas2   h^2 / sqrt(rc^4 + h^4)
 ==========  ====================================
@@ -36,7 +36,12 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-LAMB_OSEEN_ALPHA = 1.25643  # 1 + 2a = e^a; Lamb-Oseen peak-velocity radius constant (Devenport et al. 1996)
+# Lamb-Oseen peak-velocity radius constant: the swirl of a Lamb-Oseen vortex peaks at
+# r^2 = alpha * 4 nu t, where alpha is the positive root of 1 + 2 alpha = e^alpha
+# (Devenport et al. 1996, J. Fluid Mech. 312, quote 1.25643). Written to double
+# precision (Newton on the root; 1 + 2 alpha == e^alpha in float64): the one value
+# used by the core model, the core-growth law and wakes.exact.
+LAMB_OSEEN_ALPHA = 1.2564312086261697
 
 
 @dataclass(frozen=True)

@@ -35,7 +35,8 @@ from math import comb, factorial
 import numpy as np
 from numba import njit, prange
 
-_FASTMATH = {"reassoc", "contract"}
+from ._jit import FASTMATH as _FASTMATH
+
 INV_4PI = 1.0 / (4.0 * np.pi)
 M2L_CHUNK = 64  # source cells per block of the M2L sum (keeps the block in L2)
 

@@ -12,13 +12,13 @@ every branch on it folds away.
 import numpy as np
 from numba import njit, prange
 
+from ._jit import ERROR_MODEL
+from ._jit import FASTMATH as _FASTMATH
 from .direct import SOURCE_BLOCK, _particle_block, _segment_block
-
-_FASTMATH = {"reassoc", "contract"}
 
 
 def _make_particle_near(kernel, gradient):
-    @njit(parallel=True, cache=True, fastmath=_FASTMATH)
+    @njit(parallel=True, cache=True, fastmath=_FASTMATH, error_model=ERROR_MODEL)
     def driver(t_leaves, t_start, t_count, near_ptr, near_src, s_start, s_count,
                tx, ty, tz, sx, sy, sz, ax, ay, az, s2, vel, grad):
         for li in prange(t_leaves.shape[0]):
@@ -57,7 +57,7 @@ def _make_particle_near(kernel, gradient):
 
 
 def _make_segment_near(core, gradient):
-    @njit(parallel=True, cache=True, fastmath=_FASTMATH)
+    @njit(parallel=True, cache=True, fastmath=_FASTMATH, error_model=ERROR_MODEL)
     def driver(t_leaves, t_start, t_count, near_ptr, near_src, s_start, s_count,
                tx, ty, tz, pax, pay, paz, pbx, pby, pbz, gam, rc2, vel, grad):
         for li in prange(t_leaves.shape[0]):

@@ -17,13 +17,13 @@
 from __future__ import annotations
 
 import math
-import os
 from functools import cache
 
 import numpy as np
 from scipy.optimize import brentq
 from scipy.special import erfc
 
+from .._system import available_bytes
 from ..errors import InputError
 from .smoothing import (
     CORE_LAMB_OSEEN,
@@ -122,6 +122,26 @@ def min_far_pairs(p: int, code: int, segments: bool) -> int:
     return int(m2l / pair)
 
 
+def _algebraic_terms(kernel: int, rho):
+    """1 - q(rho) and q'(rho) of an algebraic kernel, for a float or an array of rho.
+
+    Winckelmans-Leonard: 1 - q = ((r^2+1)^(5/2) - rho^3 (rho^2 + 5/2)) / (r^2+1)^(5/2),
+    exact to round-off only while 1 - q >> 1e-16; beyond (rho >= 50) the
+    asymptote 15/(8 rho^4) is used.
+    """
+    rho = np.asarray(rho, dtype=np.float64)
+    s = rho * rho + 1.0
+    with np.errstate(over="ignore", invalid="ignore"):   # the branch np.where drops may overflow
+        if kernel == ROSENHEAD_MOORE:
+            one_minus_q = 1.0 - rho**3 * s**-1.5
+            dq = 3.0 * rho * rho * s**-2.5
+        else:  # WINCKELMANS_LEONARD
+            one_minus_q = np.where(rho < 50.0, 1.0 - rho**3 * (rho * rho + 2.5) * s**-2.5,
+                                   15.0 / (8.0 * np.maximum(rho, 1.0) ** 4))
+            dq = 7.5 * rho * rho * s**-3.5
+    return one_minus_q, dq
+
+
 def _kernel_excess(kernel: int, rho: float) -> tuple[float, float]:
     """Relative change of the velocity and of the gradient pair law when a
     particle kernel is replaced by the singular law, at rho = |r|/sigma.
@@ -130,17 +150,8 @@ def _kernel_excess(kernel: int, rho: float) -> tuple[float, float]:
     gradient by at most (1 - q) + rho q'(rho)/3 relative to the singular
     pair (the gradient holds f and 2 f' r^2 = (rho q' - 3 q)/|r|^3).
     """
-    if kernel == ROSENHEAD_MOORE:
-        s = rho * rho + 1.0
-        one_minus_q = 1.0 - rho**3 * s**-1.5
-        dq = 3.0 * rho * rho * s**-2.5
-    elif kernel == WINCKELMANS_LEONARD:
-        s = rho * rho + 1.0
-        # 1 - q = ((r^2+1)^(5/2) - rho^3 (rho^2 + 5/2)) / (r^2+1)^(5/2), exact to round-off
-        # only while 1 - q >> 1e-16; beyond, the asymptote 15/(8 rho^4) is used.
-        one_minus_q = (1.0 - rho**3 * (rho * rho + 2.5) * s**-2.5) if rho < 50 else \
-            15.0 / (8.0 * rho**4)
-        dq = 7.5 * rho * rho * s**-3.5
+    if kernel in (ROSENHEAD_MOORE, WINCKELMANS_LEONARD):
+        one_minus_q, dq = (float(v) for v in _algebraic_terms(kernel, rho))
     else:  # GAUSSIAN
         one_minus_q = erfc(rho / math.sqrt(2.0)) + math.sqrt(2.0 / math.pi) * rho * \
             math.exp(-0.5 * rho * rho)
@@ -151,14 +162,7 @@ def _kernel_excess(kernel: int, rho: float) -> tuple[float, float]:
 def _algebraic_excess(kernel: int, rho: np.ndarray) -> np.ndarray:
     """max(velocity excess, gradient excess / 10) of :func:`_kernel_excess`
     for the algebraic kernels, vectorised over rho."""
-    s = rho * rho + 1.0
-    if kernel == ROSENHEAD_MOORE:
-        one_minus_q = 1.0 - rho**3 * s**-1.5
-        dq = 3.0 * rho * rho * s**-2.5
-    else:  # WINCKELMANS_LEONARD
-        one_minus_q = np.where(rho < 50.0, 1.0 - rho**3 * (rho * rho + 2.5) * s**-2.5,
-                               15.0 / (8.0 * np.maximum(rho, 1.0) ** 4))
-        dq = 7.5 * rho * rho * s**-3.5
+    one_minus_q, dq = _algebraic_terms(kernel, rho)
     return np.maximum(one_minus_q, (one_minus_q + rho * dq / 3.0) / 10.0)
 
 
@@ -315,15 +319,10 @@ def check_memory(n_targets: int, source_counts: list[int], gradient: bool, tree:
 
 
 def available_memory() -> int:
-    """Bytes of memory available to this process (MemAvailable on Linux)."""
-    try:
-        with open("/proc/meminfo") as fh:
-            for line in fh:
-                if line.startswith("MemAvailable:"):
-                    return int(line.split()[1]) * 1024
-    except OSError:
-        pass
-    return os.sysconf("SC_AVPHYS_PAGES") * os.sysconf("SC_PAGE_SIZE")
+    """Bytes of memory available to this process (:func:`wakes._system.available_bytes`;
+    unknown counts as unlimited)."""
+    have = available_bytes()
+    return have if have is not None else 2 ** 62
 
 
 def estimated_bytes(n_targets: int, source_counts: list[int], order: int,

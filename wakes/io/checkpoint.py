@@ -37,7 +37,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import WakesError
+from ..case import merge, parse_case
+from ..errors import CheckpointError
 from .atomic import write_bytes
 
 CHECKPOINT_FORMAT = "wakes-run-checkpoint"
@@ -45,10 +46,6 @@ CHECKPOINT_VERSION = 1
 CHECKPOINT_FOLDER = "checkpoints"
 KEEP_CHECKPOINTS = 2          # newest checkpoints kept in a run folder; older ones are removed
 _NAME = re.compile(r"^step-(\d{7,})\.npz$")
-
-
-class CheckpointError(WakesError):
-    """A run folder holds no checkpoint, or one that cannot be read."""
 
 
 @dataclass
@@ -259,14 +256,13 @@ def case_from_checkpoint(case_toml: str, source: str, overrides: dict | None = N
     ``source`` is the case file the run was started from (kept for messages
     and the run folder's case.toml); paths in the stored case are absolute.
     """
-    from ..case import _merge, parse_case
 
     try:
         data = tomllib.loads(case_toml)
     except tomllib.TOMLDecodeError as exc:
         raise CheckpointError(f"{source}: the stored case is not valid TOML ({exc})") from None
     if overrides:
-        data = _merge(data, overrides)
+        data = merge(data, overrides)
     return parse_case(data, source=source, base_dir=Path(source).resolve().parent)
 
 

@@ -21,7 +21,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..elements import Filaments, Particles
+from ..induction.elements import Filaments, Particles
 from . import vtk as vtk_io
 
 KINDS = ("filaments", "particles")

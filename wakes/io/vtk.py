@@ -17,7 +17,7 @@ from xml.sax.saxutils import quoteattr
 
 import numpy as np
 
-from ..elements import Filaments, Particles
+from ..induction.elements import Filaments, Particles
 from . import atomic
 
 _VTK_TYPES = {np.dtype(np.float64): "Float64", np.dtype(np.int64): "Int64"}

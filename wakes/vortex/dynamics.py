@@ -56,15 +56,14 @@ All velocities and velocity gradients come from :func:`wakes.induce`.
 
 from __future__ import annotations
 
-import inspect
 from dataclasses import dataclass
 
 import numpy as np
 
-from .elements import Particles
-from .induction import api as induction_api
-from .induction.pse import pse_exchange
-from .induction.smoothing import PARTICLE_KERNELS
+from ..induction import api as induction_api
+from ..induction.elements import Particles
+from ..induction.pse import pse_exchange
+from ..induction.smoothing import PARTICLE_KERNELS
 
 
 @dataclass(frozen=True)
@@ -129,9 +128,6 @@ VISCOUS_SCHEMES: dict[str, ViscousScheme] = {
 # int x^2 zeta(|x|) d^3x (derived from the kernels' zeta; infinite for
 # Rosenhead-Moore, which therefore has no PSE).
 KERNEL_SECOND_MOMENTS = {"gaussian": 1.0, "winckelmans-leonard": 0.5}
-
-_INDUCE_TAKES_TOLERANCE = "tolerance" in inspect.signature(induction_api.induce).parameters
-
 
 def induction_methods() -> tuple:
     """Summation methods the induction engine accepts."""
@@ -251,7 +247,7 @@ class ParticleDynamics:
         self.viscous = VISCOUS_SCHEMES[viscous_scheme] if viscosity > 0.0 else None
         self.volumes = volumes
         self._induce_options = {"method": method}
-        if _INDUCE_TAKES_TOLERANCE and method != "direct":
+        if method != "direct":
             self._induce_options["tolerance"] = tolerance
 
     # ------------------------------------------------------------ state layout

@@ -2,16 +2,21 @@
 
 from __future__ import annotations
 
+import io
 import json
 import math
 import os
 import sys
-import tempfile
 
 import numpy as np
 import pandas as pd
 
-from ._validate import choice, per_element, positive_scalar
+from .._validate import choice, per_element, positive_scalar
+from ..errors import InputError, NumericalError
+from ..induction.elements import Particles
+from ..induction.particle_ops import smoothed_fields_at
+from ..induction.smoothing import PARTICLE_KERNELS
+from ..io import atomic
 from .diagnostics import DIAGNOSTIC_COLUMNS, field_diagnostics
 from .dynamics import (
     STRETCHING_SCHEMES,
@@ -20,10 +25,6 @@ from .dynamics import (
     induction_methods,
     relax_divergence,
 )
-from .elements import Particles
-from .errors import InputError, NumericalError
-from .induction.particle_ops import smoothed_fields_at
-from .induction.smoothing import PARTICLE_KERNELS
 from .integrators import INTEGRATORS, rk_step
 
 CHECKPOINT_FORMAT = "wakes.ParticleFlow"
@@ -307,16 +308,9 @@ class ParticleFlow:
                   "meta": np.array(json.dumps(meta))}
         if self._dynamics.volumes is not None:
             arrays["volumes"] = self._dynamics.volumes
-        folder = os.path.dirname(os.path.abspath(path))
-        fd, tmp = tempfile.mkstemp(dir=folder, suffix=".npz.tmp")
-        try:
-            with os.fdopen(fd, "wb") as fh:
-                np.savez(fh, **arrays)
-            os.replace(tmp, path)
-        except BaseException:
-            if os.path.exists(tmp):
-                os.remove(tmp)
-            raise
+        buffer = io.BytesIO()
+        np.savez(buffer, **arrays)
+        atomic.write_bytes(path, buffer.getvalue())
 
     @classmethod
     def load(cls, path) -> ParticleFlow:

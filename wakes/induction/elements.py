@@ -10,9 +10,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from ._validate import as_float_array, choice, per_element
-from .errors import InputError
-from .induction.smoothing import CORE_MODELS, PARTICLE_KERNELS
+from .._validate import as_float_array, choice, per_element
+from ..errors import InputError
+from .smoothing import CORE_MODELS, PARTICLE_KERNELS
 
 
 def _frozen(a: np.ndarray) -> np.ndarray:

@@ -13,10 +13,10 @@ import operator
 
 import numpy as np
 
-from ._validate import as_float_array, choice, positive_scalar
-from .elements import Particles
-from .errors import InputError
-from .induction.smoothing import PARTICLE_KERNELS
+from .._validate import as_float_array, choice, positive_scalar
+from ..errors import InputError
+from ..induction.elements import Particles
+from ..induction.smoothing import PARTICLE_KERNELS
 
 # A resolved core's lattice spans this many lattice widths sigma_L: the
 # Gaussian profile beyond holds exp(-3.5^2/2) = 0.2 % of the circulation, the

@@ -1,4 +1,9 @@
-"""Induced velocity of a large wake evaluated across Dask workers.
+"""Dask at the edge: induced velocity of a large wake evaluated across workers.
+
+The only module that talks to Dask; the engine (:mod:`wakes.induction`)
+never imports it. :func:`induce` is the public ``wakes.induce``: the
+engine's, with an optional ``client``. :class:`WakeCluster` is the object
+a run's time loop is handed (:func:`wakes.run.run_case`).
 
 The sources are scattered to the workers once; the targets are cut into
 contiguous chunks, each chunk is evaluated on a worker with the ordinary
@@ -10,16 +15,51 @@ compiled variant of the same loop, so not always bit for bit).
 
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 
-from ._validate import as_float_array
-from .errors import InputError
+from ._validate import as_float_array, choice
+from .errors import InputError, WakesError
+from .induction import api as engine
 
 
 def _induce_chunk(sources, targets, options):
-    from .induction.api import induce
+    return engine.induce(sources, targets, **options)
 
-    return induce(sources, targets, **options)
+
+def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
+           tolerance: float = 1e-6, client=None):
+    """Velocity (and its gradient) induced by vortex elements at target points.
+
+    :func:`wakes.induction.api.induce` (see there for every parameter, the
+    returns and the laws), with one more option:
+
+    Parameters
+    ----------
+    client : dask.distributed.Client, optional
+        Evaluate chunks of the targets on the cluster's workers
+        (:func:`induce_on_cluster`): the sources are sent once, the result
+        equals the single-process one.
+
+    Examples
+    --------
+    >>> import numpy as np, wakes
+    >>> ring = wakes.Filaments.from_polyline(
+    ...     [[np.cos(t), np.sin(t), 0.0] for t in np.linspace(0, 2*np.pi, 64, endpoint=False)],
+    ...     circulation=1.0, core_radius=0.01, closed=True)
+    >>> u = wakes.induce(ring, [[0.0, 0.0, 0.0]])
+    >>> round(u[0, 2], 3)   # Gamma/(2R) at the centre
+    0.5
+    """
+    if client is None:
+        return engine.induce(sources, targets, gradient=gradient, method=method,
+                             tolerance=tolerance)
+    src = engine.as_source_list(sources)
+    tgt = as_float_array("targets", targets, (None, 3))
+    choice("method", method, engine.METHODS)
+    return induce_on_cluster(src, tgt, client, gradient=gradient, method=method,
+                             tolerance=tolerance)
 
 
 def induce_on_cluster(sources, targets, client, *, chunk_size: int | None = None, **options):
@@ -88,9 +128,7 @@ def connect(address: str):
     wakes.errors.WakesError
         If no scheduler answers within ``SCHEDULER_TIMEOUT_S``.
     """
-    import distributed
-
-    from .errors import WakesError
+    import distributed  # optional heavy library: loaded only when a scheduler is named
 
     try:
         return distributed.Client(address, timeout=SCHEDULER_TIMEOUT_S)
@@ -116,7 +154,7 @@ class WakeCluster:
     Examples
     --------
     >>> cluster = WakeCluster.open(case.cluster)              # doctest: +SKIP
-    >>> induce(wake, points, **cluster.options(method, 80_000))  # doctest: +SKIP
+    >>> cluster.inducer(80_000)(wake, points, method="direct")  # doctest: +SKIP
     """
 
     def __init__(self, client, min_wake: int, owned: bool = False):
@@ -135,12 +173,22 @@ class WakeCluster:
             return cls(connect(spec.scheduler), spec.min_wake, owned=True)
         return None
 
-    def options(self, method: dict, wake_elements: int) -> dict:
-        """``method`` (keyword arguments of :func:`wakes.induce`) with the
-        client added when the wake holds at least ``min_wake`` elements."""
-        return {**method, "client": self.client} if wake_elements >= self.min_wake else method
+    def inducer(self, wake_elements: int):
+        """The function that sums induced velocities for a wake of ``wake_elements``
+        elements: the engine's own below ``min_wake``, the workers' from there on.
+
+        Both take ``(sources, targets, **options)`` with the keyword
+        arguments of :func:`wakes.induction.api.induce`.
+        """
+        if wake_elements >= self.min_wake:
+            return functools.partial(_induce_with_client, client=self.client)
+        return engine.induce
 
     def close(self) -> None:
         """Close the client if it was opened here."""
         if self.owned:
             self.client.close()
+
+
+def _induce_with_client(sources, targets, *, client, **options):
+    return induce_on_cluster(sources, targets, client, **options)

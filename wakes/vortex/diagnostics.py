@@ -39,9 +39,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from .elements import Particles
-from .induction.particle_ops import smoothed_fields_at
-from .induction.smoothing import PARTICLE_KERNELS
+from ..induction.elements import Particles
+from ..induction.particle_ops import smoothed_fields_at
+from ..induction.smoothing import PARTICLE_KERNELS
 
 DIAGNOSTIC_COLUMNS = (
     "vorticity_x", "vorticity_y", "vorticity_z",

@@ -30,20 +30,39 @@ import dataclasses
 import difflib
 import math
 import re
-import tomllib
-from dataclasses import dataclass, field, fields
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
 
-from .aero.geometry import DISTRIBUTION_LAWS, SPACINGS, Distribution, WingPlanform
-from .aero.polars import OUT_OF_RANGE_MODES, load_polar_table
-from .aero.rotor import BLADE_SPACINGS, RotorGeometry
-from .aero.rotor_loads import ROTOR_KINDS
-from .dynamics import STRETCHING_SCHEMES
-from .errors import CaseError
-from .induction.api import METHODS
-from .induction.smoothing import CORE_MODELS, PARTICLE_KERNELS
+from ..aero.geometry import SPACINGS, Distribution, WingPlanform
+from ..aero.ground import GroundPlane
+from ..aero.polars import OUT_OF_RANGE_MODES, load_polar_table
+from ..aero.rotor import (
+    BLADE_SPACINGS,
+    RotorGeometry,
+    blade_turn_deg,
+    dt_for_turn,
+    is_axial_flow,
+)
+from ..aero.rotor_loads import ROTOR_KINDS
+from ..aero.wake import SEA_LEVEL_KINEMATIC_VISCOSITY
+from ..errors import CaseError
+from ..induction.api import METHODS
+from ..induction.smoothing import CORE_MODELS, PARTICLE_KERNELS
+from ..vortex.dynamics import STRETCHING_SCHEMES
+from .schema import (
+    Context,
+    accepted_text,
+    dump_toml,
+    key,
+    merge,
+    parse_section,
+    plain_default,
+    public_fields,
+    read_toml,
+    to_plain,
+)
 
 WAKE_MODELS = ("filaments", "particles")
 WAKE_MOTIONS = ("free", "frozen")
@@ -55,22 +74,6 @@ MAX_DEFAULT_STEPS = 10_000_000  # a default step count above this means the size
 _NAME = re.compile(r"^[A-Za-z0-9_-]+$")
 
 
-def key(default=dataclasses.MISSING, doc: str = "", unit: str = "", *, kind: str = "float",
-        minimum=None, maximum=None, above=None, choices=None, resolved: bool = False,
-        allow_inf: bool = False):
-    """A schema field: default, documentation, unit and accepted range.
-
-    ``kind`` is one of float, int, bool, str, vec3, distribution, path,
-    table. ``above`` is an exclusive lower bound, ``minimum``/``maximum``
-    inclusive bounds. ``resolved`` marks a field whose default is worked
-    out from the rest of the case; ``allow_inf`` accepts ``inf``.
-    """
-    meta = dict(doc=doc, unit=unit, kind=kind, minimum=minimum, maximum=maximum, above=above,
-                choices=tuple(choices) if choices is not None else None, resolved=resolved,
-                allow_inf=allow_inf)
-    return field(default=default, metadata=meta)
-
-
 # ----------------------------------------------------------------- sections
 
 @dataclass(frozen=True, kw_only=True)
@@ -78,7 +81,7 @@ class FluidSpec:
     """[fluid]: the fluid at rest far away."""
 
     density: float = key(1.225, "fluid density (ISA sea level by default)", "kg/m^3", above=0.0)
-    kinematic_viscosity: float = key(1.4607e-5, "kinematic viscosity nu (ISA sea level)", "m^2/s",
+    kinematic_viscosity: float = key(SEA_LEVEL_KINEMATIC_VISCOSITY, "kinematic viscosity nu (ISA sea level)", "m^2/s",
                                      minimum=0.0)
 
 
@@ -185,7 +188,6 @@ class GroundSpec:
 
     def plane(self):
         """The ground as a :class:`wakes.aero.ground.GroundPlane`, or None."""
-        from .aero.ground import GroundPlane
         return None if self.point is None else GroundPlane(np.asarray(self.point), np.asarray(self.normal))
 
     def after_parse(self, raw: dict, where: str, ctx) -> GroundSpec:
@@ -414,17 +416,18 @@ class RotorSpec:
                          f"normal); its blades reach {reach:g} m towards the ground, so the hub must "
                          f"be more than {reach:g} m above it")
         dt = case.time.dt
-        if dt is not None and 6.0 * self.rpm * dt > MAX_AZIMUTH_STEP:
-            ctx.fail(f"time.dt = {dt:g} s turns the blades of {where} by {6.0 * self.rpm * dt:.3g} deg "
-                     f"a step at {self.rpm:g} rpm; at most {MAX_AZIMUTH_STEP:g} deg is accepted "
-                     f"(5-10 deg advised): dt must be at most {MAX_AZIMUTH_STEP / (6.0 * self.rpm):.4g} s")
+        if dt is not None and blade_turn_deg(self.rpm, dt) > MAX_AZIMUTH_STEP:
+            ctx.fail(f"time.dt = {dt:g} s turns the blades of {where} by "
+                     f"{blade_turn_deg(self.rpm, dt):.3g} deg a step at {self.rpm:g} rpm; at most "
+                     f"{MAX_AZIMUTH_STEP:g} deg is accepted (5-10 deg advised): dt must be at most "
+                     f"{dt_for_turn(MAX_AZIMUTH_STEP, self.rpm):.4g} s")
         a = np.asarray(self.axis, dtype=np.float64)
         axial = float(case.freestream.vector() @ (a / np.linalg.norm(a)))
         if self.kind == "turbine" and not axial > 0.0:
             ctx.fail(f"{where}: a turbine needs wind blowing along its axis (downwind); the "
                      f"[freestream] velocity along {where}.axis is {axial:g} m/s, it must be positive")
         across = float(np.linalg.norm(np.cross(case.freestream.vector(), a / np.linalg.norm(a))))
-        if self.symmetric_wake and across > 1e-9 * max(abs(axial), 1e-300):
+        if self.symmetric_wake and not is_axial_flow(case.freestream.vector(), a):
             ctx.fail(f"{where}.symmetric_wake = true needs axial flow (hover, climb, axial wind); the "
                      f"[freestream] velocity has {across:g} m/s across {where}.axis")
         if self.kind == "propeller" and axial > 0.0:
@@ -436,7 +439,7 @@ class RotorSpec:
         return self
 
     def suggest_dt(self, case: Case) -> float:
-        return self.azimuth_step / (6.0 * self.rpm)
+        return dt_for_turn(self.azimuth_step, self.rpm)
 
     def suggest_steps_float(self, case: Case, dt: float) -> float:
         return self.revolutions * 60.0 / (self.rpm * dt) + 1.0
@@ -485,158 +488,14 @@ class Case:
 
     def to_dict(self) -> dict:
         """The case as nested plain data (what :meth:`to_toml` writes)."""
-        return _to_plain(self)
+        return to_plain(self)
 
     def to_toml(self, header: str = "") -> str:
         """The resolved case as TOML text that :func:`load_case` reads back."""
-        return _dump_toml(self.to_dict(), header)
+        return dump_toml(self.to_dict(), header)
 
 
 # ----------------------------------------------------------------- parsing
-
-class _Context:
-    """Where a case comes from, for messages."""
-
-    def __init__(self, source: str, base_dir: Path):
-        self.source = source
-        self.base_dir = base_dir
-
-    def fail(self, message: str):
-        raise CaseError(f"{self.source}: {message}")
-
-
-def _number(value, where, ctx, meta, integer=False):
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        kind = "an integer" if integer else "a number"
-        ctx.fail(f"{where} must be {kind}{_unit_text(meta)}; got {value!r}")
-    if integer and not isinstance(value, int):
-        ctx.fail(f"{where} must be an integer; got {value!r}")
-    if isinstance(value, float) and math.isnan(value):
-        ctx.fail(f"{where} must be a number; got nan")
-    if isinstance(value, float) and math.isinf(value) and not (meta.get("allow_inf") and value > 0):
-        ctx.fail(f"{where} must be finite; got {value!r}")
-    _check_range(value, where, ctx, meta)
-    return int(value) if integer else float(value)
-
-
-def _check_range(value, where, ctx, meta):
-    lo, hi, above = meta.get("minimum"), meta.get("maximum"), meta.get("above")
-    if above is not None and not value > above:
-        ctx.fail(f"{where} must be greater than {above:g}{_unit_text(meta)}; got {value!r}")
-    if lo is not None and value < lo or hi is not None and value > hi:
-        rng = (f"between {lo:g} and {hi:g}" if lo is not None and hi is not None
-               else f"at least {lo:g}" if lo is not None else f"at most {hi:g}")
-        ctx.fail(f"{where} must be {rng}{_unit_text(meta)}; got {value!r}")
-
-
-def _unit_text(meta) -> str:
-    return f" [{meta['unit']}]" if meta.get("unit") else ""
-
-
-def _distribution(value, where, ctx, meta) -> Distribution:
-    if isinstance(value, (int, float)) and not isinstance(value, bool):
-        d = Distribution.constant(_number(value, where, ctx, meta))
-        return d
-    if not isinstance(value, dict):
-        ctx.fail(f"{where} must be a number or a table such as {{law = \"linear\", root = 1.0, "
-                 f"tip = 0.5}}; got {value!r}")
-    law = value.get("law")
-    if law not in DISTRIBUTION_LAWS:
-        ctx.fail(f"{where}.law must be one of {', '.join(map(repr, DISTRIBUTION_LAWS))}; got {law!r}")
-    accepted = {"constant": ("value",), "linear": ("root", "tip"), "elliptic": ("root",),
-                "table": ("eta", "values")}[law]
-    _reject_unknown(value, ("law",) + accepted, where, ctx)
-    for k in accepted:
-        if k not in value:
-            ctx.fail(f"{where}: law \"{law}\" needs key '{k}' (keys: {', '.join(accepted)})")
-    if law == "table":
-        eta = _number_list(value["eta"], f"{where}.eta", ctx, {})
-        vals = _number_list(value["values"], f"{where}.values", ctx, {})
-        for i, v in enumerate(vals):
-            _check_range(v, f"{where}.values[{i}]", ctx, meta)
-        return Distribution("table", eta=tuple(eta), values=tuple(vals))
-    nums = {k: _number(value[k], f"{where}.{k}", ctx, meta) for k in accepted}
-    return Distribution(law, **nums)
-
-
-def _number_list(value, where, ctx, meta, length=None):
-    if not isinstance(value, list) or (length is not None and len(value) != length):
-        what = f"a list of {length} numbers" if length else "a list of numbers"
-        ctx.fail(f"{where} must be {what}{_unit_text(meta)}; got {value!r}")
-    return [_number(v, f"{where}[{i}]", ctx, {}) for i, v in enumerate(value)]
-
-
-def _reject_unknown(table: dict, accepted, where: str, ctx) -> None:
-    for k in table:
-        if k not in accepted:
-            close = difflib.get_close_matches(k, accepted, n=1, cutoff=0.6)
-            hint = f"did you mean '{close[0]}'? " if close else ""
-            prefix = f"{where}." if where else ""
-            ctx.fail(f"unknown key '{prefix}{k}'; {hint}(accepted: {', '.join(accepted)})")
-
-
-def _convert(f, value, where, ctx):
-    meta = f.metadata
-    kind = meta["kind"]
-    if kind in ("float", "int"):
-        return _number(value, where, ctx, meta, integer=kind == "int")
-    if kind == "bool":
-        if not isinstance(value, bool):
-            ctx.fail(f"{where} must be true or false; got {value!r}")
-        return value
-    if kind == "str":
-        if not isinstance(value, str):
-            ctx.fail(f"{where} must be a string; got {value!r}")
-        if meta["choices"] is not None and value not in meta["choices"]:
-            close = difflib.get_close_matches(value, meta["choices"], n=1, cutoff=0.6)
-            hint = f" (did you mean {close[0]!r}?)" if close else ""
-            ctx.fail(f"{where} must be one of {', '.join(map(repr, meta['choices']))}; "
-                     f"got {value!r}{hint}")
-        return value
-    if kind == "vec3":
-        return tuple(_number_list(value, where, ctx, meta, length=3))
-    if kind == "distribution":
-        return _distribution(value, where, ctx, meta)
-    if kind == "path":
-        if not isinstance(value, str) or not value:
-            ctx.fail(f"{where} must be a file path string; got {value!r}")
-        if len(value) > MAX_PATH_CHARS or "\0" in value:
-            ctx.fail(f"{where} must be a file path of at most {MAX_PATH_CHARS} characters; "
-                     f"got {value[:40]!r}...")
-        p = Path(value)
-        if p.is_absolute():
-            return str(p)
-        full = (ctx.base_dir / p).resolve()
-        base = ctx.base_dir.resolve()
-        if not full.is_relative_to(base):
-            ctx.fail(f"{where} = {value!r} leads out of the case file's folder {base}; a relative "
-                     "path must stay inside it (give an absolute path to use a file elsewhere)")
-        return str(full)
-    if kind == "table":
-        default = f.default
-        return _parse_section(type(default), value, where, ctx)
-    raise AssertionError(kind)
-
-
-def _public_fields(cls):
-    return [f for f in fields(cls) if not f.metadata.get("internal") and f.metadata.get("kind") != "bodies"]
-
-
-def _parse_section(cls, table, where: str, ctx, extra=None):
-    if not isinstance(table, dict):
-        ctx.fail(f"[{where}] must be a table of keys; got {table!r}")
-    fl = _public_fields(cls)
-    _reject_unknown(table, [f.name for f in fl], where, ctx)
-    kwargs = dict(extra or {})
-    for f in fl:
-        if f.name in table:
-            kwargs[f.name] = _convert(f, table[f.name], f"{where}.{f.name}" if where else f.name, ctx)
-        elif f.default is dataclasses.MISSING:
-            ctx.fail(f"{where}: missing key '{f.name}'{_unit_text(f.metadata)} ({f.metadata['doc']})")
-    obj = cls(**kwargs)
-    hook = getattr(obj, "after_parse", None)
-    return hook(table, where, ctx) if hook else obj
-
 
 def _parse_bodies(table, ctx) -> tuple:
     if not isinstance(table, dict) or not table:
@@ -655,7 +514,7 @@ def _parse_bodies(table, ctx) -> tuple:
             hint = f" (did you mean {close[0]!r}?)" if close else ""
             ctx.fail(f"{where}.type must be one of {', '.join(map(repr, BODY_TYPES))}; "
                      f"got {btype!r}{hint}")
-        out.append(_parse_section(BODY_TYPES[btype], body, where, ctx, extra={"name": name}))
+        out.append(parse_section(BODY_TYPES[btype], body, where, ctx, extra={"name": name}))
     return tuple(out)
 
 
@@ -681,12 +540,12 @@ def parse_case(data: dict, *, source: str = "<dict>", base_dir=".") -> Case:
     wakes.errors.CaseError
         Naming the source, the key, the bad value and what is accepted.
     """
-    ctx = _Context(source, Path(base_dir))
+    ctx = Context(source, Path(base_dir))
     if not isinstance(data, dict):
         ctx.fail(f"a case must be a table of keys; got {type(data).__name__}")
     data = dict(data)
     bodies_raw = data.pop("bodies", None)
-    case = _parse_section(Case, data, "", ctx)
+    case = parse_section(Case, data, "", ctx)
     if "title" not in data and source != "<dict>":
         case = dataclasses.replace(case, title=Path(source).stem)
     fs = case.freestream
@@ -730,39 +589,6 @@ def _resolve(case: Case) -> Case:
     return dataclasses.replace(case, wake=wake, time=TimeSpec(dt=dt, steps=steps), output=output)
 
 
-def _merge(base: dict, overrides: dict) -> dict:
-    out = dict(base)
-    for k, v in overrides.items():
-        out[k] = _merge(out[k], v) if isinstance(v, dict) and isinstance(out.get(k), dict) else v
-    return out
-
-
-MAX_CASE_BYTES = 2 ** 20     # largest case file read [B]; real cases are a few kB
-MAX_PATH_CHARS = 4096
-
-
-def read_toml(path) -> dict:
-    """Read a TOML file (at most ``MAX_CASE_BYTES``); a syntax error names the file, line and column."""
-    p = Path(path)
-    if not p.is_file():
-        raise CaseError(f"case file '{p}' not found")
-    if p.stat().st_size > MAX_CASE_BYTES:
-        raise CaseError(f"case file '{p}' is {p.stat().st_size:,} bytes; at most "
-                        f"{MAX_CASE_BYTES:,} bytes are read")
-    try:
-        with open(p, "rb") as fh:
-            return tomllib.load(fh)
-    except tomllib.TOMLDecodeError as exc:
-        msg = str(exc)
-        m = re.search(r"\(at line (\d+), column (\d+)\)", msg)
-        if m:
-            text = msg[:m.start()].strip()
-            raise CaseError(f"{p}: invalid TOML at line {m.group(1)}, column {m.group(2)}: {text}") from None
-        raise CaseError(f"{p}: invalid TOML: {msg}") from None
-    except UnicodeDecodeError as exc:
-        raise CaseError(f"{p}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
-
-
 def load_case(path, overrides: dict | None = None) -> Case:
     """Read, check and resolve a case file.
 
@@ -793,86 +619,17 @@ def load_case(path, overrides: dict | None = None) -> Case:
     """
     data = read_toml(path)
     if overrides:
-        data = _merge(data, overrides)
+        data = merge(data, overrides)
     return parse_case(data, source=str(path), base_dir=Path(path).resolve().parent)
 
 
 # ----------------------------------------------------------------- writing
 
-def _plain_value(v):
-    if isinstance(v, Distribution):
-        if v.law == "constant":
-            return v.value
-        if v.law == "table":
-            return {"law": "table", "eta": list(v.eta), "values": list(v.values)}
-        keys = {"linear": ("root", "tip"), "elliptic": ("root",)}[v.law]
-        return {"law": v.law, **{k: getattr(v, k) for k in keys}}
-    if dataclasses.is_dataclass(v):
-        return _to_plain(v)
-    if isinstance(v, tuple):
-        return list(v)
-    return v
-
-
-def _to_plain(obj) -> dict:
-    out = {}
-    omit = obj.omitted() if hasattr(obj, "omitted") else set()
-    for f in fields(obj):
-        if f.metadata.get("internal") or f.name in omit:
-            continue
-        v = getattr(obj, f.name)
-        if f.metadata.get("kind") == "bodies":
-            out["bodies"] = {b.name: _to_plain(b) for b in v}
-        elif v is not None:
-            out[f.name] = _plain_value(v)
-    return out
-
-
-def _toml_scalar(v) -> str:
-    if isinstance(v, bool):
-        return "true" if v else "false"
-    if isinstance(v, int):
-        return str(v)
-    if isinstance(v, float):
-        if math.isinf(v):
-            return "inf" if v > 0 else "-inf"
-        return repr(v)
-    if isinstance(v, str):
-        return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
-    if isinstance(v, list):
-        return "[" + ", ".join(_toml_scalar(x) for x in v) + "]"
-    if isinstance(v, dict):
-        return "{" + ", ".join(f"{k} = {_toml_scalar(x)}" for k, x in v.items()) + "}"
-    raise TypeError(type(v))
-
-
-def _is_section(v) -> bool:
-    return isinstance(v, dict) and "law" not in v
-
-
-def _dump_toml(data: dict, header: str = "") -> str:
-    lines = [f"# {h}" for h in header.splitlines()] if header else []
-
-    def emit(table: dict, name: str):
-        scalars = [(k, v) for k, v in table.items() if not _is_section(v)]
-        subs = [(k, v) for k, v in table.items() if _is_section(v)]
-        if name and (scalars or not subs):
-            lines.append("")
-            lines.append(f"[{name}]")
-        for k, v in scalars:
-            lines.append(f"{k} = {_toml_scalar(v)}")
-        for k, v in subs:
-            emit(v, f"{name}.{k}" if name else k)
-
-    emit(data, "")
-    return "\n".join(lines).lstrip("\n") + "\n"
-
-
 # ----------------------------------------------------------------- reference
 
 def case_reference() -> str:
     """Markdown reference of every case key, generated from the schema."""
-    sections = [("", Case)] + [(f.name, type(f.default)) for f in _public_fields(Case)
+    sections = [("", Case)] + [(f.name, type(f.default)) for f in public_fields(Case)
                                if f.metadata.get("kind") == "table"]
     sections += [(f"bodies.NAME] (type = \"{t}\")", cls) for t, cls in BODY_TYPES.items()]
     sections += [("bodies.NAME.airfoil", AirfoilSpec)]
@@ -882,7 +639,7 @@ def case_reference() -> str:
         out.append("")
         out.append("| key | unit | default | accepted | meaning |")
         out.append("|---|---|---|---|---|")
-        for f in _public_fields(cls):
+        for f in public_fields(cls):
             m = f.metadata
             if m.get("kind") == "table":
                 continue
@@ -891,24 +648,6 @@ def case_reference() -> str:
             elif m.get("resolved"):
                 default = "worked out"
             else:
-                default = f"`{_toml_scalar(_plain_value(f.default))}`" if f.default is not None else "none"
-            out.append(f"| `{f.name}` | {m.get('unit', '')} | {default} | {_accepted(m)} | {m.get('doc', '')} |")
+                default = f"`{plain_default(f.default)}`" if f.default is not None else "none"
+            out.append(f"| `{f.name}` | {m.get('unit', '')} | {default} | {accepted_text(m)} | {m.get('doc', '')} |")
     return "\n".join(out).lstrip("\n") + "\n"
-
-
-def _accepted(meta) -> str:
-    if meta.get("choices"):
-        return ", ".join(f"`{c}`" for c in meta["choices"])
-    parts = []
-    if meta.get("above") is not None:
-        parts.append(f"> {meta['above']:g}")
-    if meta.get("minimum") is not None:
-        parts.append(f">= {meta['minimum']:g}")
-    if meta.get("maximum") is not None:
-        parts.append(f"<= {meta['maximum']:g}")
-    kind = meta.get("kind")
-    extra = {"vec3": "3 numbers", "distribution": "number or law table", "path": "file path",
-             "bool": "true/false", "int": "integer"}.get(kind)
-    if extra:
-        parts.insert(0, extra)
-    return ", ".join(parts)

@@ -1,0 +1,33 @@
+"""Case files: the schema machinery (:mod:`.schema`) and the case's sections (:mod:`.specs`).
+
+``wakes.case.load_case`` reads, checks and resolves a case file; the names
+below are the ones other modules and users reach for.
+"""
+
+from .schema import dump_toml, key, merge, read_toml
+from .specs import (
+    BODY_TYPES,
+    MAX_AZIMUTH_STEP,
+    AirfoilSpec,
+    Case,
+    ClusterSpec,
+    FluidSpec,
+    FreestreamSpec,
+    GroundSpec,
+    OutputSpec,
+    RotorSpec,
+    SolverSpec,
+    TimeSpec,
+    WakeSpec,
+    WingSpec,
+    case_reference,
+    load_case,
+    parse_case,
+)
+
+__all__ = [
+    "BODY_TYPES", "MAX_AZIMUTH_STEP", "AirfoilSpec", "Case", "ClusterSpec", "FluidSpec",
+    "FreestreamSpec", "GroundSpec", "OutputSpec", "RotorSpec", "SolverSpec", "TimeSpec",
+    "WakeSpec", "WingSpec", "case_reference", "dump_toml", "key", "load_case", "merge",
+    "parse_case", "read_toml",
+]

@@ -1,0 +1,276 @@
+"""The case-file machinery: typed keys, parsing with "did you mean", TOML in and out.
+
+Nothing here knows a section of the case: :mod:`wakes.case.specs` declares
+the sections as frozen dataclasses whose fields are made by :func:`key`
+(default, documentation, unit, accepted range), and this module turns a
+table read by :mod:`tomllib` into those dataclasses, rejecting unknown keys
+with the closest accepted one, and writes a resolved case back as TOML
+(with tomli-w) and as a Markdown reference of every key.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import difflib
+import math
+import re
+import tomllib
+from dataclasses import field, fields
+from pathlib import Path
+
+import tomli_w
+
+from ..aero.geometry import DISTRIBUTION_LAWS, Distribution
+from ..errors import CaseError
+
+
+def key(default=dataclasses.MISSING, doc: str = "", unit: str = "", *, kind: str = "float",
+        minimum=None, maximum=None, above=None, choices=None, resolved: bool = False,
+        allow_inf: bool = False):
+    """A schema field: default, documentation, unit and accepted range.
+
+    ``kind`` is one of float, int, bool, str, vec3, distribution, path,
+    table. ``above`` is an exclusive lower bound, ``minimum``/``maximum``
+    inclusive bounds. ``resolved`` marks a field whose default is worked
+    out from the rest of the case; ``allow_inf`` accepts ``inf``.
+    """
+    meta = dict(doc=doc, unit=unit, kind=kind, minimum=minimum, maximum=maximum, above=above,
+                choices=tuple(choices) if choices is not None else None, resolved=resolved,
+                allow_inf=allow_inf)
+    return field(default=default, metadata=meta)
+
+
+def merge(base: dict, overrides: dict) -> dict:
+    out = dict(base)
+    for k, v in overrides.items():
+        out[k] = merge(out[k], v) if isinstance(v, dict) and isinstance(out.get(k), dict) else v
+    return out
+
+
+MAX_CASE_BYTES = 2 ** 20     # largest case file read [B]; real cases are a few kB
+MAX_PATH_CHARS = 4096
+
+
+def read_toml(path) -> dict:
+    """Read a TOML file (at most ``MAX_CASE_BYTES``); a syntax error names the file, line and column."""
+    p = Path(path)
+    if not p.is_file():
+        raise CaseError(f"case file '{p}' not found")
+    if p.stat().st_size > MAX_CASE_BYTES:
+        raise CaseError(f"case file '{p}' is {p.stat().st_size:,} bytes; at most "
+                        f"{MAX_CASE_BYTES:,} bytes are read")
+    try:
+        with open(p, "rb") as fh:
+            return tomllib.load(fh)
+    except tomllib.TOMLDecodeError as exc:
+        msg = str(exc)
+        m = re.search(r"\(at line (\d+), column (\d+)\)", msg)
+        if m:
+            text = msg[:m.start()].strip()
+            raise CaseError(f"{p}: invalid TOML at line {m.group(1)}, column {m.group(2)}: {text}") from None
+        raise CaseError(f"{p}: invalid TOML: {msg}") from None
+    except UnicodeDecodeError as exc:
+        raise CaseError(f"{p}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
+
+
+class Context:
+    """Where a case comes from, for messages."""
+
+    def __init__(self, source: str, base_dir: Path):
+        self.source = source
+        self.base_dir = base_dir
+
+    def fail(self, message: str):
+        raise CaseError(f"{self.source}: {message}")
+
+
+def number(value, where, ctx, meta, integer=False):
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        kind = "an integer" if integer else "a number"
+        ctx.fail(f"{where} must be {kind}{unit_text(meta)}; got {value!r}")
+    if integer and not isinstance(value, int):
+        ctx.fail(f"{where} must be an integer; got {value!r}")
+    if isinstance(value, float) and math.isnan(value):
+        ctx.fail(f"{where} must be a number; got nan")
+    if isinstance(value, float) and math.isinf(value) and not (meta.get("allow_inf") and value > 0):
+        ctx.fail(f"{where} must be finite; got {value!r}")
+    check_range(value, where, ctx, meta)
+    return int(value) if integer else float(value)
+
+
+def check_range(value, where, ctx, meta):
+    lo, hi, above = meta.get("minimum"), meta.get("maximum"), meta.get("above")
+    if above is not None and not value > above:
+        ctx.fail(f"{where} must be greater than {above:g}{unit_text(meta)}; got {value!r}")
+    if lo is not None and value < lo or hi is not None and value > hi:
+        rng = (f"between {lo:g} and {hi:g}" if lo is not None and hi is not None
+               else f"at least {lo:g}" if lo is not None else f"at most {hi:g}")
+        ctx.fail(f"{where} must be {rng}{unit_text(meta)}; got {value!r}")
+
+
+def unit_text(meta) -> str:
+    return f" [{meta['unit']}]" if meta.get("unit") else ""
+
+
+def _distribution(value, where, ctx, meta) -> Distribution:
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        d = Distribution.constant(number(value, where, ctx, meta))
+        return d
+    if not isinstance(value, dict):
+        ctx.fail(f"{where} must be a number or a table such as {{law = \"linear\", root = 1.0, "
+                 f"tip = 0.5}}; got {value!r}")
+    law = value.get("law")
+    if law not in DISTRIBUTION_LAWS:
+        ctx.fail(f"{where}.law must be one of {', '.join(map(repr, DISTRIBUTION_LAWS))}; got {law!r}")
+    accepted = {"constant": ("value",), "linear": ("root", "tip"), "elliptic": ("root",),
+                "table": ("eta", "values")}[law]
+    reject_unknown(value, ("law",) + accepted, where, ctx)
+    for k in accepted:
+        if k not in value:
+            ctx.fail(f"{where}: law \"{law}\" needs key '{k}' (keys: {', '.join(accepted)})")
+    if law == "table":
+        eta = number_list(value["eta"], f"{where}.eta", ctx, {})
+        vals = number_list(value["values"], f"{where}.values", ctx, {})
+        for i, v in enumerate(vals):
+            check_range(v, f"{where}.values[{i}]", ctx, meta)
+        return Distribution("table", eta=tuple(eta), values=tuple(vals))
+    nums = {k: number(value[k], f"{where}.{k}", ctx, meta) for k in accepted}
+    return Distribution(law, **nums)
+
+
+def number_list(value, where, ctx, meta, length=None):
+    if not isinstance(value, list) or (length is not None and len(value) != length):
+        what = f"a list of {length} numbers" if length else "a list of numbers"
+        ctx.fail(f"{where} must be {what}{unit_text(meta)}; got {value!r}")
+    return [number(v, f"{where}[{i}]", ctx, {}) for i, v in enumerate(value)]
+
+
+def reject_unknown(table: dict, accepted, where: str, ctx) -> None:
+    for k in table:
+        if k not in accepted:
+            close = difflib.get_close_matches(k, accepted, n=1, cutoff=0.6)
+            hint = f"did you mean '{close[0]}'? " if close else ""
+            prefix = f"{where}." if where else ""
+            ctx.fail(f"unknown key '{prefix}{k}'; {hint}(accepted: {', '.join(accepted)})")
+
+
+def _convert(f, value, where, ctx):
+    meta = f.metadata
+    kind = meta["kind"]
+    if kind in ("float", "int"):
+        return number(value, where, ctx, meta, integer=kind == "int")
+    if kind == "bool":
+        if not isinstance(value, bool):
+            ctx.fail(f"{where} must be true or false; got {value!r}")
+        return value
+    if kind == "str":
+        if not isinstance(value, str):
+            ctx.fail(f"{where} must be a string; got {value!r}")
+        if meta["choices"] is not None and value not in meta["choices"]:
+            close = difflib.get_close_matches(value, meta["choices"], n=1, cutoff=0.6)
+            hint = f" (did you mean {close[0]!r}?)" if close else ""
+            ctx.fail(f"{where} must be one of {', '.join(map(repr, meta['choices']))}; "
+                     f"got {value!r}{hint}")
+        return value
+    if kind == "vec3":
+        return tuple(number_list(value, where, ctx, meta, length=3))
+    if kind == "distribution":
+        return _distribution(value, where, ctx, meta)
+    if kind == "path":
+        if not isinstance(value, str) or not value:
+            ctx.fail(f"{where} must be a file path string; got {value!r}")
+        if len(value) > MAX_PATH_CHARS or "\0" in value:
+            ctx.fail(f"{where} must be a file path of at most {MAX_PATH_CHARS} characters; "
+                     f"got {value[:40]!r}...")
+        p = Path(value)
+        if p.is_absolute():
+            return str(p)
+        full = (ctx.base_dir / p).resolve()
+        base = ctx.base_dir.resolve()
+        if not full.is_relative_to(base):
+            ctx.fail(f"{where} = {value!r} leads out of the case file's folder {base}; a relative "
+                     "path must stay inside it (give an absolute path to use a file elsewhere)")
+        return str(full)
+    if kind == "table":
+        default = f.default
+        return parse_section(type(default), value, where, ctx)
+    raise AssertionError(kind)
+
+
+def public_fields(cls):
+    return [f for f in fields(cls) if not f.metadata.get("internal") and f.metadata.get("kind") != "bodies"]
+
+
+def parse_section(cls, table, where: str, ctx, extra=None):
+    if not isinstance(table, dict):
+        ctx.fail(f"[{where}] must be a table of keys; got {table!r}")
+    fl = public_fields(cls)
+    reject_unknown(table, [f.name for f in fl], where, ctx)
+    kwargs = dict(extra or {})
+    for f in fl:
+        if f.name in table:
+            kwargs[f.name] = _convert(f, table[f.name], f"{where}.{f.name}" if where else f.name, ctx)
+        elif f.default is dataclasses.MISSING:
+            ctx.fail(f"{where}: missing key '{f.name}'{unit_text(f.metadata)} ({f.metadata['doc']})")
+    obj = cls(**kwargs)
+    hook = getattr(obj, "after_parse", None)
+    return hook(table, where, ctx) if hook else obj
+
+
+def plain_value(v):
+    if isinstance(v, Distribution):
+        if v.law == "constant":
+            return v.value
+        if v.law == "table":
+            return {"law": "table", "eta": list(v.eta), "values": list(v.values)}
+        keys = {"linear": ("root", "tip"), "elliptic": ("root",)}[v.law]
+        return {"law": v.law, **{k: getattr(v, k) for k in keys}}
+    if dataclasses.is_dataclass(v):
+        return to_plain(v)
+    if isinstance(v, tuple):
+        return list(v)
+    return v
+
+
+def to_plain(obj) -> dict:
+    out = {}
+    omit = obj.omitted() if hasattr(obj, "omitted") else set()
+    for f in fields(obj):
+        if f.metadata.get("internal") or f.name in omit:
+            continue
+        v = getattr(obj, f.name)
+        if f.metadata.get("kind") == "bodies":
+            out["bodies"] = {b.name: to_plain(b) for b in v}
+        elif v is not None:
+            out[f.name] = plain_value(v)
+    return out
+
+
+def dump_toml(data: dict, header: str = "") -> str:
+    """``data`` (nested plain values, as :func:`to_plain` gives) as TOML text, after a
+    ``#`` comment block holding ``header``."""
+    comment = "".join(f"# {h}\n" for h in header.splitlines()) if header else ""
+    return comment + ("\n" if comment else "") + tomli_w.dumps(data)
+
+
+def plain_default(value) -> str:
+    """A key's default as it is written in a case file (for the key reference)."""
+    return tomli_w.dumps({"x": plain_value(value)}).strip()[len("x = "):].replace("\n", " ")
+
+
+def accepted_text(meta) -> str:
+    if meta.get("choices"):
+        return ", ".join(f"`{c}`" for c in meta["choices"])
+    parts = []
+    if meta.get("above") is not None:
+        parts.append(f"> {meta['above']:g}")
+    if meta.get("minimum") is not None:
+        parts.append(f">= {meta['minimum']:g}")
+    if meta.get("maximum") is not None:
+        parts.append(f"<= {meta['maximum']:g}")
+    kind = meta.get("kind")
+    extra = {"vec3": "3 numbers", "distribution": "number or law table", "path": "file path",
+             "bool": "true/false", "int": "integer"}.get(kind)
+    if extra:
+        parts.insert(0, extra)
+    return ", ".join(parts)
