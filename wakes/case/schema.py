@@ -254,8 +254,16 @@ def dump_toml(data: dict, header: str = "") -> str:
 
 
 def plain_default(value) -> str:
-    """A key's default as it is written in a case file (for the key reference)."""
-    return tomli_w.dumps({"x": plain_value(value)}).strip()[len("x = "):].replace("\n", " ")
+    """A key's default as it is written in a case file, on one line (for the key reference)."""
+    return _inline(plain_value(value))
+
+
+def _inline(v) -> str:
+    if isinstance(v, list):
+        return "[" + ", ".join(_inline(x) for x in v) + "]"
+    if isinstance(v, dict):
+        return "{" + ", ".join(f"{k} = {_inline(x)}" for k, x in v.items()) + "}"
+    return tomli_w.dumps({"x": v})[len("x = "):].strip()   # scalars as tomli-w writes them
 
 
 def accepted_text(meta) -> str:
