@@ -14,10 +14,9 @@ import pandas as pd
 import pytest
 import wakes.watchdog as watchdog
 from wakes.case import parse_case
-from wakes.io.checkpoint import list_checkpoints, newest_checkpoint, prepare_resume, read_checkpoint
-from wakes.run import run_case
 from wakes.errors import UnstableRunError
-from wakes.run import run_guarded
+from wakes.io.checkpoint import list_checkpoints, newest_checkpoint, prepare_resume, read_checkpoint
+from wakes.run import run_case, run_guarded
 from wakes.watchdog import EXIT_UNSTABLE, RunControl
 
 TINY = """title = "tiny"

@@ -5,9 +5,9 @@ import math
 import numpy as np
 import pytest
 import wakes
-from wakes.vortex.diagnostics import DIAGNOSTIC_COLUMNS, field_diagnostics, ring_centroid
 from wakes.induction.particle_ops import zeta
 from wakes.induction.smoothing import PARTICLE_KERNELS
+from wakes.vortex.diagnostics import DIAGNOSTIC_COLUMNS, field_diagnostics, ring_centroid
 
 from .conftest import random_cloud
 

@@ -3,6 +3,9 @@
 import numpy as np
 import pytest
 import wakes
+from wakes.induction.particle_ops import smoothed_fields_at
+from wakes.induction.pse import pse_exchange
+from wakes.induction.smoothing import PARTICLE_KERNELS
 from wakes.vortex.dynamics import (
     KERNEL_SECOND_MOMENTS,
     STRETCHING_SCHEMES,
@@ -11,9 +14,6 @@ from wakes.vortex.dynamics import (
     relax_divergence,
     stretching_rate,
 )
-from wakes.induction.particle_ops import smoothed_fields_at
-from wakes.induction.pse import pse_exchange
-from wakes.induction.smoothing import PARTICLE_KERNELS
 
 from .conftest import RNG_SEED, random_cloud
 

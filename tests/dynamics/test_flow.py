@@ -10,8 +10,8 @@ from hypothesis import given
 from hypothesis import strategies as st
 from scipy.spatial.transform import Rotation
 from wakes import ParticleFlow
-from wakes.vortex.diagnostics import DIAGNOSTIC_COLUMNS
 from wakes.errors import InputError, NumericalError, WakesError
+from wakes.vortex.diagnostics import DIAGNOSTIC_COLUMNS
 
 from .conftest import random_cloud, single_thread
 
