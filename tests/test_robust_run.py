@@ -109,10 +109,45 @@ def test_library_default_raises_the_watchdog_error(monkeypatch):
         run_case(_case(steps=12))
 
 
-def _cli(args, **kw):
+# ``wakes run`` in a child process that pauses, by construction, right after it
+# has written the checkpoint of step PAUSE: it creates FLAG and waits for
+# FLAG.go. The tests send their signal at an event they control (the flag),
+# never at a moment raced against the run's speed.
+_PAUSING_CLI = """
+import os, sys, time
+import wakes.io.checkpoint as checkpoint
+pause, flag = int(sys.argv[1]), sys.argv[2]
+_write = checkpoint.write_checkpoint
+def write_then_pause(out, state, *args, **kwargs):
+    result = _write(out, state, *args, **kwargs)
+    if state.step == pause:
+        open(flag, "w").close()
+        while not os.path.exists(flag + ".go"):
+            time.sleep(0.005)
+    return result
+checkpoint.write_checkpoint = write_then_pause
+from wakes.cli import main
+sys.exit(main(sys.argv[3:]))
+"""
+
+
+def _cli(args, *, pause, flag):
     env = dict(os.environ, PYTHONUNBUFFERED="1")
-    return subprocess.Popen([sys.executable, "-m", "wakes.cli", *args], env=env,
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, **kw)
+    return subprocess.Popen([sys.executable, "-c", _PAUSING_CLI, str(pause), str(flag), *args], env=env,
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+
+
+def _wait_for_pause(flag: Path, proc, hang_guard=900.0):
+    """Wait until the child has paused after its checkpoint (the guard only stops a hung test)."""
+    start = time.monotonic()
+    while not flag.exists():
+        assert proc.poll() is None, proc.communicate()
+        assert time.monotonic() - start < hang_guard, "the child never reached its checkpoint"
+        time.sleep(0.01)
+
+
+def _release(flag: Path):
+    Path(str(flag) + ".go").touch()
 
 
 def _summary_without_timing(path):
@@ -141,9 +176,11 @@ def test_sigint_mid_run_then_resume_equals_uninterrupted_cli_run(tmp_path):
     ref = run_guarded(wakes_load(case_file), tmp_path / "ref",
                       write=lambda r, o: write_run(r, o, plots=False))
     assert ref.status == "finished"
-    proc = _cli(["run", str(case_file), "--out", str(tmp_path / "cut"), "--quiet"])
-    _wait_for_checkpoint(tmp_path / "cut", proc)
-    proc.send_signal(signal.SIGINT)
+    flag = tmp_path / "paused"
+    proc = _cli(["run", str(case_file), "--out", str(tmp_path / "cut"), "--quiet"], pause=7, flag=flag)
+    _wait_for_pause(flag, proc)
+    proc.send_signal(signal.SIGINT)      # caught while paused inside step 7's checkpoint write
+    _release(flag)
     code = proc.wait(300)
     err = proc.communicate()[1]
     assert code == 128 + signal.SIGINT, err
@@ -177,16 +214,25 @@ def _parses(path: Path):
 
 def test_sigkill_at_random_points_leaves_only_parseable_files(tmp_path):
     """Three runs started together (their start-up overlaps), each killed at a random
-    moment after its first checkpoint."""
+    moment after a checkpoint. Each run pauses after the checkpoint of a random step
+    and is released; the kill follows a random delay. The runs are long by
+    construction (2,000 steps of a growing particle wake, far longer than the
+    delay), so every kill lands inside the run; where it lands changes nothing in
+    the verdict: every file left behind parses, and no temporary file is left
+    under a final name."""
     case_file = tmp_path / "tiny.toml"
-    case_file.write_text(TINY.format(steps=30, every=1))
+    case_file.write_text(TINY.format(steps=2000, every=1))
     rng = np.random.default_rng(9)
     outs = [tmp_path / f"run{k}" for k in range(3)]
-    procs = [_cli(["run", str(case_file), "--out", str(out), "--quiet", "--no-plots"])
-             for out in outs]
-    for out, proc, delay in zip(outs, procs, rng.uniform(0.0, 0.6, size=3)):
-        _wait_for_checkpoint(out, proc)
+    flags = [tmp_path / f"paused{k}" for k in range(3)]
+    procs = [_cli(["run", str(case_file), "--out", str(out), "--quiet", "--no-plots"],
+                  pause=int(pause), flag=flag)
+             for out, flag, pause in zip(outs, flags, rng.integers(1, 6, size=3))]
+    for out, flag, proc, delay in zip(outs, flags, procs, rng.uniform(0.0, 0.3, size=3)):
+        _wait_for_pause(flag, proc)
+        _release(flag)
         time.sleep(delay)
+        assert proc.poll() is None, "a 2000-step run finished early"
         proc.kill()
         proc.wait(60)
         files = [p for p in out.rglob("*") if p.is_file()]
