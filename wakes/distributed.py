@@ -115,8 +115,14 @@ class WakeCluster:
 
     Examples
     --------
-    >>> cluster = WakeCluster.open(case.cluster)              # doctest: +SKIP
-    >>> induce(wake, points, **cluster.options(method, 80_000))  # doctest: +SKIP
+    The client joins the induction options only once the wake is large
+    (a string stands in for a connected client here):
+
+    >>> cluster = WakeCluster(client="<client>", min_wake=50_000)
+    >>> cluster.options({"method": "tree"}, 80_000)
+    {'method': 'tree', 'client': '<client>'}
+    >>> cluster.options({"method": "tree"}, 1_000)
+    {'method': 'tree'}
     """
 
     def __init__(self, client, min_wake: int, owned: bool = False):

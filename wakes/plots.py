@@ -254,8 +254,8 @@ def plot_run(run_dir: str | os.PathLike, *, out: str | os.PathLike | None = None
 
     Examples
     --------
-    >>> paths = plot_run("glider-run", overwrite=True)   # doctest: +SKIP
-    >>> [p.name for p in paths]                           # doctest: +SKIP
+    >>> paths = plot_run("glider-run", overwrite=True)
+    >>> [p.name for p in paths]
     ['loads.png', 'span_loading.png', 'wake_3d.png']
     """
     from .runfolder import read_run

@@ -80,9 +80,9 @@ def result_table(summary: dict) -> str:
     Examples
     --------
     >>> print(result_table({"bodies": {"wing": {"CL": 0.5, "lift_N": 12.0}}}))
-    body  quantity  value    unit
+    body  quantity  value  unit
     wing  CL        0.5
-    wing  lift      12       N
+    wing  lift      12     N
     """
     rows = [("body", "quantity", "value", "unit")]
     for name, figures in summary.get("bodies", {}).items():
@@ -126,8 +126,9 @@ def run_to_folder(case, out: str | os.PathLike, *, overwrite: bool = False, prog
 
     Examples
     --------
-    >>> run = run_to_folder("cases/survey-glider.toml", "glider-run")  # doctest: +SKIP
-    >>> print(result_table(run.summary))                               # doctest: +SKIP
+    >>> run = run_to_folder("cases/survey-glider.toml", "glider-run-2", plots=False)
+    >>> sorted(run.summary["bodies"])
+    ['wing']
     """
     from .case import Case, load_case
     from .simulate import run_case
@@ -241,8 +242,9 @@ def read_run(path: str | os.PathLike) -> RunFolder:
 
     Examples
     --------
-    >>> run = read_run("glider-run")           # doctest: +SKIP
-    >>> run.loads["CL"].iloc[-1]               # doctest: +SKIP
+    >>> run = read_run("glider-run")
+    >>> len(run.loads)
+    70
     """
     path = Path(path)
     if not path.exists():

@@ -251,8 +251,9 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
     --------
     >>> from wakes.case import load_case
     >>> from wakes.simulate import run_case
-    >>> run = run_case(load_case("cases/validation/elliptic-wing.toml"))  # doctest: +SKIP
-    >>> run.summary["bodies"]["wing"]["CL"]                                # doctest: +SKIP
+    >>> run = run_case(load_case("cases/survey-glider.toml"))
+    >>> run.status, len(run.loads)
+    ('finished', 70)
     """
     started = _time.perf_counter()
     bodies = [BODY_MODELS[spec.type](spec, case) for spec in case.bodies]
