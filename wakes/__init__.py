@@ -11,6 +11,8 @@ import os as _os
 # nothing measurable. A user's own setting wins.
 _os.environ.setdefault("OMP_WAIT_POLICY", "PASSIVE")
 
+from importlib import metadata as _metadata
+
 from . import exact
 from .case import Case, load_case, parse_case
 from .elements import Filaments, Particles
@@ -21,7 +23,10 @@ from .initial import lamb_oseen_ring, vortex_ring
 from .simulate import Run, run_case
 from .sweep import sweep
 
-__version__ = "0.1.0"
+try:   # the installed distribution's version, written once in pyproject.toml
+    __version__ = _metadata.version("wakes")
+except _metadata.PackageNotFoundError:   # a source tree on sys.path, not installed
+    __version__ = "0+unknown"
 
 __all__ = [
     "CaseError", "Filaments", "InputError", "NumericalError", "Particles",

@@ -38,6 +38,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from . import __version__
 from .errors import WakesError
 
 EXIT_USER_ERROR = 2
@@ -53,6 +54,7 @@ class _Parser(argparse.ArgumentParser):
 def _parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog="wakes", description="Aerodynamic wakes of wings and rotors with vortex methods.")
+    parser.add_argument("--version", action="version", version=f"wakes {__version__}")
     sub = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
     run = sub.add_parser("run", help="run a case file and write its results folder",
                          description="Run a case file and write loads.csv, sections.csv, "
