@@ -30,6 +30,7 @@ import dataclasses
 import difflib
 import math
 import re
+import stat
 import tomllib
 from dataclasses import dataclass, field, fields
 from pathlib import Path
@@ -661,7 +662,10 @@ def _number_list(value, where, ctx, meta, length=None):
 
 def _short(value, limit: int = 80) -> str:
     """``repr(value)`` cut to ``limit`` characters, for messages."""
-    text = repr(value)
+    try:
+        text = repr(value)
+    except RecursionError:
+        text = f"a {type(value).__name__} nested too deeply"
     return text if len(text) <= limit else text[:limit - 3] + "..."
 
 
@@ -876,16 +880,37 @@ MAX_PATH_CHARS = 4096
 
 
 def read_toml(path) -> dict:
-    """Read a TOML file (at most ``MAX_CASE_BYTES``); a syntax error names the file, line and column."""
+    """Read a TOML file (at most ``MAX_CASE_BYTES``); a syntax error names the file, line and column.
+
+    Raises
+    ------
+    wakes.errors.CaseError
+        If the file is missing, a folder, unreadable, too large, not UTF-8
+        text or not valid TOML.
+    """
     p = Path(path)
-    if not p.is_file():
-        raise CaseError(f"case file '{p}' not found")
-    if p.stat().st_size > MAX_CASE_BYTES:
-        raise CaseError(f"case file '{p}' is {p.stat().st_size:,} bytes; at most "
+    try:
+        info = p.stat()
+    except (FileNotFoundError, NotADirectoryError):
+        raise CaseError(f"case file '{p}' not found") from None
+    except (OSError, ValueError) as exc:
+        raise CaseError(f"case file {_short(str(p))}: cannot read it ({_reason(exc)})") from None
+    if stat.S_ISDIR(info.st_mode):
+        raise CaseError(f"case file '{p}' is a folder; give the TOML file of a case")
+    if not stat.S_ISREG(info.st_mode):
+        raise CaseError(f"case file '{p}' is not a regular file; give the TOML file of a case")
+    if info.st_size > MAX_CASE_BYTES:
+        raise CaseError(f"case file '{p}' is {info.st_size:,} bytes; at most "
                         f"{MAX_CASE_BYTES:,} bytes are read")
     try:
         with open(p, "rb") as fh:
-            return tomllib.load(fh)
+            raw = fh.read(MAX_CASE_BYTES + 1)
+    except OSError as exc:
+        raise CaseError(f"case file '{p}': cannot read it ({_reason(exc)})") from None
+    if len(raw) > MAX_CASE_BYTES:
+        raise CaseError(f"case file '{p}' is more than {MAX_CASE_BYTES:,} bytes; at most that is read")
+    try:
+        return tomllib.loads(raw.decode("utf-8"))
     except tomllib.TOMLDecodeError as exc:
         msg = str(exc)
         m = re.search(r"\(at line (\d+), column (\d+)\)", msg)
@@ -895,6 +920,13 @@ def read_toml(path) -> dict:
         raise CaseError(f"{p}: invalid TOML: {msg}") from None
     except UnicodeDecodeError as exc:
         raise CaseError(f"{p}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
+    except RecursionError:
+        raise CaseError(f"{p}: arrays or tables nested too deeply to read") from None
+
+
+def _reason(exc: BaseException) -> str:
+    """The operating system's words for an error (e.g. "Permission denied"), else its type."""
+    return getattr(exc, "strerror", None) or str(exc) or type(exc).__name__
 
 
 def load_case(path, overrides: dict | None = None) -> Case:
