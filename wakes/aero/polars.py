@@ -31,7 +31,9 @@ from ..io.tables import read_numeric_table
 from .post_stall import ViternaCorrigan, cd_max_from_aspect_ratio, check_extendable, extend_to_180
 
 POLAR_COLUMNS = ("alpha_deg", "cl", "cd")
-OUT_OF_RANGE_MODES = ("error", "flat-plate", "viterna")
+OUT_OF_RANGE_MODES = ("error", "flat-plate")                # the modes the case schema offers today
+TABLE_OUT_OF_RANGE_MODES = OUT_OF_RANGE_MODES + ("viterna",)  # all a TablePolar accepts
+_EXTEND_CHOICES = " or ".join(f'"{m}"' for m in OUT_OF_RANGE_MODES if m != "error")
 FLAT_PLATE_BLEND = np.radians(10.0)  # angle over which a table blends into flat-plate values
 
 
@@ -153,8 +155,8 @@ class TablePolar:
         self.cl = np.ascontiguousarray(cl, dtype=np.float64)
         self.cd = np.ascontiguousarray(cd, dtype=np.float64)
         self.name = name
-        if out_of_range not in OUT_OF_RANGE_MODES:
-            raise InputError(f"out_of_range must be one of {', '.join(map(repr, OUT_OF_RANGE_MODES))}; "
+        if out_of_range not in TABLE_OUT_OF_RANGE_MODES:
+            raise InputError(f"out_of_range must be one of {', '.join(map(repr, TABLE_OUT_OF_RANGE_MODES))}; "
                              f"got {out_of_range!r}")
         self.out_of_range = out_of_range
         n = self.alpha.shape[0]
@@ -205,7 +207,7 @@ class TablePolar:
             raise PolarRangeError(
                 f"polar '{self.name}' covers {np.degrees(lo):g} to {np.degrees(hi):g} deg; "
                 f"an angle of {bad:.3g} deg{at_mach(mach, i)} was met (extend the table or set "
-                f"out_of_range = \"viterna\" or \"flat-plate\")", i, bad, mach_of(mach, i))
+                f"out_of_range = {_EXTEND_CHOICES})", i, bad, mach_of(mach, i))
         return self._inside(a) if not outside.any() else self._with_extension(a, outside)
 
     def _inside(self, a):
