@@ -356,3 +356,8 @@ def test_section_polars_mix_polars_and_scale_the_mach_slope_by_the_speed_of_soun
     plain = SectionPolars((comp,), [0, 0, 0]).evaluate_at_speed(a, speed)
     np.testing.assert_allclose(plain[0], 2 * np.pi * a)
     np.testing.assert_allclose(plain[3], 0.0)
+
+
+def test_unknown_builtin_section_names_the_known_ones():
+    with pytest.raises(InputError, match=r"unknown built-in section 'naca0015'; known: 'naca0012'"):
+        builtin_polar("naca0015")
