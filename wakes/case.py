@@ -53,7 +53,7 @@ DEFAULT_CORE_CHORDS = 0.1   # initial core radius / smallest mean chord (common 
 DEFAULT_WAKE_SPANS = 3.0    # default run length: wake this many spans long (downwash within ~1 %)
 DEFAULT_SNAPSHOTS = 15       # wake snapshots of a run by default: an animation, not a copy per step
 _NAME = re.compile(r"[A-Za-z0-9_-]{1,64}")
-_SCHEDULER = re.compile(r"(?:tcp|tls)://(?:[A-Za-z0-9_.-]+|\[[0-9A-Fa-f:.]+\]):([0-9]{1,5})")
+SCHEDULER_ADDRESS = re.compile(r"(?:tcp|tls)://(?:[A-Za-z0-9_.-]+|\[[0-9A-Fa-f:.]+\]):([0-9]{1,5})")
 
 # Ranges of the case keys. They are typo guards, wide enough for anything from an insect-sized
 # model wing to the largest wind turbines, and they keep every product the time loop forms
@@ -229,7 +229,7 @@ class ClusterSpec:
                         "induction goes to the workers", kind="int", minimum=1, maximum=10 ** 12)
 
     def after_parse(self, raw: dict, where: str, ctx) -> ClusterSpec:
-        m = _SCHEDULER.fullmatch(self.scheduler)
+        m = SCHEDULER_ADDRESS.fullmatch(self.scheduler)
         if self.scheduler and not (m and 1 <= int(m.group(1)) <= 65535):
             ctx.fail(f"{where}.scheduler must be an address tcp://HOST:PORT or tls://HOST:PORT such "
                      f"as 'tcp://10.0.0.5:8786', port 1 to 65535 (or empty); got {_short(self.scheduler)}")

@@ -94,6 +94,9 @@ def connect(address: str):
 
     try:
         return distributed.Client(address, timeout=SCHEDULER_TIMEOUT_S)
+    except ValueError as exc:      # an address Dask cannot parse (scheme, port)
+        raise WakesError(f"scheduler {address!r}: not an address of a Dask scheduler ({exc}); give "
+                         "tcp://HOST:PORT") from None
     except (OSError, TimeoutError) as exc:
         raise WakesError(f"scheduler {address}: no Dask scheduler answered within "
                          f"{SCHEDULER_TIMEOUT_S:.0f} s ({type(exc).__name__}); start one with "

@@ -54,10 +54,18 @@ def _look():
 
 
 def _save(fig, path: Path) -> Path:
+    """Write the figure atomically (a full disk leaves no truncated image) and close it."""
+    import io
+
     import matplotlib.pyplot as plt
-    fig.savefig(path, bbox_inches="tight")
-    plt.close(fig)
-    return path
+
+    from .io.atomic import write_bytes
+    buf = io.BytesIO()
+    try:
+        fig.savefig(buf, format=Path(path).suffix.lstrip(".") or "png", bbox_inches="tight")
+    finally:
+        plt.close(fig)
+    return write_bytes(path, buf.getvalue())
 
 
 def plot_loads(run, path) -> Path | None:

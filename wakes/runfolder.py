@@ -58,10 +58,16 @@ def write_parquet(run, out: str | os.PathLike) -> list[Path]:
         import pyarrow  # noqa: F401  (only whether it is there)
     except ImportError:
         return []
+    import io
+
+    from .io.atomic import write_bytes
+
     out = Path(out)
     paths = [out / "loads.parquet", out / "sections.parquet"]
-    run.loads.to_parquet(paths[0], index=False)
-    run.sections.to_parquet(paths[1], index=False)
+    for frame, path in ((run.loads, paths[0]), (run.sections, paths[1])):
+        buf = io.BytesIO()                 # written atomically, as every other file of a run
+        frame.to_parquet(buf, index=False)
+        write_bytes(path, buf.getvalue())
     return paths
 
 

@@ -255,7 +255,8 @@ def run_guarded(case, out, *, write, progress=None, max_memory: int | None = Non
     def save(state):
         write_checkpoint(out, state, case_toml, case.source)
 
-    snapshots = WakeSnapshots(out, keep_before=0 if resume is None else resume.step)
+    # an earlier run's snapshots go when this run writes its first one, not before
+    snapshots = WakeSnapshots(out, keep_before=0 if resume is None else resume.step, remove_now=False)
     control = RunControl(checkpoint_every=case.output.checkpoint_every, save=save,
                          keep_partial=True, max_memory=max_memory,
                          snapshot_every=case.output.snapshot_every, snapshot=snapshots.write)
