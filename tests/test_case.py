@@ -73,8 +73,11 @@ def test_freestream_vector_and_exclusive_forms():
     ({**_wing(), "wake": {"max_age": -1.0}}, r"max_age must be greater than 0"),
     ({**_wing(), "solver": {"relaxation": 1.5}}, r"relaxation must be at most 1"),
     (_wing(airfoil={"lift_slope": 6.0, "polar": "x.csv"}), r"not found|either a polar table"),
-    (_wing(span=1e308), r"\[time\] steps: the default .* give \[time\] steps"),
-    ({**_wing(), "freestream": {"speed": 1e308}}, r"\[time\] (dt|steps): the default"),
+    (_wing(span=1e308), r"bodies.wing.span must be at most 10000 \[m\]; got 1e\+308"),
+    ({**_wing(), "freestream": {"speed": 1e308}}, r"freestream.speed must be between 0 and 1000 \[m/s\]; got 1e\+308"),
+    ({**_wing(span=1e4), "freestream": {"speed": 1e-3}, "time": {"dt": 1e-3}},
+     r"\[time\] steps: the default .* give \[time\] steps"),
+    ({**_wing(), "freestream": {"speed": 1e-6}}, r"\[time\] dt: the default"),
 ])
 def test_bad_values_name_the_key_and_what_is_accepted(data, message):
     with pytest.raises(CaseError, match=message):

@@ -110,10 +110,50 @@ def test_library_default_raises_the_watchdog_error(monkeypatch):
         run_case(_case(steps=12))
 
 
-def _cli(args, **kw):
+# ``wakes run`` in a child process that pauses, by construction, right after it
+# has written the checkpoint of step PAUSE: it creates FLAG and waits for
+# FLAG.go. The tests send their signal at an event they control (the flag),
+# never at a moment raced against the run's speed.
+_PAUSING_CLI = """
+import os, sys, time
+import wakes.io.checkpoint as checkpoint
+pause, flag = int(sys.argv[1]), sys.argv[2]
+_write = checkpoint.write_checkpoint
+def write_then_pause(out, state, *args, **kwargs):
+    result = _write(out, state, *args, **kwargs)
+    if state.step == pause:
+        open(flag, "w").close()
+        while not os.path.exists(flag + ".go"):
+            time.sleep(0.005)
+    return result
+checkpoint.write_checkpoint = write_then_pause
+from wakes.cli import main
+sys.exit(main(sys.argv[3:]))
+"""
+
+
+def _cli(args, *, pause, flag):
     env = dict(os.environ, PYTHONUNBUFFERED="1")
-    return subprocess.Popen([sys.executable, "-m", "wakes.cli", *args], env=env,
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, **kw)
+    return subprocess.Popen([sys.executable, "-c", _PAUSING_CLI, str(pause), str(flag), *args], env=env,
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+
+
+def _plain_cli(args):
+    env = dict(os.environ, PYTHONUNBUFFERED="1")
+    return subprocess.run([sys.executable, "-m", "wakes.cli", *args], env=env, capture_output=True, text=True)
+
+
+def _wait_for_pause(flag: Path, proc, hang_guard=900.0):
+    """Wait until the child has paused after its checkpoint (the guard only stops a hung test)."""
+    start = time.monotonic()
+    while not flag.exists():
+        assert proc.poll() is None, proc.communicate()
+        assert time.monotonic() - start < hang_guard, "the child never reached its checkpoint"
+        time.sleep(0.01)
+
+
+def _release(flag: Path):
+    Path(str(flag) + ".go").touch()
 
 
 def _summary_without_timing(path):
@@ -132,34 +172,29 @@ def _wait_for_checkpoint(run_dir, proc, timeout=120.0):
 
 def test_sigint_mid_run_then_resume_equals_uninterrupted_cli_run(tmp_path):
     """SIGINT to a ``wakes run`` process, then ``wakes run --resume``: the same files as a run
-    that never stopped. The reference and the resume run in this process (same library build
-    and thread count as the subprocess), so only the interrupted run pays a process start."""
-    from wakes.cli import main
-    from wakes.run import write_run
-
+    that never stopped. All three runs are ``wakes run`` child processes with one
+    environment: a parallel sum's round-off depends on the thread count and threading
+    layer, which may differ between this test process and a child."""
     case_file = tmp_path / "tiny.toml"
     case_file.write_text(TINY.format(steps=20, every=1))
-    ref = run_guarded(wakes_load(case_file), tmp_path / "ref",
-                      write=lambda r, o: write_run(r, o, plots=False))
-    assert ref.status == "finished"
-    proc = _cli(["run", str(case_file), "--out", str(tmp_path / "cut"), "--quiet"])
-    _wait_for_checkpoint(tmp_path / "cut", proc)
-    proc.send_signal(signal.SIGINT)
+    ref = _plain_cli(["run", str(case_file), "--out", str(tmp_path / "ref"), "--quiet", "--no-plots"])
+    assert ref.returncode == 0, ref.stderr
+    flag = tmp_path / "paused"
+    proc = _cli(["run", str(case_file), "--out", str(tmp_path / "cut"), "--quiet"], pause=7, flag=flag)
+    _wait_for_pause(flag, proc)
+    proc.send_signal(signal.SIGINT)      # caught while paused inside step 7's checkpoint write
+    _release(flag)
     code = proc.wait(300)
     err = proc.communicate()[1]
     assert code == 128 + signal.SIGINT, err
     assert "interrupted" in err and "--resume" in err and "Traceback" not in err
-    assert main(["run", "--resume", str(tmp_path / "cut"), "--quiet", "--no-plots"]) == 0
+    resumed = _plain_cli(["run", "--resume", str(tmp_path / "cut"), "--quiet", "--no-plots"])
+    assert resumed.returncode == 0, resumed.stderr
     for name in ("loads.csv", "sections.csv", "wake/filaments.pvd", "wake/particles.pvd"):
         assert (tmp_path / "ref" / name).read_text() == (tmp_path / "cut" / name).read_text(), name
     assert _summary_without_timing(tmp_path / "ref" / "summary.json") == \
         _summary_without_timing(tmp_path / "cut" / "summary.json")
     assert not list_checkpoints(tmp_path / "cut")   # removed once the run finished
-
-
-def wakes_load(path):
-    from wakes.case import load_case
-    return load_case(path)
 
 
 def _parses(path: Path):
@@ -178,16 +213,25 @@ def _parses(path: Path):
 
 def test_sigkill_at_random_points_leaves_only_parseable_files(tmp_path):
     """Three runs started together (their start-up overlaps), each killed at a random
-    moment after its first checkpoint."""
+    moment after a checkpoint. Each run pauses after the checkpoint of a random step
+    and is released; the kill follows a random delay. The runs are long by
+    construction (2,000 steps of a growing particle wake, far longer than the
+    delay), so every kill lands inside the run; where it lands changes nothing in
+    the verdict: every file left behind parses, and no temporary file is left
+    under a final name."""
     case_file = tmp_path / "tiny.toml"
-    case_file.write_text(TINY.format(steps=30, every=1))
+    case_file.write_text(TINY.format(steps=2000, every=1))
     rng = np.random.default_rng(9)
     outs = [tmp_path / f"run{k}" for k in range(3)]
-    procs = [_cli(["run", str(case_file), "--out", str(out), "--quiet", "--no-plots"])
-             for out in outs]
-    for out, proc, delay in zip(outs, procs, rng.uniform(0.0, 0.6, size=3)):
-        _wait_for_checkpoint(out, proc)
+    flags = [tmp_path / f"paused{k}" for k in range(3)]
+    procs = [_cli(["run", str(case_file), "--out", str(out), "--quiet", "--no-plots"],
+                  pause=int(pause), flag=flag)
+             for out, flag, pause in zip(outs, flags, rng.integers(1, 6, size=3))]
+    for out, flag, proc, delay in zip(outs, flags, procs, rng.uniform(0.0, 0.3, size=3)):
+        _wait_for_pause(flag, proc)
+        _release(flag)
         time.sleep(delay)
+        assert proc.poll() is None, "a 2000-step run finished early"
         proc.kill()
         proc.wait(60)
         files = [p for p in out.rglob("*") if p.is_file()]

@@ -11,6 +11,7 @@ import numpy as np
 import pandas as pd
 import pytest
 import wakes
+from wakes.aero.vortex_lattice import NEGLIGIBLE_CIRCULATION
 from wakes.cli import main
 from wakes.estimate import estimate_case, wake_sizes
 from wakes.progress import ProgressBar
@@ -75,15 +76,32 @@ def test_filament_snapshots_over_time_are_read_back_by_vtk(run_dirs):
     assert [t for t, _ in entries] == pytest.approx([k * dt for k in range(1, 6)])
     assert [f.name for _, f in entries] == [f"filaments_{k:06d}.vtp" for k in range(1, 6)]
     lines = [_read_vtp(f).GetNumberOfLines() for _, f in entries]
-    # k rows of 6 spanwise segments and k - 1 rows of 7 streamwise ones (lattice bookkeeping)
-    assert lines == [6 * k + 7 * (k - 1) for k in range(2, 7)]
+    # k rows of 6 spanwise segments and k - 1 rows of 7 streamwise ones (lattice bookkeeping),
+    # less the segments whose net circulation is round-off (dropped by a stated rule, checked
+    # on the final wake below); the 7 trailers of every row always carry circulation
+    assert all(7 * (k - 1) <= n <= 6 * k + 7 * (k - 1) for n, k in zip(lines, range(2, 7)))
     poly = _read_vtp(entries[-1][1])
-    assert poly.GetNumberOfLines() == len(segs) == 71   # the last snapshot is the final wake
+    assert poly.GetNumberOfLines() == len(segs)   # the last snapshot is the final wake
+    _assert_round_off_segments_dropped(segs, rows=6)
     circ = poly.GetCellData().GetArray("circulation")
     core = poly.GetCellData().GetArray("core_radius")
     assert circ.GetNumberOfTuples() == len(segs) and core.GetNumberOfTuples() == len(segs)
     got = np.array([circ.GetValue(i) for i in range(len(segs))])
     np.testing.assert_allclose(got, segs["gamma_m2_s"], rtol=1e-9)   # CSV keeps 10 digits
+
+
+def _assert_round_off_segments_dropped(segs, rows):
+    """The rule behind the segment count: no segment with |Gamma| at round-off is kept.
+
+    The lattice of ``rows`` rows holds 6 rows x 6 spanwise and 5 x 7 streamwise segments
+    at most; those dropped carry |Gamma| <= NEGLIGIBLE_CIRCULATION times the largest
+    circulation, and which ones they are may differ between machines (a difference of two
+    equal ring circulations is 0 on one and 1e-16 on another). Every kept segment is
+    above the threshold, and the 7 (rows - 1) trailers are all kept (a lifting wing
+    trails circulation at every spanwise station)."""
+    gamma = segs["gamma_m2_s"].to_numpy()
+    assert np.all(np.abs(gamma) > NEGLIGIBLE_CIRCULATION * np.abs(gamma).max())
+    assert 7 * (rows - 1) <= len(segs) <= 6 * rows + 7 * (rows - 1)
 
 
 def test_particle_snapshot_is_read_back_by_vtk(run_dirs):
@@ -100,9 +118,11 @@ def test_particle_snapshot_is_read_back_by_vtk(run_dirs):
 
 
 def test_estimated_wake_size_matches_the_run(run_dirs):
-    """The bookkeeping of the estimate is exact for a filament wing wake; a particle wake drops
-    a few zero-strength elements, so there it is an upper bound within 5 %."""
-    for name, rtol in (("filaments", 0.0), ("particles", 0.05)):
+    """The estimate counts every lattice segment and particle; the run drops the few whose
+    circulation is round-off (which ones may differ between machines), so the estimate is
+    an upper bound: within 10 % on these 6-step wakes (5 of 71 segments are round-off here:
+    the shed segments between rows whose circulation has stopped changing)."""
+    for name, rtol in (("filaments", 0.10), ("particles", 0.10)):
         _, run = run_dirs[name]
         seg, par = wake_sizes(run.case)
         actual = [sum(e.segment_count for s in run.wake.values() for e in s
@@ -218,9 +238,10 @@ def test_wakes_run_subprocess_writes_every_file(tmp_path):
     assert len(pd.read_csv(out / "sections.csv")) == 6
     assert "wing" in json.loads((out / "summary.json").read_text())["bodies"]
     assert wakes.load_case(out / "case.toml").title == "tiny test wing"
-    assert len(pd.read_csv(out / "wake_segments.csv")) == 71
+    segs = pd.read_csv(out / "wake_segments.csv")
+    _assert_round_off_segments_dropped(segs, rows=6)
     snapshots = _pvd_files(out / "wake" / "filaments.pvd")
-    assert len(snapshots) == 5 and _read_vtp(snapshots[-1][1]).GetNumberOfLines() == 71
+    assert len(snapshots) == 5 and _read_vtp(snapshots[-1][1]).GetNumberOfLines() == len(segs)
     import matplotlib.image as mpimg
     for name in ("loads.png", "span_loading.png", "wake_3d.png"):
         assert mpimg.imread(out / "plots" / name).shape[0] > 100

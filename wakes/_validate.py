@@ -1,4 +1,4 @@
-"""Coercion and checking of user arrays at the public boundary.
+"""Coercion and checking of user arrays and command-line paths at the public boundary.
 
 Every function here raises :class:`wakes.errors.InputError` with a message
 that names the argument, the offending index or value and what is accepted.
@@ -6,6 +6,10 @@ Kernels downstream trust what passes through here.
 """
 
 from __future__ import annotations
+
+import os
+import stat
+from pathlib import Path
 
 import numpy as np
 
@@ -93,3 +97,105 @@ def positive_scalar(name: str, value, *, allow_zero: bool = False) -> float:
 
 def _shape_text(shape: tuple) -> str:
     return "(" + ", ".join("N" if s is None else str(s) for s in shape) + ("," if len(shape) == 1 else "") + ")"
+
+
+def _os_words(exc: BaseException) -> str:
+    return getattr(exc, "strerror", None) or str(exc) or type(exc).__name__
+
+
+def writable_path(option: str, value, *, folder: bool) -> Path:
+    """Check that a command-line output path can be created or written, before any work.
+
+    Nothing is created. The path must be text without a NUL character,
+    its names not too long for the file system; its nearest existing
+    ancestor must be a folder this process may write in; the path itself,
+    if it exists, must be a folder (``folder``) or not be one (a file).
+
+    Parameters
+    ----------
+    option : str
+        The option named in messages, e.g. ``"--out"``.
+    value : str or path-like
+        The path given.
+    folder : bool
+        Whether the path is a folder to write into (else a file).
+
+    Returns
+    -------
+    Path
+
+    Raises
+    ------
+    wakes.errors.InputError
+        Naming the option, the path and what is wrong with it.
+    """
+    text = os.fspath(value)
+    if not text or "\0" in text:
+        raise InputError(f"{option} {text!r}: not a usable path (empty or holding a NUL character)")
+    path = Path(text)
+    try:
+        info = path.stat()
+    except (FileNotFoundError, NotADirectoryError):
+        info = None
+    except (OSError, ValueError) as exc:
+        raise InputError(f"{option} {text}: cannot use this path ({_os_words(exc)})") from None
+    if info is not None:
+        if folder and not stat.S_ISDIR(info.st_mode):
+            raise InputError(f"{option} {text}: exists and is not a folder")
+        if not folder and stat.S_ISDIR(info.st_mode):
+            raise InputError(f"{option} {text}: is a folder; give a file name")
+    ancestor = path.parent if info is not None else path
+    while True:
+        try:
+            a_info = ancestor.stat()
+            break
+        except (FileNotFoundError, NotADirectoryError):
+            if ancestor.parent == ancestor:
+                raise InputError(f"{option} {text}: no part of this path exists") from None
+            ancestor = ancestor.parent
+        except (OSError, ValueError) as exc:
+            raise InputError(f"{option} {text}: cannot use this path ({_os_words(exc)})") from None
+    if not stat.S_ISDIR(a_info.st_mode):
+        raise InputError(f"{option} {text}: {ancestor} is a file, so nothing can be created inside it")
+    if not os.access(ancestor, os.W_OK | os.X_OK):
+        raise InputError(f"{option} {text}: no permission to write in {ancestor}")
+    limit = _name_max(ancestor)
+    for part in path.parts:
+        if len(os.fsencode(part)) > limit:
+            raise InputError(f"{option} {text[:60]}...: the name {part[:40]}... is longer than the "
+                             f"{limit} bytes a file name may have here")
+    return path
+
+
+def readable_file(option: str, value, *, what: str = "file") -> Path:
+    """Check that a command-line input path is a regular file this process may read.
+
+    Raises
+    ------
+    wakes.errors.InputError
+        Naming the option, the path and what is wrong with it.
+    """
+    text = os.fspath(value)
+    if not text or "\0" in text:
+        raise InputError(f"{option} {text!r}: not a usable path (empty or holding a NUL character)")
+    try:
+        info = Path(text).stat()
+    except (FileNotFoundError, NotADirectoryError):
+        raise InputError(f"{option} {text}: {what} not found") from None
+    except (OSError, ValueError) as exc:
+        raise InputError(f"{option} {text}: cannot use this path ({_os_words(exc)})") from None
+    if stat.S_ISDIR(info.st_mode):
+        raise InputError(f"{option} {text}: is a folder; give the {what}")
+    if not stat.S_ISREG(info.st_mode):
+        raise InputError(f"{option} {text}: is not a regular file; give the {what}")
+    if not os.access(text, os.R_OK):
+        raise InputError(f"{option} {text}: no permission to read it")
+    return Path(text)
+
+
+def _name_max(folder: Path) -> int:
+    """Longest file name [bytes] the file system of ``folder`` takes (255 where unknown)."""
+    try:
+        return int(os.pathconf(folder, "PC_NAME_MAX"))
+    except (OSError, ValueError, AttributeError):
+        return 255

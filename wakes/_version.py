@@ -1,3 +1,8 @@
-"""The package version, in one place (read by the package and by every run summary)."""
+"""The package version, read in one place (by the package and by every run summary)."""
 
-__version__ = "0.1.0"
+from importlib import metadata as _metadata
+
+try:   # the installed distribution's version, written once in pyproject.toml
+    __version__ = _metadata.version("wakes")
+except _metadata.PackageNotFoundError:   # a source tree on sys.path, not installed
+    __version__ = "0+unknown"

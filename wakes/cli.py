@@ -10,8 +10,11 @@ exit status 2 and one line naming the file, the key and what is accepted
 Runs never lose work. Exit statuses of ``wakes run``:
 
 * 0 -- finished;
-* 2 -- a mistake in the input (nothing run), or another such error met
-  during the run (checkpoint and outputs so far written);
+* 2 -- a mistake in the input (nothing run, nothing written), another
+  such error met during the run (checkpoint and outputs so far written),
+  or a file the system would not read or write (a full disk, no
+  permission), named in the message; every file is written to a
+  temporary name and renamed, so none is left half written;
 * 3 -- the watchdog stopped an unstable run (non-finite values, runaway
   wake speed, circulation not converging): the message names step, time,
   element, likely cause and remedy; the last good state is in
@@ -35,18 +38,22 @@ user calls (:func:`wakes.case.load_case`, :func:`wakes.simulate.run_case`).
 from __future__ import annotations
 
 import argparse
+import contextlib
 import sys
 from pathlib import Path
 
 import pandas as pd
 
-from .budget import parse_size
-from .case import load_case
+from ._validate import readable_file, writable_path
+from ._version import __version__
+from .budget import check_budget, parse_size
+from .case import MAX_DT, MIN_DT, SCHEDULER_ADDRESS, load_case
 from .errors import MemoryBudgetError, WakesError
 from .estimate import estimate_case
+from .io.atomic import write_text
 from .io.checkpoint import prepare_resume
 from .plots import plot_run
-from .probe import probe_plane, probe_points
+from .probe import parse_extent, parse_plane, probe_plane, probe_points
 from .progress import ProgressBar
 from .run import check_new_folder, result_table, run_guarded, write_run
 from .sweep import parse_vary, sweep
@@ -55,6 +62,10 @@ from .verify import run_checks
 from .watchdog import EXIT_MEMORY, exit_status
 
 EXIT_USER_ERROR = 2
+MAX_WORKERS = 256              # most local Dask worker processes of a sweep
+MAX_GRID_SIDE = 10_000         # most probe plane points along one axis
+MAX_GRID_POINTS = 4_000_000    # most probe plane points in all (about 100 MB a (N, 3) array)
+MAX_PROBE_COORDINATE = 1e5     # largest probe plane coordinate [m], as the case's positions
 
 
 class _Parser(argparse.ArgumentParser):
@@ -67,6 +78,7 @@ class _Parser(argparse.ArgumentParser):
 def _parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog="wakes", description="Aerodynamic wakes of wings and rotors with vortex methods.")
+    parser.add_argument("--version", action="version", version=f"wakes {__version__}")
     sub = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
     run = sub.add_parser("run", help="run a case file and write its results folder",
                          description="Run a case file and write loads.csv, sections.csv, "
@@ -155,20 +167,30 @@ def _run(args) -> int:
         if args.case is not None or args.out is not None:
             raise WakesError(f"--resume {args.resume} goes on in that folder with its own case; "
                              "give neither CASE nor --out")
-        out = Path(args.resume)
+        if args.dt is not None and not MIN_DT <= args.dt <= MAX_DT:
+            raise WakesError(f"--dt must be a time step from {MIN_DT:g} to {MAX_DT:g} s; got {args.dt!r}")
+        out = writable_path("--resume", args.resume, folder=True)
         case, state = prepare_resume(out, dt=args.dt)
     else:
         if args.case is None or args.out is None:
             raise WakesError("wakes run needs CASE and --out DIR, or --resume RUN_DIR")
         if args.dt is not None:
             raise WakesError("--dt applies with --resume only; set [time] dt in the case file")
-        out = check_new_folder(args.out, args.overwrite)
+        out = check_new_folder(writable_path("--out", args.out, folder=True), args.overwrite)
         case, state = load_case(args.case), None
+    check_budget(case, max_memory)       # a refusal leaves nothing behind
+    made = _make_folder("--out" if args.resume is None else "--resume", out)
     bar = ProgressBar(case.time.dt, origin=(0, 0.0) if state is None else state.origin,
                       quiet=args.quiet)
-    run = run_guarded(case, out, progress=bar, max_memory=max_memory, resume=state,
-                      write=lambda r, o: write_run(r, o, plots=r.status == "finished"
-                                                   and not args.no_plots))
+    try:
+        run = run_guarded(case, out, progress=bar, max_memory=max_memory, resume=state,
+                          write=lambda r, o: write_run(r, o, plots=r.status == "finished"
+                                                       and not args.no_plots))
+    except BaseException:
+        for folder in reversed(made):    # folders made for this run and still empty go again
+            with contextlib.suppress(OSError):
+                folder.rmdir()
+        raise
     status = exit_status(run)
     if status:
         print(f"wakes: {run.status}: {run.message}; the last good state and the outputs so far "
@@ -195,15 +217,19 @@ def _check(args) -> int:
 
 
 def _new(args) -> int:
+    writable_path("FILE", args.file, folder=False)
     path = new_case(args.kind, args.file, overwrite=args.overwrite)
     print(f"wrote {path}; check it with: wakes check {path}")
     return 0
 
 
 def _probe(args) -> int:
+    if args.out is not None:
+        writable_path("--out", args.out, folder=False)
     if args.points is not None:
         if args.extent is not None:
             raise WakesError("--extent applies to --plane only")
+        readable_file("--points", args.points, what="points file")
         table = probe_points(args.run_dir, args.points, out=args.out, overwrite=args.overwrite)
         print(f"velocity at {len(table)} points written")
         return 0
@@ -213,13 +239,53 @@ def _probe(args) -> int:
         grid = ()
     if len(grid) != 2:
         raise WakesError(f"--grid {args.grid!r}: accepted is NAxNB with two integers, e.g. 41x41")
+    if not (all(2 <= g <= MAX_GRID_SIDE for g in grid) and grid[0] * grid[1] <= MAX_GRID_POINTS):
+        raise WakesError(f"--grid {args.grid}: accepted is at least 2 and at most {MAX_GRID_SIDE:,} points "
+                         f"along each axis, {MAX_GRID_POINTS:,} in all, e.g. 41x41")
+    _check_plane(args.plane, args.extent)
     table = probe_plane(args.run_dir, args.plane, extent=args.extent, grid=grid, out=args.out,
                         overwrite=args.overwrite)
     print(f"velocity at {len(table)} plane points written (CSV and .vts)")
     return 0
 
 
+def _check_plane(plane: str, extent: str | None) -> None:
+    """--plane and --extent values: finite and within the case's coordinate range."""
+    _, value = parse_plane(plane)
+    if not abs(value) <= MAX_PROBE_COORDINATE:
+        raise WakesError(f"--plane {plane}: the coordinate must be a number from {-MAX_PROBE_COORDINATE:g} "
+                         f"to {MAX_PROBE_COORDINATE:g} m; got {value!r}")
+    if extent is not None:
+        for a, b in parse_extent(extent):
+            if not (abs(a) <= MAX_PROBE_COORDINATE and abs(b) <= MAX_PROBE_COORDINATE):
+                raise WakesError(f"--extent {extent}: each range needs two numbers from "
+                                 f"{-MAX_PROBE_COORDINATE:g} to {MAX_PROBE_COORDINATE:g} m; got {a!r}:{b!r}")
+            if a == b:
+                raise WakesError(f"--extent {extent}: the range {a:g}:{b:g} has zero size; give two "
+                                 "different values, e.g. --extent=-2:2,-1:1")
+
+
+def _make_folder(option: str, out: Path) -> list[Path]:
+    """Create ``out`` and its missing parents; return the folders made, outermost first."""
+    made = []
+    folder = out
+    while not folder.exists() and folder.parent != folder:
+        made.insert(0, folder)
+        folder = folder.parent
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise WakesError(f"{option} {out}: cannot create the folder ({_os_words(exc)})") from None
+    return made
+
+
+def _os_words(exc: BaseException) -> str:
+    return getattr(exc, "strerror", None) or str(exc) or type(exc).__name__
+
+
 def _plot(args) -> int:
+    if args.out is not None:
+        writable_path("--out", args.out, folder=True)
     paths = plot_run(args.run_dir, out=args.out, overwrite=args.overwrite)
     for p in paths:
         print(p)
@@ -228,14 +294,15 @@ def _plot(args) -> int:
 
 def _verify(args) -> int:
 
-
+    if args.csv:
+        writable_path("--csv", args.csv, folder=False)
     table = run_checks()
     shown = table.assign(error=table["error"].map(lambda e: f"{e:.1e}"),
                          passed=table["passed"].map({True: "pass", False: "FAIL"}))
     with pd.option_context("display.max_colwidth", 70, "display.width", 250):
         print(shown.to_string(index=False))
     if args.csv:
-        table.to_csv(args.csv, index=False)
+        write_text(args.csv, table.to_csv(index=False))
     failed = int((~table["passed"]).sum())
     print(f"{len(table) - failed} of {len(table)} checks passed")
     return 1 if failed else 0
@@ -243,8 +310,13 @@ def _verify(args) -> int:
 
 def _sweep(args) -> int:
     vary = dict(parse_vary(v) for v in args.vary)
-    if args.workers is not None and args.workers < 1:
-        raise WakesError(f"--workers must be at least 1; got {args.workers}")
+    if args.workers is not None and not 1 <= args.workers <= MAX_WORKERS:
+        raise WakesError(f"--workers must be from 1 to {MAX_WORKERS}; got {args.workers}")
+    m = SCHEDULER_ADDRESS.fullmatch(args.scheduler or "")
+    if args.scheduler is not None and not (m and 1 <= int(m.group(1)) <= 65535):
+        raise WakesError(f"--scheduler must be an address tcp://HOST:PORT or tls://HOST:PORT such as "
+                         f"tcp://10.0.0.5:8786, port 1 to 65535; got {args.scheduler!r}")
+    writable_path("--out", args.out, folder=True)
     table = sweep(args.case, vary, out=args.out, zipped=args.zip, scheduler=args.scheduler,
                   workers=args.workers, progress=not args.quiet and sys.stderr.isatty())
     if not args.quiet:
@@ -278,6 +350,19 @@ def main(argv=None) -> int:
             raise
         print(f"wakes: error: {exc}", file=sys.stderr)
         return EXIT_MEMORY if isinstance(exc, MemoryBudgetError) else EXIT_USER_ERROR
+    except OSError as exc:      # a file the system would not read or write: full disk, permissions
+        if getattr(args, "debug", False):
+            raise
+        where = f"{exc.filename}: " if exc.filename else ""
+        print(f"wakes: error: {where}{_os_words(exc)}; files written before are kept whole "
+              "(every file is written to a temporary name and renamed)", file=sys.stderr)
+        return EXIT_USER_ERROR
+    except MemoryError:
+        if getattr(args, "debug", False):
+            raise
+        print("wakes: error: out of memory; give --max-memory to be refused before a run, or make "
+              "the case, grid or points smaller", file=sys.stderr)
+        return EXIT_MEMORY
     except KeyboardInterrupt:
         print("wakes: interrupted; nothing written", file=sys.stderr)
         return 130

@@ -132,6 +132,9 @@ def connect(address: str):
 
     try:
         return distributed.Client(address, timeout=SCHEDULER_TIMEOUT_S)
+    except ValueError as exc:      # an address Dask cannot parse (scheme, port)
+        raise WakesError(f"scheduler {address!r}: not an address of a Dask scheduler ({exc}); give "
+                         "tcp://HOST:PORT") from None
     except (OSError, TimeoutError) as exc:
         raise WakesError(f"scheduler {address}: no Dask scheduler answered within "
                          f"{SCHEDULER_TIMEOUT_S:.0f} s ({type(exc).__name__}); start one with "
@@ -153,8 +156,14 @@ class WakeCluster:
 
     Examples
     --------
-    >>> cluster = WakeCluster.open(case.cluster)              # doctest: +SKIP
-    >>> cluster.inducer(80_000)(wake, points, method="direct")  # doctest: +SKIP
+    The workers take over the induction only once the wake is large
+    (a string stands in for a connected client here):
+
+    >>> cluster = WakeCluster(client="<client>", min_wake=50_000)
+    >>> cluster.inducer(80_000).keywords
+    {'client': '<client>'}
+    >>> cluster.inducer(1_000).__module__
+    'wakes.induction.api'
     """
 
     def __init__(self, client, min_wake: int, owned: bool = False):

@@ -35,20 +35,23 @@ class UnstableRunError(NumericalError):
 
 
 class PolarRangeError(InputError):
-    """An angle of attack fell outside a polar table.
+    """An angle of attack or a Mach number fell outside what a polar covers.
 
     Attributes
     ----------
     index : int
         Index of the first offending section in the evaluated array.
     alpha_deg : float
-        The offending angle [deg].
+        The angle of attack there [deg].
+    mach : float or None
+        The Mach number there, if the polar was evaluated at one.
     """
 
-    def __init__(self, message: str, index: int, alpha_deg: float):
+    def __init__(self, message: str, index: int, alpha_deg: float, mach: float | None = None):
         super().__init__(message)
         self.index = index
         self.alpha_deg = alpha_deg
+        self.mach = mach
 
 
 class CheckpointError(WakesError):

@@ -142,8 +142,9 @@ def wake_sizes(case: Case) -> tuple[np.ndarray, np.ndarray]:
     Examples
     --------
     >>> from wakes.case import load_case
-    >>> seg, par = wake_sizes(load_case("cases/survey-glider.toml"))  # doctest: +SKIP
-    >>> int(seg[-1])                                                   # doctest: +SKIP
+    >>> seg, par = wake_sizes(load_case("cases/survey-glider.toml"))
+    >>> len(seg), bool(seg[-1] > seg[0])     # one entry per step; the wake grows
+    (70, True)
     """
 
     steps = case.time.steps
@@ -211,8 +212,9 @@ def estimate_case(case: Case, *, pair_rate: float | None = None) -> Estimate:
     Examples
     --------
     >>> from wakes.case import load_case
-    >>> est = estimate_case(load_case("cases/survey-glider.toml"))  # doctest: +SKIP
-    >>> est.final_segments, est.run_time_s                           # doctest: +SKIP
+    >>> est = estimate_case(load_case("cases/survey-glider.toml"), pair_rate=1e8)
+    >>> est.final_segments > 0 and est.run_time_s > 0
+    True
     """
 
     seg, par = wake_sizes(case)

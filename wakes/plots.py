@@ -16,12 +16,14 @@ drawn without a display.
 
 from __future__ import annotations
 
+import io
 import os
 from pathlib import Path
 
 import numpy as np
 
 from .errors import InputError
+from .io.atomic import write_bytes
 from .io.runfolder import read_run
 
 # Our palette: ink for text and axes, a deep teal for the first series,
@@ -55,10 +57,15 @@ def _look():
 
 
 def _save(fig, path: Path) -> Path:
+    """Write the figure atomically (a full disk leaves no truncated image) and close it."""
     import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
-    fig.savefig(path, bbox_inches="tight")
-    plt.close(fig)
-    return path
+
+    buf = io.BytesIO()
+    try:
+        fig.savefig(buf, format=Path(path).suffix.lstrip(".") or "png", bbox_inches="tight")
+    finally:
+        plt.close(fig)
+    return write_bytes(path, buf.getvalue())
 
 
 def plot_loads(run, path) -> Path | None:
@@ -255,8 +262,8 @@ def plot_run(run_dir: str | os.PathLike, *, out: str | os.PathLike | None = None
 
     Examples
     --------
-    >>> paths = plot_run("glider-run", overwrite=True)   # doctest: +SKIP
-    >>> [p.name for p in paths]                           # doctest: +SKIP
+    >>> paths = plot_run("glider-run", overwrite=True)
+    >>> [p.name for p in paths]
     ['loads.png', 'span_loading.png', 'wake_3d.png']
     """
     run = read_run(run_dir)

@@ -63,8 +63,9 @@ def velocity_at(run, points) -> pd.DataFrame:
 
     Examples
     --------
-    >>> table = velocity_at("glider-run", [[2.0, 0.0, 0.0]])  # doctest: +SKIP
-    >>> table["w_ind_m_s"].iloc[0]                           # doctest: +SKIP
+    >>> table = velocity_at("glider-run", [[2.0, 0.0, 0.0]])
+    >>> bool(table["w_ind_m_s"].iloc[0] < 0.0)   # downwash behind the lifting wing
+    True
     """
 
     if not isinstance(run, RunFolder):
@@ -117,7 +118,12 @@ def probe_points(run_dir: str | os.PathLike, points_file: str | os.PathLike, *,
 
     Examples
     --------
-    >>> table = probe_points("glider-run", "points.csv")   # doctest: +SKIP
+    >>> import pandas as pd
+    >>> points = pd.DataFrame({"x_m": [2.0, 2.0], "y_m": [0.0, 1.0], "z_m": [0.0, 0.0]})
+    >>> points.to_csv("points.csv", index=False)
+    >>> table = probe_points("glider-run", "points.csv", overwrite=True)
+    >>> len(table)
+    2
     """
     run = read_run(run_dir)
     cols = read_numeric_table(points_file, ("x_m", "y_m", "z_m"), what="points file")
@@ -198,7 +204,9 @@ def probe_plane(run_dir: str | os.PathLike, plane: str, *, extent=None, grid=DEF
 
     Examples
     --------
-    >>> table = probe_plane("glider-run", "x=3", extent="-2:2,-1:1", grid=(21, 11))  # doctest: +SKIP
+    >>> table = probe_plane("glider-run", "x=3", extent="-2:2,-1:1", grid=(21, 11), overwrite=True)
+    >>> len(table)
+    231
     """
 
     normal, value = parse_plane(plane)

@@ -28,6 +28,7 @@ A run folder holds (see the README for the columns)::
 
 from __future__ import annotations
 
+import io
 import math
 import os
 import threading
@@ -37,7 +38,9 @@ from .budget import check_budget
 from .case import Case, load_case
 from .cluster import WakeCluster
 from .errors import InputError
-from .io.checkpoint import LoopState, remove_checkpoints, write_checkpoint
+from .io import atomic
+from .io import checkpoint as checkpoints
+from .io.checkpoint import LoopState
 from .io.runfolder import RUN_MARKERS, RunFolder, read_run  # noqa: F401  (re-exported)
 from .io.snapshots import WakeSnapshots
 from .plots import plot_run
@@ -96,8 +99,9 @@ def run_case(case: Case, *, progress=None, control: RunControl | None = None,
     Examples
     --------
     >>> from wakes.case import load_case
-    >>> run = run_case(load_case("cases/validation/elliptic-wing.toml"))  # doctest: +SKIP
-    >>> run.summary["bodies"]["wing"]["CL"]                                # doctest: +SKIP
+    >>> run = run_case(load_case("cases/survey-glider.toml"))
+    >>> run.status, len(run.loads)
+    ('finished', 70)
     """
     cluster = WakeCluster.open(case.cluster, client) if use_cluster else None
     try:
@@ -151,9 +155,10 @@ def run_guarded(case: Case, out, *, write, progress=None, max_memory: int | None
     case_toml = case.to_toml()
 
     def save(state):
-        write_checkpoint(out, state, case_toml, case.source)
+        checkpoints.write_checkpoint(out, state, case_toml, case.source)
 
-    snapshots = WakeSnapshots(out, keep_before=0 if resume is None else resume.step)
+    # an earlier run's snapshots go when this run writes its first one, not before
+    snapshots = WakeSnapshots(out, keep_before=0 if resume is None else resume.step, remove_now=False)
     control = RunControl(checkpoint_every=case.output.checkpoint_every, save=save,
                          keep_partial=True, max_memory=max_memory,
                          snapshot_every=case.output.snapshot_every, snapshot=snapshots.write)
@@ -170,7 +175,7 @@ def run_guarded(case: Case, out, *, write, progress=None, max_memory: int | None
     if len(run.loads):
         write(run, out)
     if run.status == "finished":
-        remove_checkpoints(out)
+        checkpoints.remove_checkpoints(out)
     return run
 
 
@@ -207,8 +212,9 @@ def run_to_folder(case, out: str | os.PathLike, *, overwrite: bool = False, prog
 
     Examples
     --------
-    >>> run = run_to_folder("cases/survey-glider.toml", "glider-run")  # doctest: +SKIP
-    >>> print(result_table(run.summary))                               # doctest: +SKIP
+    >>> run = run_to_folder("cases/survey-glider.toml", "glider-run-2", plots=False)
+    >>> sorted(run.summary["bodies"])
+    ['wing']
     """
     out = check_new_folder(out, overwrite)
     if not isinstance(case, Case):
@@ -242,8 +248,10 @@ def write_parquet(run, out: str | os.PathLike) -> list[Path]:
         return []
     out = Path(out)
     paths = [out / "loads.parquet", out / "sections.parquet"]
-    run.loads.to_parquet(paths[0], index=False)
-    run.sections.to_parquet(paths[1], index=False)
+    for frame, path in ((run.loads, paths[0]), (run.sections, paths[1])):
+        buf = io.BytesIO()                 # written atomically, as every other file of a run
+        frame.to_parquet(buf, index=False)
+        atomic.write_bytes(path, buf.getvalue())
     return paths
 
 
@@ -279,9 +287,9 @@ def result_table(summary: dict) -> str:
     Examples
     --------
     >>> print(result_table({"bodies": {"wing": {"CL": 0.5, "lift_N": 12.0}}}))
-    body  quantity  value    unit
+    body  quantity  value  unit
     wing  CL        0.5
-    wing  lift      12       N
+    wing  lift      12     N
     """
     rows = [("body", "quantity", "value", "unit")]
     for name, figures in summary.get("bodies", {}).items():

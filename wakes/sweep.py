@@ -329,8 +329,11 @@ def sweep(case, vary: dict, *, out="sweep", zipped: bool = False, client=None,
     Examples
     --------
     >>> import wakes
-    >>> table = wakes.sweep("cases/validation/elliptic-wing.toml",
-    ...                     {"freestream.angle_of_attack": [2, 4]})   # doctest: +SKIP
+    >>> table = wakes.sweep("cases/survey-glider.toml",
+    ...                     {"freestream.angle_of_attack": [2, 4], "time.steps": [10]},
+    ...                     out="glider-sweep", workers=1)
+    >>> list(table["status"]), bool(table["CL"].iloc[1] > table["CL"].iloc[0])
+    (['ran', 'ran'], True)
     """
     if isinstance(case, (str, Path)):
         source, base_dir, raw = str(case), str(Path(case).resolve().parent), read_toml(case)

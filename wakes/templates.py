@@ -73,14 +73,14 @@ blades = {blades}
 radius = {radius}               # m, tip radius
 root_cutout = {cutout}          # m, where the lifting blade starts
 chord = {chord}                 # m; eta = 0 at the cut-out, 1 at the tip
-twist = {twist}                 # deg, added to the collective
+twist = {twist}{twist_note}
 collective = {collective}       # deg
 rpm = {rpm}                     # rev/min
 axis = {axis}                   # thrust direction (downwind for a turbine)
 panels = 12                     # strips per blade
 azimuth_step = 15.0             # deg of blade turn per step; 5-10 for final numbers
-revolutions = {revolutions}     # run length
-wake_revolutions = {wake_revs}  # wake older than this is removed (cost grows with it)
+revolutions = {revolutions}    # run length: {run_note}
+wake_revolutions = {wake_revs}  # wake older than this is removed: {wake_note}
 
 [bodies.{name}.airfoil]         # thin-airfoil section; or polar = "my-section.csv"
 lift_slope = 6.2832             # 1/rad
@@ -91,30 +91,57 @@ cd2 = 0.006
 model = "filaments"
 motion = "free"
 core = "vatistas2"              # tip-vortex core model
+core_radius = {core_radius}{core_note}
 cores_at_surfaces = true
 '''
+
+_TWIST_NOTE = "                 # deg, added to the collective"
 
 _ROTOR_KINDS = {
     "rotor": dict(what="lift rotor in hover", scenario="a 0.8 m radius two-bladed camera-drone rotor",
                   title="demo lift rotor in hover", name="rotor", kind="rotor",
                   freestream="speed = 0.0                     # m/s: hover",
                   blades=2, radius=0.8, cutout=0.12, chord=0.07,
-                  twist='{law = "linear", root = 8.0, tip = -4.0}', collective=8.0, rpm=1600.0,
-                  axis="[0.0, 0.0, 1.0]", revolutions=4.0, wake_revs=3.0),
+                  twist='{law = "linear", root = 8.0, tip = -4.0}', twist_note=_TWIST_NOTE, collective=8.0,
+                  rpm=1600.0, axis="[0.0, 0.0, 1.0]", revolutions=16.0,
+                  run_note="the loads settle once the start-up wake has been cut away",
+                  wake_revs=8.0,
+                  wake_note=("about 2 R of wake; a shorter one\n"
+                             "                                # under-predicts the inflow and the "
+                             "induced power (cost grows with it)"),
+                  core_radius=0.03,
+                  core_note=("              # m, about 0.4 chord; with thinner cores the other blade's\n"
+                             "                                # tip vortex, passing close below each blade, makes "
+                             "the thrust jitter")),
     "propeller": dict(what="propeller in axial flight",
                       scenario="a 0.3 m radius three-bladed propeller of a small survey aircraft",
                       title="demo propeller, 20 m/s", name="propeller", kind="propeller",
                       freestream="speed = 20.0                    # m/s, flight speed along +x",
                       blades=3, radius=0.3, cutout=0.05, chord='{law = "linear", root = 0.045, tip = 0.025}',
-                      twist='{law = "linear", root = 20.0, tip = -8.0}', collective=18.0,
-                      rpm=4200.0, axis="[-1.0, 0.0, 0.0]     # forward, against the relative wind",
-                      revolutions=3.0, wake_revs=2.0),
+                      twist='{law = "linear", root = 20.0, tip = -8.0}', twist_note=_TWIST_NOTE,
+                      collective=18.0, rpm=4200.0,
+                      axis="[-1.0, 0.0, 0.0]     # forward, against the relative wind",
+                      revolutions=3.0, run_note="the flight speed carries the start-up wake away quickly",
+                      wake_revs=2.0, wake_note="about 2 R of wake (cost grows with it)",
+                      core_radius=0.0035, core_note="            # m, 0.1 x mean chord"),
     "turbine": dict(what="wind turbine", scenario="a 5 m radius three-bladed farm turbine",
                     title="demo wind turbine, 8 m/s", name="turbine", kind="turbine",
                     freestream="speed = 8.0                     # m/s, wind along +x",
                     blades=3, radius=5.0, cutout=0.6, chord='{law = "linear", root = 0.55, tip = 0.2}',
-                    twist='{law = "linear", root = 14.0, tip = 0.0}', collective=-2.0, rpm=90.0,
-                    axis="[1.0, 0.0, 0.0]      # downwind", revolutions=3.0, wake_revs=2.0),
+                    twist=('{law = "table", eta = [0.0, 0.25, 0.5, 0.75, 1.0], '
+                           'values = [-23.0, -15.0, -7.5, -3.0, 1.0]}'),
+                    twist_note=("\n# deg, added to the collective. With the axis downwind a section meets the "
+                                "wind at its pitch\n# plus the inflow angle: a turbine blade's pitch is "
+                                "negative inboard, where the\n# inflow is steep (the usual turbine "
+                                "convention with the sign changed)."),
+                    collective=0.0, rpm=90.0,
+                    axis="[1.0, 0.0, 0.0]      # downwind", revolutions=10.0,
+                    run_note="the wind carries the start-up wake away",
+                    wake_revs=8.0,
+                    wake_note=("about 7 R of wake; a shorter one\n"
+                               "                                # under-predicts the slowing of the wind "
+                               "and over-predicts the power"),
+                    core_radius=0.0375, core_note="           # m, 0.1 x mean chord"),
 }
 
 TEMPLATE_KINDS = ("wing", "rotor", "propeller", "turbine")

@@ -7,9 +7,11 @@ own motion plus everything the wakes induce, and A is the influence matrix
 of the rings (:func:`wakes.aero.vortex_lattice.influence_matrix`):
 
 * lifting-line strip (one chordwise panel, quarter-chord point):
-  Gamma = 1/2 |V_2D| c cl(alpha), with V_2D the velocity in the section
-  plane and alpha = atan2(V.n, V.t) (Prandtl's lifting line with section
-  polars; e.g. Phillips & Snyder 2000, J. Aircraft 37);
+  Gamma = 1/2 |V_2D| c cl(alpha, M), with V_2D the velocity in the section
+  plane, alpha = atan2(V.n, V.t) and M = |V_2D| / a the local Mach number
+  when the surface's polars know the speed of sound a (M = 0 otherwise)
+  (Prandtl's lifting line with section polars; e.g. Phillips & Snyder 2000,
+  J. Aircraft 37);
 * vortex-lattice panel (three-quarter point): flow tangency V.n = 0
   (Weissinger's rule, exact for a 2-D flat plate by Pistolesi's theorem).
 
@@ -135,7 +137,7 @@ class _System:
             vn = np.einsum("ij,ij->i", v[ll], self.nrm[ll])
             q = np.hypot(vt, vn)
             a = np.arctan2(vn, vt)
-            cl_l, cd_l, dcl = self._polars(a)
+            cl_l, cd_l, dcl, dcl_dq = self._polars(a, q)
             c = self.chord[ll]
             res[ll] = gamma[ll] - 0.5 * c * q * cl_l
             alpha[ll], cl[ll], cd[ll] = a, cl_l, cd_l
@@ -143,7 +145,8 @@ class _System:
                 qs = np.maximum(q, 1e-300)
                 dq = (vt[:, None] * self.t[ll] + vn[:, None] * self.nrm[ll]) / qs[:, None]
                 da = (vt[:, None] * self.nrm[ll] - vn[:, None] * self.t[ll]) / (qs * qs)[:, None]
-                dgam_dv = 0.5 * c[:, None] * (cl_l[:, None] * dq + (q * dcl)[:, None] * da)
+                # Gamma = c q cl(alpha, q / a) / 2: the Mach number moves with the speed q too
+                dgam_dv = 0.5 * c[:, None] * ((cl_l + q * dcl_dq)[:, None] * dq + (q * dcl)[:, None] * da)
                 jl = -np.einsum("ij,ijn->in", dgam_dv, self.aic[ll])
                 jl[np.arange(jl.shape[0]), np.flatnonzero(ll)] += 1.0
                 jac[ll] = jl
@@ -152,22 +155,27 @@ class _System:
             jac /= self.scale[:, None]
         return res, jac, v, alpha, cl, cd
 
-    def _polars(self, alpha):
-        """Evaluate each lifting-line surface's polars on its own strips."""
-        cl, cd, dcl = (np.empty_like(alpha) for _ in range(3))
+    def _polars(self, alpha, speed):
+        """Evaluate each lifting-line surface's polars on its own strips at their speeds [m/s].
+
+        Returns cl, cd, dcl/dalpha [1/rad] and dcl/dspeed [s/m] (the Mach
+        number's share; zero for low-speed polars).
+        """
+        cl, cd, dcl, dcl_dq = (np.empty_like(alpha) for _ in range(4))
         k = 0
         for s in self.surfaces:
             if not s.lifting_line:
                 continue
             m = s.n_unknowns
+            sl = slice(k, k + m)
             try:
-                cl[k:k + m], cd[k:k + m], dcl[k:k + m] = s.polars.evaluate(alpha[k:k + m])
+                cl[sl], cd[sl], dcl[sl], dcl_dq[sl] = s.polars.evaluate_at_speed(alpha[sl], speed[sl])
             except PolarRangeError as exc:
                 raise PolarRangeError(f"surface '{s.name}', strip {exc.index} "
                                       f"(eta = {s.section_eta[exc.index]:.3f}): {exc}",
-                                      exc.index, exc.alpha_deg) from None
+                                      exc.index, exc.alpha_deg, exc.mach) from None
             k += m
-        return cl, cd, dcl
+        return cl, cd, dcl, dcl_dq
 
 
 class LinearCache:
@@ -256,7 +264,8 @@ def solve_circulation(surfaces, aic: np.ndarray, onset: np.ndarray, gamma0: np.n
             norm = np.max(np.abs(res))
             it += 1
     except PolarRangeError as exc:
-        raise PolarRangeError(f"{exc} at step {step} (t = {time:.6g} s)", exc.index, exc.alpha_deg) from None
+        raise PolarRangeError(f"{exc} at step {step} (t = {time:.6g} s)", exc.index, exc.alpha_deg,
+                              exc.mach) from None
     per_surface = [gamma[o:o + s.n_unknowns].reshape(s.n_chord, s.n_span)
                    for o, s in zip(system.offsets, surfaces)]
     return CirculationSolution(per_surface, v, alpha, cl, cd, it, float(norm))

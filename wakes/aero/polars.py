@@ -7,10 +7,16 @@ Two kinds, both evaluated on arrays of angles in radians:
   Airscrew Theory*), and a simple drag polar cd = cd0 + cd2 cl^2.
 * :class:`TablePolar` -- a CSV table of cl and cd against alpha, linearly
   interpolated. Outside the table an angle is an error, or, if asked, the
-  table is extended towards flat-plate values (see :class:`TablePolar`).
+  table is extended towards flat-plate values or by the Viterna-Corrigan
+  extrapolation to +-180 degrees (see :class:`TablePolar` and
+  :mod:`wakes.aero.post_stall`).
 
-Every polar returns ``(cl, cd, dcl_dalpha)`` so the lifting-line solver can
-build its Newton Jacobian.
+Every polar returns ``(cl, cd, dcl_dalpha)`` from ``evaluate(alpha, mach=None)``
+so the lifting-line solver can build its Newton Jacobian. These two are
+low-speed polars: they take a Mach number only to name it in messages.
+Mach-dependent polars (compressibility rules, tables by Mach number) live in
+:mod:`wakes.aero.sections` and also offer ``evaluate_mach(alpha, mach)``,
+which adds dcl/dMach.
 """
 
 from __future__ import annotations
@@ -22,10 +28,27 @@ import numpy as np
 
 from ..errors import CaseError, InputError, PolarRangeError
 from ..io.tables import read_numeric_table
+from .post_stall import ViternaCorrigan, cd_max_from_aspect_ratio, check_extendable, extend_to_180
 
 POLAR_COLUMNS = ("alpha_deg", "cl", "cd")
-OUT_OF_RANGE_MODES = ("error", "flat-plate")
+OUT_OF_RANGE_MODES = ("error", "flat-plate")                # the modes the case schema offers today
+TABLE_OUT_OF_RANGE_MODES = OUT_OF_RANGE_MODES + ("viterna",)  # all a TablePolar accepts
+_EXTEND_CHOICES = " or ".join(f'"{m}"' for m in OUT_OF_RANGE_MODES if m != "error")
 FLAT_PLATE_BLEND = np.radians(10.0)  # angle over which a table blends into flat-plate values
+
+
+def mach_of(mach, i: int) -> float | None:
+    """Entry ``i`` of ``mach`` (an array, a scalar or None) as a float, or None."""
+    if mach is None:
+        return None
+    m = np.ravel(mach)
+    return float(m[i] if m.size > 1 else m[0])
+
+
+def at_mach(mach, i: int) -> str:
+    """The words ' at Mach M' for entry ``i`` of ``mach``; empty if no Mach number is known."""
+    m = mach_of(mach, i)
+    return "" if m is None else f" at Mach {m:.3g}"
 
 
 @dataclass(frozen=True)
@@ -58,8 +81,16 @@ class ThinAirfoilPolar:
     def name(self) -> str:
         return "thin airfoil"
 
-    def evaluate(self, alpha: np.ndarray):
-        """Return cl, cd and dcl/dalpha [1/rad] at angles ``alpha`` [rad], each shape of alpha."""
+    @property
+    def alpha_range(self) -> tuple[float, float]:
+        """First and last tabulated angle [rad]."""
+        return float(self.alpha[0]), float(self.alpha[-1])
+
+    def evaluate(self, alpha: np.ndarray, mach=None):
+        """Return cl, cd and dcl/dalpha [1/rad] at angles ``alpha`` [rad], each shape of alpha.
+
+        ``mach`` is accepted and ignored: this is a low-speed polar.
+        """
         alpha = np.asarray(alpha, dtype=np.float64)
         cl = self.lift_slope * (alpha - self.zero_lift_angle)
         cd = self.cd0 + self.cd2 * cl * cl
@@ -81,12 +112,21 @@ class TablePolar:
         Lift and drag coefficients at those angles.
     name : str
         Where the table came from (file name), for messages.
-    out_of_range : {"error", "flat-plate"}
+    out_of_range : {"error", "flat-plate", "viterna"}
         "error" raises :class:`PolarRangeError` for an angle outside the
         table. "flat-plate" blends linearly, over 10 degrees beyond each end,
         from the end value to the flat-plate coefficients cl = sin 2 alpha,
         cd = 2 sin^2 alpha (normal-force coefficient 2 sin alpha; common
         practice for post-stall estimates), and uses those beyond.
+        "viterna" continues the table from its end angles by the
+        Viterna-Corrigan extrapolation to +-90 degrees and mirrors it for
+        reversed flow to +-180 degrees (:mod:`wakes.aero.post_stall`); the
+        table must end 5 to 85 degrees from zero on both sides.
+    cd_max : float, optional
+        Drag at 90 degrees for "viterna"; default from ``aspect_ratio``.
+    aspect_ratio : float, optional
+        Blade aspect ratio for Viterna & Corrigan's cd_max = 1.11 + 0.018 AR;
+        None (default) takes the two-dimensional value 2.01.
 
     Notes
     -----
@@ -94,13 +134,14 @@ class TablePolar:
     ``cd``; ``#`` starts a comment line. Use :func:`load_polar_table`.
     """
 
-    def __init__(self, alpha, cl, cd, *, name: str = "table", out_of_range: str = "error"):
+    def __init__(self, alpha, cl, cd, *, name: str = "table", out_of_range: str = "error",
+                 cd_max: float | None = None, aspect_ratio: float | None = None):
         self.alpha = np.ascontiguousarray(alpha, dtype=np.float64)
         self.cl = np.ascontiguousarray(cl, dtype=np.float64)
         self.cd = np.ascontiguousarray(cd, dtype=np.float64)
         self.name = name
-        if out_of_range not in OUT_OF_RANGE_MODES:
-            raise InputError(f"out_of_range must be one of {', '.join(map(repr, OUT_OF_RANGE_MODES))}; "
+        if out_of_range not in TABLE_OUT_OF_RANGE_MODES:
+            raise InputError(f"out_of_range must be one of {', '.join(map(repr, TABLE_OUT_OF_RANGE_MODES))}; "
                              f"got {out_of_range!r}")
         self.out_of_range = out_of_range
         n = self.alpha.shape[0]
@@ -113,13 +154,24 @@ class TablePolar:
                              f"({np.degrees(self.alpha[k]):g}) follows row {k} "
                              f"({np.degrees(self.alpha[k - 1]):g})")
         self._slope_cl = np.diff(self.cl) / steps
+        self._fits = None
+        if out_of_range == "viterna":
+            lo, hi = self.alpha[0], self.alpha[-1]
+            check_extendable(lo, hi, name)
+            cdm = cd_max_from_aspect_ratio(aspect_ratio) if cd_max is None else float(cd_max)
+            if lo > -np.pi or hi < np.pi:
+                self._fits = (ViternaCorrigan(lo, self.cl[0], self.cd[0], cdm),
+                              ViternaCorrigan(hi, self.cl[-1], self.cd[-1], cdm))
 
     def __repr__(self) -> str:
         lo, hi = np.degrees(self.alpha[[0, -1]])
         return f"TablePolar({self.name!r}, {lo:g} to {hi:g} deg, out_of_range={self.out_of_range!r})"
 
-    def evaluate(self, alpha: np.ndarray):
+    def evaluate(self, alpha: np.ndarray, mach=None):
         """Return cl, cd and dcl/dalpha [1/rad] at angles ``alpha`` [rad].
+
+        ``mach`` (same shape as alpha, or None) does not change the
+        coefficients; it is named in the message of an angle out of range.
 
         Raises
         ------
@@ -134,14 +186,23 @@ class TablePolar:
             bad = float(np.degrees(a.ravel()[i]))
             raise PolarRangeError(
                 f"polar '{self.name}' covers {np.degrees(lo):g} to {np.degrees(hi):g} deg; "
-                f"an angle of {bad:.3g} deg was met (extend the table or set "
-                f"out_of_range = \"flat-plate\")", i, bad)
+                f"an angle of {bad:.3g} deg{at_mach(mach, i)} was met (extend the table or set "
+                f"out_of_range = {_EXTEND_CHOICES})", i, bad, mach_of(mach, i))
+        return self._inside(a) if not outside.any() else self._with_extension(a, outside)
+
+    def _inside(self, a):
+        """Linear interpolation (and the segment slope) at angles inside the table."""
         k = np.clip(np.searchsorted(self.alpha, a, side="right") - 1, 0, self.alpha.shape[0] - 2)
-        cl = np.interp(a, self.alpha, self.cl)
-        cd = np.interp(a, self.alpha, self.cd)
-        dcl = self._slope_cl[k]
-        if outside.any():
-            cl, cd, dcl = self._extend(a, cl, cd, dcl, a < lo, a > hi)
+        return np.interp(a, self.alpha, self.cl), np.interp(a, self.alpha, self.cd), self._slope_cl[k]
+
+    def _with_extension(self, a, outside):
+        cl, cd, dcl = self._inside(a)
+        if self.out_of_range == "flat-plate":
+            return self._extend(a, cl, cd, dcl, a < self.alpha[0], a > self.alpha[-1])
+        if self._fits is not None:
+            sel = outside
+            cl[sel], cd[sel], dcl[sel] = extend_to_180(a[sel], self._inside, self.alpha[0], self.alpha[-1],
+                                                       *self._fits)
         return cl, cd, dcl
 
     def _extend(self, a, cl, cd, dcl, below, above):
@@ -181,15 +242,18 @@ class TablePolar:
         return np.interp(np.asarray(cl, dtype=np.float64), self.cl[lo:hi + 1], self.alpha[lo:hi + 1])
 
 
-def load_polar_table(path, *, out_of_range: str = "error") -> TablePolar:
+def load_polar_table(path, *, out_of_range: str = "error", cd_max: float | None = None,
+                     aspect_ratio: float | None = None) -> TablePolar:
     """Read a polar CSV (columns ``alpha_deg``, ``cl``, ``cd``) into a :class:`TablePolar`.
 
     Parameters
     ----------
     path : str or Path
         The CSV file.
-    out_of_range : {"error", "flat-plate"}
+    out_of_range : {"error", "flat-plate", "viterna"}
         What to do with angles outside the table (see :class:`TablePolar`).
+    cd_max, aspect_ratio : float, optional
+        Post-stall drag for "viterna" (see :class:`TablePolar`).
 
     Raises
     ------
@@ -210,7 +274,8 @@ def load_polar_table(path, *, out_of_range: str = "error") -> TablePolar:
                         f"the angle of line {line[k - 1]}; angles must increase strictly")
     try:
         return TablePolar(np.radians(cols["alpha_deg"]), cols["cl"], cols["cd"],
-                          name=Path(path).name, out_of_range=out_of_range)
+                          name=Path(path).name, out_of_range=out_of_range, cd_max=cd_max,
+                          aspect_ratio=aspect_ratio)
     except InputError as exc:
         raise CaseError(f"polar table '{path}': {exc}") from None
 
@@ -221,34 +286,73 @@ class SectionPolars:
     Parameters
     ----------
     polars : sequence of polar objects
-        Distinct polars (ThinAirfoilPolar or TablePolar).
+        Distinct polars (ThinAirfoilPolar, TablePolar or a Mach-dependent
+        polar of :mod:`wakes.aero.sections`).
     index : array_like of int, shape (n,)
         Which polar each of the n sections uses.
+    speed_of_sound : float, optional
+        Speed of sound of the fluid [m/s]. With it, :meth:`evaluate_at_speed`
+        evaluates each section at its local Mach number M = |V_2D| / a;
+        without it (default) every section is at M = 0, the low-speed polar.
     """
 
-    def __init__(self, polars, index):
+    def __init__(self, polars, index, *, speed_of_sound: float | None = None):
         self.polars = tuple(polars)
         self.index = np.asarray(index, dtype=np.int64)
+        if speed_of_sound is not None and not (np.isfinite(speed_of_sound) and speed_of_sound > 0.0):
+            raise InputError(f"speed of sound must be a positive number of m/s; got {speed_of_sound!r}")
+        self.speed_of_sound = None if speed_of_sound is None else float(speed_of_sound)
 
     @classmethod
-    def uniform(cls, polar, n: int) -> SectionPolars:
+    def uniform(cls, polar, n: int, *, speed_of_sound: float | None = None) -> SectionPolars:
         """All ``n`` sections use one polar."""
-        return cls((polar,), np.zeros(n, dtype=np.int64))
+        return cls((polar,), np.zeros(n, dtype=np.int64), speed_of_sound=speed_of_sound)
 
-    def evaluate(self, alpha: np.ndarray):
+    def evaluate(self, alpha: np.ndarray, mach=None):
         """cl, cd, dcl/dalpha for every section, shape (n,); errors carry the section index."""
+        return self._each(alpha, mach, with_mach_slope=False)[:3]
+
+    def evaluate_at_speed(self, alpha: np.ndarray, speed: np.ndarray):
+        """Coefficients at the local Mach number of every section.
+
+        Parameters
+        ----------
+        alpha : ndarray, shape (n,)
+            Angles of attack [rad].
+        speed : ndarray, shape (n,)
+            Section speed |V_2D| [m/s] (the velocity in the section plane).
+
+        Returns
+        -------
+        cl, cd, dcl_dalpha, dcl_dspeed : ndarray, shape (n,)
+            dcl_dalpha in 1/rad, dcl_dspeed in s/m (zero without a speed of
+            sound or for a Mach-independent polar).
+        """
+        if self.speed_of_sound is None:
+            cl, cd, dcl = self.evaluate(alpha)
+            return cl, cd, dcl, np.zeros_like(cl)
+        mach = np.asarray(speed, dtype=np.float64) / self.speed_of_sound
+        cl, cd, dcl, dcl_dm = self._each(alpha, mach, with_mach_slope=True)
+        return cl, cd, dcl, dcl_dm / self.speed_of_sound
+
+    def _each(self, alpha, mach, with_mach_slope: bool):
+        alpha = np.asarray(alpha, dtype=np.float64)
+        if mach is not None:
+            mach = np.broadcast_to(np.asarray(mach, dtype=np.float64), alpha.shape)
         if len(self.polars) == 1:
-            return self.polars[0].evaluate(alpha)
-        cl, cd, dcl = (np.empty_like(alpha) for _ in range(3))
+            return _evaluate(self.polars[0], alpha, mach, with_mach_slope)
+        out = [np.empty_like(alpha) for _ in range(4)]
         for k, polar in enumerate(self.polars):
             sel = np.flatnonzero(self.index == k)
             if sel.size == 0:
                 continue
             try:
-                cl[sel], cd[sel], dcl[sel] = polar.evaluate(alpha[sel])
+                res = _evaluate(polar, alpha[sel], None if mach is None else mach[sel], with_mach_slope)
             except PolarRangeError as exc:
-                raise PolarRangeError(str(exc), int(sel[exc.index]), exc.alpha_deg) from None
-        return cl, cd, dcl
+                raise PolarRangeError(str(exc), int(sel[exc.index]), exc.alpha_deg, exc.mach) from None
+            for o, r in zip(out, res):
+                o[sel] = r
+        return tuple(out)
 
     def alpha_for_cl(self, cl: np.ndarray) -> np.ndarray:
         """Angle [rad] per section giving ``cl`` (see the polar classes)."""
@@ -257,6 +361,14 @@ class SectionPolars:
             sel = self.index == k
             out[sel] = polar.alpha_for_cl(cl[sel])
         return out
+
+
+def _evaluate(polar, alpha, mach, with_mach_slope: bool):
+    """(cl, cd, dcl/dalpha, dcl/dMach) of one polar; the last is zero for a low-speed polar."""
+    if with_mach_slope and hasattr(polar, "evaluate_mach"):
+        return polar.evaluate_mach(alpha, mach)
+    cl, cd, dcl = polar.evaluate(alpha, mach)
+    return cl, cd, dcl, np.zeros_like(cl)
 
 
 def make_polar(airfoil):

@@ -67,7 +67,7 @@ import pandas as pd
 
 from ..induction.elements import Filaments
 from .kinematics import rotate_about
-from .vortex_lattice import lattice_segments
+from .vortex_lattice import carries_circulation, lattice_segments
 from .wake import WakeSettings
 
 
@@ -319,7 +319,7 @@ class RolledUpWake:
         after = self.near_gamma[-1] if self.near_gamma.shape[0] else None  # open: trailers end here
         nodes, seg, circ, rcs = lattice_segments(self.near, self.near_gamma, after=after,
                                                  span_core=rc, stream_core=stream)
-        keep = circ != 0.0
+        keep = carries_circulation(circ, np.max(np.abs(self.near_gamma), initial=0.0))
         out = [Filaments(nodes, seg[keep], circ[keep], rcs[keep], core=core)]
         if self.far_gamma.shape[0]:
             r, b = self.far.shape[:2]
@@ -327,7 +327,7 @@ class RolledUpWake:
             seg = np.stack([idx[:-1].ravel(), idx[1:].ravel()], axis=1)
             age = time - 0.5 * (self.far_time[:-1] + self.far_time[1:])
             rcs = np.maximum(s.core_at_age(age)[:, None], self.far_spread[:-1]).ravel()
-            keep = self.far_gamma.ravel() != 0.0
+            keep = carries_circulation(self.far_gamma.ravel(), np.max(np.abs(self.far_gamma), initial=0.0))
             circ = (self.far_gamma * self._fade(age)[:, None]).ravel()
             out.append(Filaments(self.far.reshape(-1, 3), seg[keep], circ[keep], rcs[keep], core=core))
         return out

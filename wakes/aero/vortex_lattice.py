@@ -85,6 +85,35 @@ def lattice_segments(rows: np.ndarray, gamma: np.ndarray, *, before=None, after=
     return nodes, seg[keep], circ[keep], core[keep]
 
 
+NEGLIGIBLE_CIRCULATION = 1e-12
+"""Relative size below which a segment's net circulation is round-off.
+
+A net segment circulation is a difference of two ring circulations; where the
+two are equal in exact arithmetic the difference is a few ulps, about 1e-16 of
+the larger. Segments with ``|Gamma| <= NEGLIGIBLE_CIRCULATION * scale`` (scale:
+the largest ring circulation of the lattice) are dropped; all others are kept.
+The threshold sits four decades above round-off and far below any circulation a
+solve resolves, so the kept set is the same on every machine."""
+
+
+def carries_circulation(circ, scale):
+    """Mask (K,) of the segments whose net circulation ``circ`` [m^2/s] is not round-off.
+
+    Parameters
+    ----------
+    circ : array_like, shape (K,)
+        Net segment circulations [m^2/s].
+    scale : float
+        The largest ring circulation of the lattice [m^2/s].
+
+    Examples
+    --------
+    >>> carries_circulation([1.0, 1e-16, -0.5, 0.0], 1.0).tolist()
+    [True, False, True, False]
+    """
+    return np.abs(np.asarray(circ, dtype=np.float64)) > NEGLIGIBLE_CIRCULATION * float(scale)
+
+
 def lattice_filaments(rows, gamma, *, core: str, core_radius, stream_core=None, before=None,
                       after=None, drop_zero: bool = True) -> Filaments:
     """A ring lattice as :class:`wakes.Filaments` (see :func:`lattice_segments`).
@@ -92,7 +121,7 @@ def lattice_filaments(rows, gamma, *, core: str, core_radius, stream_core=None, 
     ``core_radius`` is a scalar or one value per row (shape (R,)) for the
     spanwise segments; ``stream_core`` (R - 1,) for the streamwise ones
     defaults to the mean of the two rows. Segments with exactly zero net
-    circulation are dropped when ``drop_zero``.
+    circulation (round-off, see :func:`carries_circulation`) are dropped when ``drop_zero``.
     """
     rows = np.asarray(rows, dtype=np.float64)
     rc = np.broadcast_to(np.asarray(core_radius, dtype=np.float64), (rows.shape[0],))
@@ -100,7 +129,8 @@ def lattice_filaments(rows, gamma, *, core: str, core_radius, stream_core=None, 
     nodes, seg, circ, rcs = lattice_segments(rows, gamma, before=before, after=after,
                                              span_core=rc, stream_core=sc)
     if drop_zero:
-        keep = circ != 0.0
+        scale = max(float(np.max(np.abs(g), initial=0.0)) for g in (gamma, before, after) if g is not None)
+        keep = carries_circulation(circ, scale)
         seg, circ, rcs = seg[keep], circ[keep], rcs[keep]
     return Filaments(nodes, seg, circ, rcs, core=core)
 

@@ -33,7 +33,7 @@ import numpy as np
 
 from ..induction.elements import Filaments, Particles
 from ..induction.smoothing import LAMB_OSEEN_ALPHA
-from .vortex_lattice import lattice_filaments, lattice_segments
+from .vortex_lattice import carries_circulation, lattice_filaments, lattice_segments
 
 ATTACHED_CORE_FRACTION = 1e-6  # attached row's core radius / core_radius: a singular line in effect
 
@@ -213,7 +213,8 @@ class WakeSheet:
         # near row's spanwise segments stay in the lattice.
         far_row = (seg[:, 0] >= last.shape[1]) & (seg[:, 1] >= last.shape[1])
         streamwise = (seg[:, 0] < last.shape[1]) != (seg[:, 1] < last.shape[1])
-        take = (far_row | streamwise) & (circ != 0.0)
+        scale = max(np.max(np.abs(self.gamma[-1]), initial=0.0), np.max(np.abs(self.tail), initial=0.0))
+        take = (far_row | streamwise) & carries_circulation(circ, scale)
         a, b = nodes[seg[take, 0]], nodes[seg[take, 1]]
         length = np.linalg.norm(b - a, axis=1)
         born = 0.5 * (self.row_time[-1] + self.row_time[-2])

@@ -8,6 +8,9 @@ from .schema import dump_toml, key, merge, read_toml
 from .specs import (
     BODY_TYPES,
     MAX_AZIMUTH_STEP,
+    MAX_DT,
+    MIN_DT,
+    SCHEDULER_ADDRESS,
     AirfoilSpec,
     Case,
     ClusterSpec,
@@ -26,7 +29,8 @@ from .specs import (
 )
 
 __all__ = [
-    "BODY_TYPES", "MAX_AZIMUTH_STEP", "AirfoilSpec", "Case", "ClusterSpec", "FluidSpec",
+    "BODY_TYPES", "MAX_AZIMUTH_STEP", "MAX_DT", "MIN_DT", "SCHEDULER_ADDRESS", "AirfoilSpec",
+    "Case", "ClusterSpec", "FluidSpec",
     "FreestreamSpec", "GroundSpec", "OutputSpec", "RotorSpec", "SolverSpec", "TimeSpec",
     "WakeSpec", "WingSpec", "case_reference", "dump_toml", "key", "load_case", "merge",
     "parse_case", "read_toml",

@@ -14,6 +14,7 @@ import dataclasses
 import difflib
 import math
 import re
+import stat
 import tomllib
 from dataclasses import field, fields
 from pathlib import Path
@@ -52,16 +53,37 @@ MAX_PATH_CHARS = 4096
 
 
 def read_toml(path) -> dict:
-    """Read a TOML file (at most ``MAX_CASE_BYTES``); a syntax error names the file, line and column."""
+    """Read a TOML file (at most ``MAX_CASE_BYTES``); a syntax error names the file, line and column.
+
+    Raises
+    ------
+    wakes.errors.CaseError
+        If the file is missing, a folder, unreadable, too large, not UTF-8
+        text or not valid TOML.
+    """
     p = Path(path)
-    if not p.is_file():
-        raise CaseError(f"case file '{p}' not found")
-    if p.stat().st_size > MAX_CASE_BYTES:
-        raise CaseError(f"case file '{p}' is {p.stat().st_size:,} bytes; at most "
+    try:
+        info = p.stat()
+    except (FileNotFoundError, NotADirectoryError):
+        raise CaseError(f"case file '{p}' not found") from None
+    except (OSError, ValueError) as exc:
+        raise CaseError(f"case file {short(str(p))}: cannot read it ({reason(exc)})") from None
+    if stat.S_ISDIR(info.st_mode):
+        raise CaseError(f"case file '{p}' is a folder; give the TOML file of a case")
+    if not stat.S_ISREG(info.st_mode):
+        raise CaseError(f"case file '{p}' is not a regular file; give the TOML file of a case")
+    if info.st_size > MAX_CASE_BYTES:
+        raise CaseError(f"case file '{p}' is {info.st_size:,} bytes; at most "
                         f"{MAX_CASE_BYTES:,} bytes are read")
     try:
         with open(p, "rb") as fh:
-            return tomllib.load(fh)
+            raw = fh.read(MAX_CASE_BYTES + 1)
+    except OSError as exc:
+        raise CaseError(f"case file '{p}': cannot read it ({reason(exc)})") from None
+    if len(raw) > MAX_CASE_BYTES:
+        raise CaseError(f"case file '{p}' is more than {MAX_CASE_BYTES:,} bytes; at most that is read")
+    try:
+        return tomllib.loads(raw.decode("utf-8"))
     except tomllib.TOMLDecodeError as exc:
         msg = str(exc)
         m = re.search(r"\(at line (\d+), column (\d+)\)", msg)
@@ -71,6 +93,13 @@ def read_toml(path) -> dict:
         raise CaseError(f"{p}: invalid TOML: {msg}") from None
     except UnicodeDecodeError as exc:
         raise CaseError(f"{p}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
+    except RecursionError:
+        raise CaseError(f"{p}: arrays or tables nested too deeply to read") from None
+
+
+def reason(exc: BaseException) -> str:
+    """The operating system's words for an error (e.g. "Permission denied"), else its type."""
+    return getattr(exc, "strerror", None) or str(exc) or type(exc).__name__
 
 
 class Context:
@@ -87,13 +116,17 @@ class Context:
 def number(value, where, ctx, meta, integer=False):
     if isinstance(value, bool) or not isinstance(value, (int, float)):
         kind = "an integer" if integer else "a number"
-        ctx.fail(f"{where} must be {kind}{unit_text(meta)}; got {value!r}")
+        ctx.fail(f"{where} must be {kind}{unit_text(meta)}; got {short(value)}")
     if integer and not isinstance(value, int):
         ctx.fail(f"{where} must be an integer; got {value!r}")
     if isinstance(value, float) and math.isnan(value):
         ctx.fail(f"{where} must be a number; got nan")
-    if isinstance(value, float) and math.isinf(value) and not (meta.get("allow_inf") and value > 0):
-        ctx.fail(f"{where} must be finite; got {value!r}")
+    if isinstance(value, float) and math.isinf(value):
+        if meta.get("allow_inf") and value > 0:
+            return value
+        ctx.fail(f"{where} must be finite{range_text(meta)}; got {value!r}")
+    if integer and abs(value) > 2 ** 62:
+        ctx.fail(f"{where} must be an integer{range_text(meta)}; got {value!r}")
     check_range(value, where, ctx, meta)
     return int(value) if integer else float(value)
 
@@ -101,11 +134,37 @@ def number(value, where, ctx, meta, integer=False):
 def check_range(value, where, ctx, meta):
     lo, hi, above = meta.get("minimum"), meta.get("maximum"), meta.get("above")
     if above is not None and not value > above:
-        ctx.fail(f"{where} must be greater than {above:g}{unit_text(meta)}; got {value!r}")
-    if lo is not None and value < lo or hi is not None and value > hi:
-        rng = (f"between {lo:g} and {hi:g}" if lo is not None and hi is not None
-               else f"at least {lo:g}" if lo is not None else f"at most {hi:g}")
-        ctx.fail(f"{where} must be {rng}{unit_text(meta)}; got {value!r}")
+        broken = f"greater than {above:g}"
+    elif lo is not None and hi is not None and above is None and not lo <= value <= hi:
+        broken = f"between {lo:g} and {hi:g}"
+    elif lo is not None and not value >= lo:
+        broken = f"at least {lo:g}"
+    elif hi is not None and not value <= hi:
+        broken = f"at most {hi:g}"
+    else:
+        return
+    words = range_words(meta)
+    full = f" (accepted: {words})" if words != broken else ""
+    ctx.fail(f"{where} must be {broken}{unit_text(meta)}; got {value!r}{full}")
+
+
+def range_words(meta) -> str:
+    """The accepted range of a numeric key in words, e.g. "between 0.0001 and 10000"."""
+    lo, hi, above = meta.get("minimum"), meta.get("maximum"), meta.get("above")
+    if above is not None and lo is not None and lo > above:
+        above = None                   # the inclusive bound says it all
+    if lo is not None and hi is not None:
+        text = f"between {lo:g} and {hi:g}"
+    else:
+        parts = ([f"greater than {above:g}"] if above is not None else []) + (
+            [f"at least {lo:g}"] if lo is not None else []) + ([f"at most {hi:g}"] if hi is not None else [])
+        text = " and ".join(parts)
+    return text + (" (or inf)" if meta.get("allow_inf") and text else "")
+
+
+def range_text(meta) -> str:
+    words = range_words(meta)
+    return f" ({words})" if words else ""
 
 
 def unit_text(meta) -> str:
@@ -130,19 +189,27 @@ def _distribution(value, where, ctx, meta) -> Distribution:
             ctx.fail(f"{where}: law \"{law}\" needs key '{k}' (keys: {', '.join(accepted)})")
     if law == "table":
         eta = number_list(value["eta"], f"{where}.eta", ctx, {})
-        vals = number_list(value["values"], f"{where}.values", ctx, {})
-        for i, v in enumerate(vals):
-            check_range(v, f"{where}.values[{i}]", ctx, meta)
+        vals = number_list(value["values"], f"{where}.values", ctx, meta)
         return Distribution("table", eta=tuple(eta), values=tuple(vals))
     nums = {k: number(value[k], f"{where}.{k}", ctx, meta) for k in accepted}
     return Distribution(law, **nums)
 
 
 def number_list(value, where, ctx, meta, length=None):
+    """A list of numbers; ``meta``'s range applies to each."""
     if not isinstance(value, list) or (length is not None and len(value) != length):
         what = f"a list of {length} numbers" if length else "a list of numbers"
-        ctx.fail(f"{where} must be {what}{unit_text(meta)}; got {value!r}")
-    return [number(v, f"{where}[{i}]", ctx, {}) for i, v in enumerate(value)]
+        ctx.fail(f"{where} must be {what}{unit_text(meta)}; got {short(value)}")
+    return [number(v, f"{where}[{i}]", ctx, meta) for i, v in enumerate(value)]
+
+
+def short(value, limit: int = 80) -> str:
+    """``repr(value)`` cut to ``limit`` characters, for messages."""
+    try:
+        text = repr(value)
+    except RecursionError:
+        text = f"a {type(value).__name__} nested too deeply"
+    return text if len(text) <= limit else text[:limit - 3] + "..."
 
 
 def reject_unknown(table: dict, accepted, where: str, ctx) -> None:
@@ -161,16 +228,20 @@ def _convert(f, value, where, ctx):
         return number(value, where, ctx, meta, integer=kind == "int")
     if kind == "bool":
         if not isinstance(value, bool):
-            ctx.fail(f"{where} must be true or false; got {value!r}")
+            ctx.fail(f"{where} must be true or false; got {short(value)}")
         return value
     if kind == "str":
         if not isinstance(value, str):
-            ctx.fail(f"{where} must be a string; got {value!r}")
+            ctx.fail(f"{where} must be a string; got {short(value)}")
+        try:
+            value.encode("utf-8")
+        except UnicodeEncodeError:
+            ctx.fail(f"{where} must be Unicode text; got {short(value)}")
         if meta["choices"] is not None and value not in meta["choices"]:
             close = difflib.get_close_matches(value, meta["choices"], n=1, cutoff=0.6)
             hint = f" (did you mean {close[0]!r}?)" if close else ""
             ctx.fail(f"{where} must be one of {', '.join(map(repr, meta['choices']))}; "
-                     f"got {value!r}{hint}")
+                     f"got {short(value)}{hint}")
         return value
     if kind == "vec3":
         return tuple(number_list(value, where, ctx, meta, length=3))
@@ -178,15 +249,23 @@ def _convert(f, value, where, ctx):
         return _distribution(value, where, ctx, meta)
     if kind == "path":
         if not isinstance(value, str) or not value:
-            ctx.fail(f"{where} must be a file path string; got {value!r}")
+            ctx.fail(f"{where} must be a file path string; got {short(value)}")
         if len(value) > MAX_PATH_CHARS or "\0" in value:
             ctx.fail(f"{where} must be a file path of at most {MAX_PATH_CHARS} characters; "
                      f"got {value[:40]!r}...")
-        p = Path(value)
+        try:
+            value.encode("utf-8")
+            p = Path(value)
+            full = p if p.is_absolute() else (ctx.base_dir / p).resolve()
+            base = ctx.base_dir.resolve()
+            full.stat()
+        except FileNotFoundError:
+            pass       # reported by the reader, which says what the file should hold
+        except (OSError, RuntimeError, UnicodeEncodeError) as exc:
+            reason = getattr(exc, "strerror", None) or type(exc).__name__
+            ctx.fail(f"{where} = {short(value)}: cannot use this path ({reason})")
         if p.is_absolute():
             return str(p)
-        full = (ctx.base_dir / p).resolve()
-        base = ctx.base_dir.resolve()
         if not full.is_relative_to(base):
             ctx.fail(f"{where} = {value!r} leads out of the case file's folder {base}; a relative "
                      "path must stay inside it (give an absolute path to use a file elsewhere)")
@@ -270,15 +349,20 @@ def accepted_text(meta) -> str:
     if meta.get("choices"):
         return ", ".join(f"`{c}`" for c in meta["choices"])
     parts = []
-    if meta.get("above") is not None:
-        parts.append(f"> {meta['above']:g}")
-    if meta.get("minimum") is not None:
-        parts.append(f">= {meta['minimum']:g}")
+    above, lo = meta.get("above"), meta.get("minimum")
+    if above is not None and not (lo is not None and lo > above):
+        parts.append(f"> {above:g}")
+    if lo is not None:
+        parts.append(f">= {lo:g}")
     if meta.get("maximum") is not None:
         parts.append(f"<= {meta['maximum']:g}")
+    if meta.get("allow_inf"):
+        parts.append("or `inf`")
     kind = meta.get("kind")
     extra = {"vec3": "3 numbers", "distribution": "number or law table", "path": "file path",
              "bool": "true/false", "int": "integer"}.get(kind)
+    if kind == "vec3" and parts:
+        return "3 numbers, each " + ", ".join(parts)
     if extra:
         parts.insert(0, extra)
     return ", ".join(parts)

@@ -35,6 +35,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ..aero.clearance import contact_point, disc_triangles, wing_triangles
 from ..aero.geometry import SPACINGS, Distribution, WingPlanform
 from ..aero.ground import GroundPlane
 from ..aero.polars import OUT_OF_RANGE_MODES, load_polar_table
@@ -61,6 +62,7 @@ from .schema import (
     plain_default,
     public_fields,
     read_toml,
+    short,
     to_plain,
 )
 
@@ -70,8 +72,21 @@ WING_MODELS = ("lifting-line", "vortex-lattice")
 DEFAULT_CORE_CHORDS = 0.1   # initial core radius / smallest mean chord (common practice, 5-20 %)
 DEFAULT_WAKE_SPANS = 3.0    # default run length: wake this many spans long (downwash within ~1 %)
 DEFAULT_SNAPSHOTS = 15       # wake snapshots of a run by default: an animation, not a copy per step
-MAX_DEFAULT_STEPS = 10_000_000  # a default step count above this means the sizes or speeds are a typo
-_NAME = re.compile(r"^[A-Za-z0-9_-]+$")
+_NAME = re.compile(r"[A-Za-z0-9_-]{1,64}")
+SCHEDULER_ADDRESS = re.compile(r"(?:tcp|tls)://(?:[A-Za-z0-9_.-]+|\[[0-9A-Fa-f:.]+\]):([0-9]{1,5})")
+
+# Ranges of the case keys. They are typo guards, wide enough for anything from an insect-sized
+# model wing to the largest wind turbines, and they keep every product the time loop forms
+# finite (our choice, not from a reference).
+MIN_LENGTH = 1e-4          # shortest length [m]: span, chord, radius
+MAX_LENGTH = 1e4           # longest length [m]: span, chord, radius, core radius
+MAX_COORDINATE = 1e5       # largest position coordinate [m]: wing position, rotor hub, ground point
+MAX_SPEED = 1000.0         # freestream speed and blade tip speed [m/s]; the method is incompressible
+MIN_DT, MAX_DT = 1e-9, 3600.0   # time step range [s]
+MAX_STEPS = 10_000_000     # most time steps of a run
+MAX_DEFAULT_STEPS = MAX_STEPS  # a default step count above this means the sizes or speeds are a typo
+MAX_REVOLUTIONS = 1e5      # longest rotor run, kept wake, fade and start-up [revolutions]
+MAX_ANGLE = 360.0          # largest orientation angle [deg]
 
 
 # ----------------------------------------------------------------- sections
@@ -80,9 +95,10 @@ _NAME = re.compile(r"^[A-Za-z0-9_-]+$")
 class FluidSpec:
     """[fluid]: the fluid at rest far away."""
 
-    density: float = key(1.225, "fluid density (ISA sea level by default)", "kg/m^3", above=0.0)
+    density: float = key(1.225, "fluid density (ISA sea level by default)", "kg/m^3",
+                         above=0.0, minimum=1e-4, maximum=2e4)
     kinematic_viscosity: float = key(SEA_LEVEL_KINEMATIC_VISCOSITY, "kinematic viscosity nu (ISA sea level)", "m^2/s",
-                                     minimum=0.0)
+                                     minimum=0.0, maximum=1.0)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -94,13 +110,20 @@ class FreestreamSpec:
     sideslip b from the right (+y).
     """
 
-    speed: float = key(0.0, "freestream speed", "m/s", minimum=0.0)
+    speed: float = key(0.0, "freestream speed", "m/s", minimum=0.0, maximum=MAX_SPEED)
     angle_of_attack: float = key(0.0, "angle of the flow above the x axis", "deg",
                                  minimum=-90.0, maximum=90.0)
     sideslip: float = key(0.0, "angle of the flow from the right (+y) side", "deg",
                           minimum=-90.0, maximum=90.0)
-    velocity: tuple | None = key(None, "freestream velocity vector instead of speed and angles",
-                                 "m/s", kind="vec3")
+    velocity: tuple | None = key(None, "freestream velocity vector instead of speed and angles "
+                                 f"(at most {MAX_SPEED:g} m/s long)", "m/s", kind="vec3",
+                                 minimum=-MAX_SPEED, maximum=MAX_SPEED)
+
+    def after_parse(self, raw: dict, where: str, ctx) -> FreestreamSpec:
+        if self.velocity is not None and not np.linalg.norm(self.velocity) <= MAX_SPEED:
+            ctx.fail(f"{where}.velocity {list(self.velocity)} is {np.linalg.norm(self.velocity):.4g} m/s "
+                     f"long; at most {MAX_SPEED:g} m/s is accepted")
+        return self
 
     def vector(self) -> np.ndarray:
         """Freestream velocity in the global frame [m/s], shape (3,)."""
@@ -118,9 +141,9 @@ class TimeSpec:
     """[time]: time stepping."""
 
     dt: float | None = key(None, "time step (default: a wake panel of a quarter mean chord)", "s",
-                           above=0.0, resolved=True)
+                           above=0.0, minimum=MIN_DT, maximum=MAX_DT, resolved=True)
     steps: int | None = key(None, "number of time steps (default: a wake three spans long)",
-                            kind="int", minimum=1, resolved=True)
+                            kind="int", minimum=1, maximum=MAX_STEPS, resolved=True)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -128,9 +151,11 @@ class SolverSpec:
     """[solver]: the bound-circulation solve at each step."""
 
     tolerance: float = key(1e-6, "largest scaled residual accepted (circulation / (c V / 2))",
-                           above=0.0, maximum=0.1)
-    max_iterations: int = key(50, "Newton iterations allowed per step", kind="int", minimum=1)
-    relaxation: float = key(1.0, "under-relaxation factor of each Newton step", above=0.0, maximum=1.0)
+                           above=0.0, minimum=1e-14, maximum=0.1)
+    max_iterations: int = key(50, "Newton iterations allowed per step", kind="int", minimum=1,
+                               maximum=10_000)
+    relaxation: float = key(1.0, "under-relaxation factor of each Newton step", above=0.0, minimum=0.01,
+                           maximum=1.0)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -143,25 +168,25 @@ class WakeSpec:
                       kind="str", choices=WAKE_MOTIONS)
     core: str = key("lamb-oseen", "filament core model", kind="str", choices=CORE_MODELS)
     core_radius: float | None = key(None, "initial core radius (default: 0.1 x smallest mean chord)",
-                                    "m", above=0.0, resolved=True)
+                                    "m", above=0.0, minimum=1e-6, maximum=MAX_LENGTH, resolved=True)
     core_growth: float = key(1.0, "eddy-viscosity factor delta of the core growth law (1: laminar)",
-                             minimum=0.0)
+                             minimum=0.0, maximum=1e5)
     particle_kernel: str = key("gaussian", "particle smoothing kernel", kind="str",
                                choices=PARTICLE_KERNELS)
     particle_overlap: float = key(1.3, "particle radius / length of the segment it replaces",
-                                  above=0.0)
+                                  above=0.0, minimum=0.1, maximum=10.0)
     near_wake_steps: int = key(8, "wake rows kept as filaments before conversion (particles)",
-                               kind="int", minimum=1)
+                               kind="int", minimum=1, maximum=100_000)
     stretching: str = key("transposed", "particle stretching scheme (free wake)", kind="str",
                           choices=STRETCHING_SCHEMES)
     cores_at_surfaces: bool = key(False, "surfaces see wake filament cores (false: singular lines)",
                                   kind="bool")
     max_age: float = key(float("inf"), "wake older than this is removed (inf: kept)", "s", above=0.0,
-                         allow_inf=True)
+                         maximum=1e9, allow_inf=True)
     induction: str = key("auto", "summation method of wakes.induce for the wake", kind="str",
                          choices=METHODS)
     induction_tolerance: float = key(1e-6, "relative velocity error aimed at by the treecode",
-                                     above=0.0, maximum=0.1)
+                                     above=0.0, minimum=1e-10, maximum=0.1)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -182,18 +207,17 @@ class GroundSpec:
     """[ground]: a flat ground, by the mirror images of every vortex element
     (:mod:`wakes.aero.ground`); no ground unless ``point`` is given."""
 
-    point: tuple | None = key(None, "a point of the ground plane (none: no ground)", "m", kind="vec3")
+    point: tuple | None = key(None, "a point of the ground plane (none: no ground)", "m", kind="vec3",
+                              minimum=-MAX_COORDINATE, maximum=MAX_COORDINATE)
     normal: tuple = key((0.0, 0.0, 1.0), "normal of the ground plane, from the ground into the air",
-                        kind="vec3")
+                        kind="vec3", minimum=-1e6, maximum=1e6)
 
     def plane(self):
         """The ground as a :class:`wakes.aero.ground.GroundPlane`, or None."""
         return None if self.point is None else GroundPlane(np.asarray(self.point), np.asarray(self.normal))
 
     def after_parse(self, raw: dict, where: str, ctx) -> GroundSpec:
-        if not np.linalg.norm(self.normal) > 0.0:
-            ctx.fail(f"{where}.normal must be a nonzero vector (from the ground into the air); "
-                     f"got {list(self.normal)}")
+        _check_direction(self.normal, f"{where}.normal", "from the ground into the air", ctx)
         return self
 
 
@@ -205,12 +229,13 @@ class ClusterSpec:
     scheduler: str = key("", "address of a running Dask scheduler, tcp://HOST:PORT (empty: this "
                          "process only)", kind="str")
     min_wake: int = key(50_000, "wake elements (segments + particles) from which the wake's "
-                        "induction goes to the workers", kind="int", minimum=1)
+                        "induction goes to the workers", kind="int", minimum=1, maximum=10 ** 12)
 
     def after_parse(self, raw: dict, where: str, ctx) -> ClusterSpec:
-        if self.scheduler and "://" not in self.scheduler:
-            ctx.fail(f"{where}.scheduler must be an address such as 'tcp://10.0.0.5:8786' "
-                     f"(or empty); got {self.scheduler!r}")
+        m = SCHEDULER_ADDRESS.fullmatch(self.scheduler)
+        if self.scheduler and not (m and 1 <= int(m.group(1)) <= 65535):
+            ctx.fail(f"{where}.scheduler must be an address tcp://HOST:PORT or tls://HOST:PORT such "
+                     f"as 'tcp://10.0.0.5:8786', port 1 to 65535 (or empty); got {short(self.scheduler)}")
         return self
 
 
@@ -222,11 +247,12 @@ class AirfoilSpec:
                             kind="path")
     out_of_range: str = key("error", "angles outside the table: error, or blend to flat plate",
                             kind="str", choices=OUT_OF_RANGE_MODES)
-    lift_slope: float = key(2 * math.pi, "thin airfoil: section lift slope", "1/rad", above=0.0)
+    lift_slope: float = key(2 * math.pi, "thin airfoil: section lift slope", "1/rad", above=0.0,
+                            maximum=20.0)
     zero_lift_angle: float = key(0.0, "thin airfoil: zero-lift angle", "deg",
                                  minimum=-30.0, maximum=30.0)
-    cd0: float = key(0.0, "thin airfoil: drag polar cd = cd0 + cd2 cl^2", minimum=0.0)
-    cd2: float = key(0.0, "thin airfoil: drag polar cd = cd0 + cd2 cl^2", minimum=0.0)
+    cd0: float = key(0.0, "thin airfoil: drag polar cd = cd0 + cd2 cl^2", minimum=0.0, maximum=2.0)
+    cd2: float = key(0.0, "thin airfoil: drag polar cd = cd0 + cd2 cl^2", minimum=0.0, maximum=10.0)
 
     _THIN = ("lift_slope", "zero_lift_angle", "cd0", "cd2")
 
@@ -252,8 +278,10 @@ class WingSpec:
     type: str = key("wing", "body type", kind="str", choices=("wing",))
     model: str = key("lifting-line", "nonlinear lifting line with polars, or vortex lattice",
                      kind="str", choices=WING_MODELS)
-    span: float = key(doc="tip-to-tip span, projected on the body y axis", unit="m", above=0.0)
-    chord: Distribution = key(doc="chord along the span", unit="m", kind="distribution", above=0.0)
+    span: float = key(doc="tip-to-tip span, projected on the body y axis", unit="m",
+                      above=0.0, minimum=MIN_LENGTH, maximum=MAX_LENGTH)
+    chord: Distribution = key(doc="chord along the span", unit="m", kind="distribution",
+                              above=0.0, minimum=MIN_LENGTH, maximum=MAX_LENGTH)
     twist: Distribution = key(Distribution.constant(0.0), "section incidence, nose up positive",
                               "deg", kind="distribution", minimum=-45.0, maximum=45.0)
     sweep: Distribution = key(Distribution.constant(0.0), "quarter-chord sweep, tips aft positive",
@@ -267,11 +295,11 @@ class WingSpec:
     chordwise_panels: int | None = key(None, "panels along the chord (lifting line: 1; lattice: 4)",
                                        kind="int", minimum=1, maximum=64, resolved=True)
     position: tuple = key((0.0, 0.0, 0.0), "root quarter-chord point in the global frame", "m",
-                          kind="vec3")
+                          kind="vec3", minimum=-MAX_COORDINATE, maximum=MAX_COORDINATE)
     orientation: tuple = key((0.0, 0.0, 0.0), "rotation about global x, then y (nose up), then z",
-                             "deg", kind="vec3")
+                             "deg", kind="vec3", minimum=-MAX_ANGLE, maximum=MAX_ANGLE)
     reference_area: float | None = key(None, "area for coefficients (default: planform area)", "m^2",
-                                       above=0.0, resolved=True)
+                                       above=0.0, minimum=1e-9, maximum=MAX_LENGTH ** 2, resolved=True)
     airfoil: AirfoilSpec = key(AirfoilSpec(), "section polar", kind="table")
     name: str = field(default="wing", metadata=dict(internal=True))
 
@@ -293,11 +321,22 @@ class WingSpec:
                      f"{self.chordwise_panels} (use model = \"vortex-lattice\" for chordwise panels)")
         return self
 
+    def outline(self) -> np.ndarray:
+        """The planform as triangles in the global frame, shape (M, 3, 3) [m]."""
+        return wing_triangles(self.planform(), n_span=self.spanwise_panels, spacing=self.spacing,
+                              position=self.position, orientation_deg=self.orientation)
+
     def check(self, case: Case, where: str, ctx) -> None:
         ground = case.ground.plane()
-        if ground is not None and not ground.height(np.asarray(self.position, dtype=np.float64)) > 0.0:
-            ctx.fail(f"{where}.position {list(self.position)} is not above the ground plane "
-                     "([ground] point and normal); the wing must be on the side the normal points to")
+        if ground is not None:
+            corners = self.outline().reshape(-1, 3)
+            height = ground.height(corners)
+            if not height.min() > 0.0:
+                low = corners[int(np.argmin(height))]
+                ctx.fail(f"{where} reaches through the ground plane ([ground] point and normal): its "
+                         f"planform is {-height.min():.4g} m below it near ({low[0]:.4g}, {low[1]:.4g}, "
+                         f"{low[2]:.4g}) m; the whole wing must be above the ground, on the side the "
+                         f"normal points to (move {where}.position or [ground] point)")
         if np.linalg.norm(case.freestream.vector()) == 0.0:
             ctx.fail(f"{where}: a wing needs a freestream; [freestream] speed must be positive "
                      "(or velocity nonzero), got zero")
@@ -320,6 +359,7 @@ class WingSpec:
 
 
 MAX_AZIMUTH_STEP = 30.0     # largest blade turn per step accepted [deg]; 5-10 advised (common practice)
+MAX_CUTOUT = 0.9            # largest root cut-out / radius (our choice: a blade of a tenth of the radius)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -336,21 +376,24 @@ class RotorSpec:
     kind: str = key("rotor", "coefficients reported: lift rotor, propeller or wind turbine",
                     kind="str", choices=ROTOR_KINDS)
     blades: int = key(doc="number of blades", kind="int", minimum=1, maximum=64)
-    radius: float = key(doc="tip radius, along the blade from the hub centre", unit="m", above=0.0)
-    root_cutout: float = key(doc="radius where the lifting blade starts (less than radius)",
-                             unit="m", minimum=0.0)
+    radius: float = key(doc="tip radius, along the blade from the hub centre", unit="m",
+                        above=0.0, minimum=MIN_LENGTH, maximum=MAX_LENGTH)
+    root_cutout: float = key(doc=f"radius where the lifting blade starts (at most {MAX_CUTOUT:g} x radius)",
+                             unit="m", minimum=0.0, maximum=MAX_LENGTH)
     chord: Distribution = key(doc="chord along the blade (eta 0 at the root cut-out, 1 at the tip)",
-                              unit="m", kind="distribution", above=0.0)
+                              unit="m", kind="distribution", above=0.0, minimum=MIN_LENGTH, maximum=MAX_LENGTH)
     twist: Distribution = key(Distribution.constant(0.0), "section pitch added to the collective, "
                               "along the blade", "deg", kind="distribution", minimum=-90.0, maximum=90.0)
     collective: float = key(0.0, "pitch of every section before twist, leading edge towards +axis",
                             "deg", minimum=-90.0, maximum=90.0)
-    rpm: float = key(doc="rotational speed", unit="rev/min", above=0.0)
+    rpm: float = key(doc=f"rotational speed (blade tip speed at most {MAX_SPEED:g} m/s)", unit="rev/min",
+                     above=0.0, minimum=0.1, maximum=1e6)
     spin: str = key("ccw", "ccw: counter-clockwise seen from the +axis side (right-handed about it)",
                     kind="str", choices=("ccw", "cw"))
-    hub: tuple = key((0.0, 0.0, 0.0), "hub centre in the global frame", "m", kind="vec3")
+    hub: tuple = key((0.0, 0.0, 0.0), "hub centre in the global frame", "m", kind="vec3",
+                     minimum=-MAX_COORDINATE, maximum=MAX_COORDINATE)
     axis: tuple = key((0.0, 0.0, 1.0), "thrust direction (downwind for a turbine), not zero",
-                      kind="vec3")
+                      kind="vec3", minimum=-1e6, maximum=1e6)
     precone: float = key(0.0, "cone angle of the blades towards +axis", "deg",
                          minimum=-30.0, maximum=30.0)
     azimuth: float = key(0.0, "position of blade 1 at the start, from global +x projected on the "
@@ -359,23 +402,25 @@ class RotorSpec:
     spacing: str = key("cosine", "station spacing: cosine (root and tip), tip, uniform", kind="str",
                        choices=BLADE_SPACINGS)
     azimuth_step: float = key(10.0, "blade turn per time step when [time] dt is not given", "deg",
-                              above=0.0, maximum=MAX_AZIMUTH_STEP)
-    revolutions: float = key(10.0, "run length when [time] steps is not given", above=0.0)
+                              above=0.0, minimum=0.1, maximum=MAX_AZIMUTH_STEP)
+    revolutions: float = key(10.0, "run length when [time] steps is not given", above=0.0,
+                             maximum=MAX_REVOLUTIONS)
     wake_revolutions: float = key(6.0, "wake older than this many revolutions is removed (inf: kept)",
-                                  above=0.0, allow_inf=True)
+                                  above=0.0, maximum=MAX_REVOLUTIONS, allow_inf=True)
     wake_fade_revolutions: float = key(2.0, "revolutions before the wake is removed over which its "
                                        "circulation fades linearly to zero, at most half the kept wake "
                                        "(0: cut abruptly)",
-                                       minimum=0.0)
+                                       minimum=0.0, maximum=MAX_REVOLUTIONS)
     rollup_age: float = key(360.0, "wake age where the blade's resolved sheet rolls up into a tip "
                             "vortex and inboard trailers (inf: never)", "deg", above=0.0,
-                            allow_inf=True)
+                            maximum=360.0 * MAX_REVOLUTIONS, allow_inf=True)
     inboard_trailers: int = key(2, "trailers the inboard part of the rolled-up wake is gathered into "
                                 "(0: not followed)", kind="int", minimum=0, maximum=32)
     symmetric_wake: bool = key(False, "keep the blades' wakes B-fold symmetric (axial flow only)",
                                kind="bool")
     startup_revolutions: float = key(2.0, "lift rotor: revolutions over which a start-up drift of "
-                                     "the wake fades (0: none)", minimum=0.0)
+                                     "the wake fades (0: none)", minimum=0.0,
+                                     maximum=MAX_REVOLUTIONS)
     airfoil: AirfoilSpec = key(AirfoilSpec(), "section polar", kind="table")
     name: str = field(default="rotor", metadata=dict(internal=True))
 
@@ -392,16 +437,25 @@ class RotorSpec:
         return self.geometry().mean_chord()
 
     def after_parse(self, raw: dict, where: str, ctx) -> RotorSpec:
-        if not self.root_cutout < self.radius:
-            ctx.fail(f"{where}.root_cutout must be less than {where}.radius = {self.radius:g} m "
-                     f"(the blade runs from the cut-out to the tip); got {self.root_cutout:g} m")
+        if not self.root_cutout <= MAX_CUTOUT * self.radius:
+            ctx.fail(f"{where}.root_cutout must be less than {where}.radius = {self.radius:g} m, at most "
+                     f"{MAX_CUTOUT:g} x radius = {MAX_CUTOUT * self.radius:g} m (the blade runs from the "
+                     f"cut-out to the tip); got {self.root_cutout:g} m")
         for name in ("chord", "twist"):
             problem = getattr(self, name).problem(True)
             if problem:
                 ctx.fail(f"{where}.{name}: {problem}")
-        if not np.linalg.norm(self.axis) > 0.0:
-            ctx.fail(f"{where}.axis must be a nonzero vector (the thrust direction); got {list(self.axis)}")
+        _check_direction(self.axis, f"{where}.axis", "the thrust direction", ctx)
+        tip_speed = 2.0 * math.pi * self.radius * self.rpm / 60.0
+        if not tip_speed <= MAX_SPEED:
+            ctx.fail(f"{where}: the blade tips move at {tip_speed:.4g} m/s ({where}.radius = "
+                     f"{self.radius:g} m at {self.rpm:g} rpm); at most {MAX_SPEED:g} m/s is accepted: "
+                     f"rpm must be at most {MAX_SPEED * 60.0 / (2.0 * math.pi * self.radius):.4g}")
         return self
+
+    def outline(self) -> np.ndarray:
+        """The cone swept by the blades, hub centre to tip, as triangles, shape (M, 3, 3) [m]."""
+        return disc_triangles(hub=self.hub, axis=self.axis, radius=self.radius, precone_deg=self.precone)
 
     def check(self, case: Case, where: str, ctx) -> None:
         ground = case.ground.plane()
@@ -497,6 +551,16 @@ class Case:
 
 # ----------------------------------------------------------------- parsing
 
+MIN_DIRECTION = 1e-6   # shortest vector accepted as a direction (axis, ground normal)
+
+
+def _check_direction(vector, where: str, meaning: str, ctx) -> None:
+    """A direction vector must not be (nearly) zero; its length does not matter otherwise."""
+    if not np.linalg.norm(vector) >= MIN_DIRECTION:
+        ctx.fail(f"{where} must be a nonzero vector ({meaning}), at least {MIN_DIRECTION:g} long; "
+                 f"got {list(vector)}")
+
+
 def _parse_bodies(table, ctx) -> tuple:
     if not isinstance(table, dict) or not table:
         ctx.fail("the case needs at least one body: a table [bodies.NAME] with type = "
@@ -504,8 +568,9 @@ def _parse_bodies(table, ctx) -> tuple:
     out = []
     for name, body in table.items():
         where = f"bodies.{name}"
-        if not _NAME.match(name):
-            ctx.fail(f"body name {name!r} may hold only letters, digits, '-' and '_'")
+        if not isinstance(name, str) or not _NAME.fullmatch(name):
+            ctx.fail(f"body name {short(name)} may hold only letters, digits, '-' and '_' "
+                     "(1 to 64 of them)")
         if not isinstance(body, dict):
             ctx.fail(f"[{where}] must be a table; got {body!r}")
         btype = body.get("type")
@@ -558,7 +623,26 @@ def parse_case(data: dict, *, source: str = "<dict>", base_dir=".") -> Case:
     case = dataclasses.replace(case, bodies=bodies, source=source)
     for b in bodies:
         b.check(case, f"bodies.{b.name}", ctx)
+    _check_clearance(bodies, ctx)
     return _resolve(case)
+
+
+def _check_clearance(bodies, ctx) -> None:
+    """No two bodies overlap or touch (:mod:`wakes.aero.clearance`)."""
+    outlines = [b.outline() for b in bodies]
+    for i in range(len(bodies)):
+        for j in range(i + 1, len(bodies)):
+            p = contact_point(outlines[i], outlines[j])
+            if p is not None:
+                a, b = bodies[i], bodies[j]
+                ctx.fail(f"bodies.{a.name} and bodies.{b.name} overlap near ({p[0]:.4g}, {p[1]:.4g}, "
+                         f"{p[2]:.4g}) m: {_occupies(a)} meets {_occupies(b)}; move one of them "
+                         "(a wing's position, a rotor's hub) so that they are apart")
+
+
+def _occupies(body) -> str:
+    return (f"the planform of {body.name}" if body.type == "wing"
+            else f"the disc swept by the blades of {body.name}")
 
 
 def _resolve(case: Case) -> Case:
@@ -571,15 +655,16 @@ def _resolve(case: Case) -> Case:
         wake = dataclasses.replace(wake, core_radius=DEFAULT_CORE_CHORDS * chord)
     time = case.time
     dt = time.dt if time.dt is not None else min(b.suggest_dt(case) for b in bodies)
-    if not (math.isfinite(dt) and dt > 0.0):
-        raise CaseError(f"[time] dt: the default step from the case's sizes and speeds is {dt:g} s; "
-                        "give [time] dt, a positive number of seconds")
+    if not (math.isfinite(dt) and MIN_DT <= dt <= MAX_DT):
+        raise CaseError(f"{case.source}: [time] dt: the default step from the case's sizes and speeds is "
+                        f"{dt:g} s, outside the accepted {MIN_DT:g} to {MAX_DT:g} s; give [time] dt, a "
+                        "number of seconds in that range")
     if time.steps is None:
         wanted = max(b.suggest_steps_float(case, dt) for b in bodies)
         if not (math.isfinite(wanted) and wanted <= MAX_DEFAULT_STEPS):
-            raise CaseError(f"[time] steps: the default from the case's sizes and speeds is {wanted:g} "
-                            f"steps (more than {MAX_DEFAULT_STEPS:,}); give [time] steps, a whole "
-                            "number of at least 1")
+            raise CaseError(f"{case.source}: [time] steps: the default from the case's sizes and speeds "
+                            f"is {wanted:g} steps (more than {MAX_DEFAULT_STEPS:,}); give [time] steps, "
+                            f"a whole number from 1 to {MAX_STEPS:,}")
         steps = max(1, int(math.ceil(wanted - 1e-9)))
     else:
         steps = time.steps
@@ -613,8 +698,8 @@ def load_case(path, overrides: dict | None = None) -> Case:
     Examples
     --------
     >>> import wakes.case
-    >>> case = wakes.case.load_case("cases/validation/elliptic-wing.toml")  # doctest: +SKIP
-    >>> case.body("wing").span                                               # doctest: +SKIP
+    >>> case = wakes.case.load_case("cases/validation/elliptic-wing.toml")
+    >>> case.body("wing").span
     8.0
     """
     data = read_toml(path)

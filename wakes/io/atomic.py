@@ -23,9 +23,11 @@ def write_bytes(path: str | os.PathLike, data: bytes) -> Path:
             fh.flush()
             os.fsync(fh.fileno())
         os.replace(tmp, path)
-    except BaseException:
+    except BaseException as exc:
         if os.path.exists(tmp):
             os.unlink(tmp)
+        if isinstance(exc, OSError) and exc.filename is None and exc.errno is not None:
+            raise OSError(exc.errno, exc.strerror, str(path)) from None   # name the file not written
         raise
     return path
 

@@ -31,6 +31,8 @@ from __future__ import annotations
 import json
 import re
 import tomllib
+import zipfile
+import zlib
 from dataclasses import dataclass, field
 from io import BytesIO
 from pathlib import Path
@@ -206,7 +208,7 @@ def read_checkpoint(path) -> tuple[LoopState, str, str]:
             arrays = {k: data[k] for k in data.files}
         meta = json.loads(str(arrays.pop("meta")))
         fmt, version = meta.get("format"), meta.get("version")
-    except (OSError, ValueError, KeyError, EOFError, AttributeError) as exc:
+    except (OSError, ValueError, KeyError, EOFError, AttributeError, zipfile.BadZipFile, zlib.error) as exc:
         raise CheckpointError(f"checkpoint '{path}' cannot be read ({type(exc).__name__}: {exc}); "
                               "it must be a file written by a wakes run") from None
     if fmt != CHECKPOINT_FORMAT or version != CHECKPOINT_VERSION:

@@ -100,8 +100,9 @@ def read_run(path: str | os.PathLike) -> RunFolder:
 
     Examples
     --------
-    >>> run = read_run("glider-run")           # doctest: +SKIP
-    >>> run.loads["CL"].iloc[-1]               # doctest: +SKIP
+    >>> run = read_run("glider-run")
+    >>> len(run.loads)
+    70
     """
     path = Path(path)
     if not path.exists():

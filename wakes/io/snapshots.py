@@ -67,6 +67,10 @@ class WakeSnapshots:
         Snapshots already in the folder for steps before this one are kept
         (those of the run being resumed); every other snapshot file there
         is removed. 0 for a new run.
+    remove_now : bool
+        Remove those files now; if false, when the first snapshot file is
+        written (so a run that fails before leaves an earlier run's files
+        as they were) or by :meth:`remove_stale`.
 
     Examples
     --------
@@ -80,7 +84,7 @@ class WakeSnapshots:
     [0.0, 0.5]
     """
 
-    def __init__(self, run_dir: str | os.PathLike, keep_before: int = 0):
+    def __init__(self, run_dir: str | os.PathLike, keep_before: int = 0, remove_now: bool = True):
         self.folder = Path(run_dir) / WAKE_FOLDER
         self.entries: dict[str, list[tuple[int, float, str]]] = {k: [] for k in KINDS}
         listed = set()
@@ -91,11 +95,13 @@ class WakeSnapshots:
                         and (self.folder / name).is_file():
                     self.entries[kind].append((int(m.group(2)), time, name))
                     listed.add(name)
+        self._stale = []
         if self.folder.is_dir():
-            for p in self.folder.iterdir():
-                if (_FILE.match(p.name) and p.name not in listed) or \
-                        (p.suffix == ".pvd" and p.stem in KINDS and not self.entries[p.stem]):
-                    p.unlink(missing_ok=True)
+            self._stale = [p for p in self.folder.iterdir()
+                           if (_FILE.match(p.name) and p.name not in listed)
+                           or (p.suffix == ".pvd" and p.stem in KINDS and not self.entries[p.stem])]
+        if remove_now:
+            self.remove_stale()
 
     def times(self, kind: str) -> list[float]:
         """Simulated times [s] of the ``kind`` ("filaments" or "particles") snapshots so far."""
@@ -119,4 +125,12 @@ class WakeSnapshots:
             written.append(vtk_io.write_collection(
                 self.folder / f"{kind}.pvd",
                 [(t, self.folder / n) for _, t, n in self.entries[kind]]))
+        if written:
+            self.remove_stale()
         return written
+
+    def remove_stale(self) -> None:
+        """Remove the snapshot files of an earlier run that this one does not keep."""
+        for p in self._stale:
+            p.unlink(missing_ok=True)
+        self._stale = []
