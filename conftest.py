@@ -19,7 +19,7 @@ ROOT = Path(__file__).resolve().parent
 def _example_folder(tmp_path_factory):
     folder = tmp_path_factory.mktemp("examples")
     shutil.copytree(ROOT / "cases", folder / "cases")
-    from wakes.runfolder import run_to_folder
+    from wakes.run import run_to_folder
 
     run_to_folder(str(folder / "cases" / "survey-glider.toml"), folder / "glider-run", plots=False)
     return folder

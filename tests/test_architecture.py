@@ -150,3 +150,10 @@ def test_the_engine_imports_no_dask_and_no_case(engine_module):
     names |= {n.module or "" for n in ast.walk(tree) if isinstance(n, ast.ImportFrom)}
     assert not {n for n in names if n.split(".")[0] in ("dask", "distributed")}
     assert not {n for n in names if n.lstrip(".").startswith(("case", "cluster", "io"))}
+
+
+def test_every_folder_of_the_package_is_a_regular_package():
+    """A folder without __init__.py imports as a namespace package but is left out of
+    the built distribution and confuses doctest collection."""
+    folders = {p.parent for p in PACKAGE.rglob("*.py")}
+    assert sorted(str(f.relative_to(PACKAGE)) for f in folders if not (f / "__init__.py").is_file()) == []

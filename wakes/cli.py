@@ -32,7 +32,7 @@ uninterrupted run's bit for bit on the same machine. ``[output]
 checkpoint_every`` in the case writes checkpoints periodically.
 
 The command only parses arguments and calls the same functions a Python
-user calls (:func:`wakes.case.load_case`, :func:`wakes.simulate.run_case`).
+user calls (:func:`wakes.case.load_case`, :func:`wakes.run.run_case`).
 """
 
 from __future__ import annotations

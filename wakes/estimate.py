@@ -28,7 +28,7 @@ from .induction.elements import Filaments
 # node velocities of the free-wake update; a particle keeps position,
 # strength, radius, velocity and the 3x3 velocity gradient (~200 B). Doubled
 # for the copies the time loop makes of source lists (counted from the arrays
-# in wakes.elements and wakes.simulate).
+# in wakes.induction.elements and wakes.simulate).
 BYTES_PER_SEGMENT = 2 * 120
 BYTES_PER_PARTICLE = 2 * 200
 BASE_MEMORY_MB = 150.0    # interpreter, numpy, numba and pandas at start (measured: 120-160 MB)

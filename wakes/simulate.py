@@ -94,7 +94,7 @@ class Run:
         the start of the step that did not finish.
     stop_signal : int or None
         The signal that stopped an interrupted run (set by
-        :func:`wakes.watchdog.run_guarded`).
+        :func:`wakes.run.run_guarded`).
     tables : dict
         Extra result tables of the bodies, ``{file name: DataFrame}``
         (a rotor's ``tip_vortex.csv``), written beside the others.

@@ -643,7 +643,7 @@ def check_run(summary: dict, loads: pd.DataFrame, sections: pd.DataFrame, case,
     Examples
     --------
     >>> from wakes.case import load_case
-    >>> from wakes.simulate import run_case
+    >>> from wakes.run import run_case
     >>> run = run_case(load_case("cases/survey-glider.toml"))
     >>> check_run(run.summary, run.loads, run.sections, run.case)
     []

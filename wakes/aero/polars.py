@@ -81,11 +81,6 @@ class ThinAirfoilPolar:
     def name(self) -> str:
         return "thin airfoil"
 
-    @property
-    def alpha_range(self) -> tuple[float, float]:
-        """First and last tabulated angle [rad]."""
-        return float(self.alpha[0]), float(self.alpha[-1])
-
     def evaluate(self, alpha: np.ndarray, mach=None):
         """Return cl, cd and dcl/dalpha [1/rad] at angles ``alpha`` [rad], each shape of alpha.
 
@@ -166,6 +161,11 @@ class TablePolar:
     def __repr__(self) -> str:
         lo, hi = np.degrees(self.alpha[[0, -1]])
         return f"TablePolar({self.name!r}, {lo:g} to {hi:g} deg, out_of_range={self.out_of_range!r})"
+
+    @property
+    def alpha_range(self) -> tuple[float, float]:
+        """First and last tabulated angle [rad]."""
+        return float(self.alpha[0]), float(self.alpha[-1])
 
     def evaluate(self, alpha: np.ndarray, mach=None):
         """Return cl, cd and dcl/dalpha [1/rad] at angles ``alpha`` [rad].

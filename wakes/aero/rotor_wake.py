@@ -26,7 +26,7 @@ the tip vortex and both wander off (a spread sheet does not). In any other
 flow every node is free.
 
 Every node moves with the local velocity (the time loop's
-:func:`wakes.simulate.run_case`, forward Euler); core radii grow with age
+:func:`wakes.run.run_case`, forward Euler); core radii grow with age
 (Squire's law, :meth:`WakeSettings.core_at_age`). Far wake older than
 ``settings.max_age`` is removed: the wake below is then missing, which in
 hover lowers the inflow at the disc by about 1 - L/sqrt(L^2 + R_w^2) for a

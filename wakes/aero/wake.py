@@ -70,7 +70,7 @@ class WakeSettings:
     near_wake_steps : int
         Rings kept as filaments before conversion (particle model).
     stretching : str
-        Particle stretching scheme (:data:`wakes.dynamics.STRETCHING_SCHEMES`).
+        Particle stretching scheme (:data:`wakes.vortex.dynamics.STRETCHING_SCHEMES`).
     max_age : float
         Wake older than this [s] is removed (inf: kept).
     cores_at_surfaces : bool

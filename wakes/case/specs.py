@@ -224,7 +224,7 @@ class GroundSpec:
 @dataclass(frozen=True, kw_only=True)
 class ClusterSpec:
     """[cluster]: Dask workers that share the wake's induction once the wake is large
-    (:class:`wakes.distributed.WakeCluster`); results equal a one-process run to round-off."""
+    (:class:`wakes.cluster.WakeCluster`); results equal a one-process run to round-off."""
 
     scheduler: str = key("", "address of a running Dask scheduler, tcp://HOST:PORT (empty: this "
                          "process only)", kind="str")

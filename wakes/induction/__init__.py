@@ -1,5 +1,5 @@
-"""Numba kernels for induced velocity; the public front end is :mod:`.api`.
+"""The induction engine: numba kernels, the element types and :func:`.api.induce`.
 
-Kept free of imports so that :mod:`wakes.elements` can read the kernel
-registries in :mod:`.smoothing` without a cycle.
+Kept free of imports so that importing one kernel module does not load the
+rest; the front end is :mod:`.api`.
 """

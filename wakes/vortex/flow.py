@@ -42,7 +42,7 @@ class ParticleFlow:
     Particles move with the velocity they induce, and their strengths obey
     the vorticity equation of a homogeneous incompressible fluid, with
     stretching and, optionally, viscous diffusion (see
-    :mod:`wakes.dynamics`; baroclinic and body-force terms vanish for such a
+    :mod:`wakes.vortex.dynamics`; baroclinic and body-force terms vanish for such a
     fluid under conservative forces). Every velocity comes from
     :func:`wakes.induce`.
 
@@ -58,7 +58,7 @@ class ParticleFlow:
         Used only when ``viscosity`` > 0. "core-spreading" needs the Gaussian
         kernel; "pse" the Gaussian or Winckelmans-Leonard kernel.
     integrator : {"euler", "rk2", "rk3", "rk4"}, default "rk3"
-        Runge--Kutta scheme (:mod:`wakes.integrators`).
+        Runge--Kutta scheme (:mod:`wakes.vortex.integrators`).
     method : str, default "auto"
         Induction summation method, passed to :func:`wakes.induce`; "auto"
         lets the engine choose (direct summation while it offers nothing
@@ -232,7 +232,7 @@ class ParticleFlow:
         self._induced = None
 
     def diagnostics(self) -> dict:
-        """Diagnostics of the current state: step, time and :mod:`wakes.diagnostics` columns."""
+        """Diagnostics of the current state: step, time and :mod:`wakes.vortex.diagnostics` columns."""
         velocity, _ = self._induced_now()
         row = {"step": self._steps, "time": self._time}
         row.update(field_diagnostics(self.particles, velocity))
@@ -255,7 +255,7 @@ class ParticleFlow:
         -------
         pandas.DataFrame
             One row for the starting state, then one per step, with columns
-            ``step``, ``time`` [s] and those of :data:`wakes.diagnostics.DIAGNOSTIC_COLUMNS`.
+            ``step``, ``time`` [s] and those of :data:`wakes.vortex.diagnostics.DIAGNOSTIC_COLUMNS`.
 
         Raises
         ------
