@@ -49,7 +49,7 @@ def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
     ...     [[np.cos(t), np.sin(t), 0.0] for t in np.linspace(0, 2*np.pi, 64, endpoint=False)],
     ...     circulation=1.0, core_radius=0.01, closed=True)
     >>> u = wakes.induce(ring, [[0.0, 0.0, 0.0]])
-    >>> round(u[0, 2], 3)   # Gamma/(2R) at the centre
+    >>> round(float(u[0, 2]), 3)   # Gamma/(2R) at the centre
     0.5
     """
     if client is None:

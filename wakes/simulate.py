@@ -1,6 +1,6 @@
 """The time loop: bodies shed wakes, circulation is solved, loads are recorded.
 
-One step at time t (see :func:`run_case`):
+One step at time t (:meth:`TimeLoop.step`, driven by :func:`wakes.run.run_case`):
 
 1. the bodies place their lifting surfaces at t;
 2. the wakes induce velocity at the surfaces' evaluation points;

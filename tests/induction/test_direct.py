@@ -166,8 +166,8 @@ def test_closed_polyline_ring_matches_elliptic_integral_field():
 def test_core_profile_of_a_long_segment(core):
     """Swirl at distance h from the middle of a long segment = Gamma/(2 pi h) F(h).
 
-    F per core model (Vatistas, Kozel & Mih 1991; Lamb-Oseen constant
-    1.25643 from Devenport et al. 1996). The segment is 2e4 core radii long,
+    F per core model (Vatistas, Kozel & Mih 1991; Lamb-Oseen constant alpha, the root
+    of 1 + 2 alpha = e^alpha, 1.25643 in Devenport et al. 1996). The segment is 2e4 core radii long,
     so the finite-length correction is below 1e-8.
     """
     rc, gam, half = 0.1, 1.3, 1000.0
@@ -177,7 +177,7 @@ def test_core_profile_of_a_long_segment(core):
     factor = {
         "singular": np.ones_like(h),
         "rankine": np.minimum(h**2 / rc**2, 1.0),
-        "lamb-oseen": 1 - np.exp(-1.25643 * h**2 / rc**2),
+        "lamb-oseen": 1 - np.exp(-exact.LAMB_OSEEN_ALPHA * h**2 / rc**2),
         "scully": h**2 / (rc**2 + h**2),
         "vatistas2": h**2 / np.sqrt(rc**4 + h**4),
     }[core]
@@ -225,10 +225,11 @@ def test_lamb_oseen_core_series_branch_is_continuous():
     """The Taylor branch near the core centre joins the closed form smoothly."""
     rc = 1.0
     f = wakes.Filaments.from_polyline([[0, 0, -1e3], [0, 0, 1e3]], 1.0, rc, core="lamb-oseen")
-    # x = 1.25643 h^2/rc^2 crosses 0.25 at h = 0.44608
+    # x = alpha h^2/rc^2 (alpha = 1.2564312, the root of 1 + 2 alpha = e^alpha) crosses 0.25
+    # at h = 0.44608
     h = np.array([0.446, 0.44608, 0.44616])
     u, g = wakes.induce(f, np.column_stack([h, 0 * h, 0 * h]), gradient=True)
-    ref = (1 - np.exp(-1.25643 * h**2)) / (2 * np.pi * h)
+    ref = (1 - np.exp(-exact.LAMB_OSEEN_ALPHA * h**2)) / (2 * np.pi * h)
     assert np.allclose(u[:, 1], ref, rtol=1e-12)
 
 
