@@ -46,8 +46,8 @@ Bounds (codes in brackets):
   under 1 %).
 * ``wake-too-short`` -- a rotor's or wing's wake cut so close behind it
   that the inflow it induces is estimated more than 20 % low
-  (:func:`wake_deficit`; our criterion: about 10 % of a hovering rotor's
-  induced power, see there).
+  (:func:`wake_deficit`; our criterion: there a hovering rotor's induced
+  power is about 6 % low, see there).
 
 :func:`check_run` runs them all; :func:`case_polar_limits` gives the
 polars' ranges of a case.
@@ -260,11 +260,13 @@ def wake_deficit(length: float, radius: float) -> float:
     on its axis at the disc w/2; cut at distance L it induces
     w/2 L/sqrt(L^2 + R^2) (Biot--Savart on the cylinder's rings), so the
     missing fraction is 1 - L/sqrt(L^2 + R^2). In hover the wake moves
-    with the flow it induces, and a missing fraction d lowers the induced
-    power by about 1 - sqrt(1 - d) (measured on the lift-rotor template, a
-    2-bladed 0.8 m rotor at C_T 0.0036: wakes cut 3, 6, 8 and 10
-    revolutions old, estimated d 0.49, 0.20, 0.12 and 0.08, gave kappa
-    0.88, 1.02, 1.05 and 1.07).
+    with the flow it induces, so a shorter wake also moves slower and packs
+    its vorticity closer, which makes up for part of d. Measured on the
+    lift-rotor template (``wakes new rotor``: 2 blades, R = 0.8 m,
+    C_T 0.0036, 0.03 m cores, each run 8 revolutions longer than its wake):
+    wakes cut 3, 6, 8 and 10 revolutions old, with d estimated by
+    :func:`rotor_wake_length` 0.46, 0.20, 0.12 and 0.08, gave kappa 0.90,
+    1.02, 1.05 and 1.07.
 
     Examples
     --------
@@ -363,16 +365,22 @@ def check_propeller_efficiency(summary: dict, case) -> list[Flag]:
 
 
 def _stations(rows: pd.DataFrame) -> str:
-    """Where the rows lie along their surface, e.g. ``r/R 0.15-0.29 (blades 1, 2)``."""
-    if "r_over_R" in rows:
+    """Where the rows lie along their surface, e.g. ``r/R 0.15-0.29 (blades 1, 2)``.
+
+    Columns a body does not fill (NaN in a mixed case's table) are ignored.
+    """
+    def has(c):
+        return c in rows and rows[c].notna().any()
+
+    if has("r_over_R"):
         where = f"r/R {rows['r_over_R'].min():.2f}-{rows['r_over_R'].max():.2f}"
-        if "blade" in rows:
-            blades = ", ".join(str(int(b)) for b in sorted(rows["blade"].unique()))
-            where += f" (blade{'s' if rows['blade'].nunique() > 1 else ''} {blades})"
+        if has("blade"):
+            blades = sorted(int(b) for b in rows["blade"].dropna().unique())
+            where += f" (blade{'s' if len(blades) > 1 else ''} {', '.join(map(str, blades))})"
         return where
-    if "eta" in rows:
+    if has("eta"):
         return f"eta {rows['eta'].min():.2f}-{rows['eta'].max():.2f}"
-    return f"strips {', '.join(str(int(s)) for s in sorted(rows['strip'].unique()))}"
+    return f"strips {', '.join(str(int(s)) for s in sorted(rows['strip'].dropna().unique()))}"
 
 
 def check_sections(sections: pd.DataFrame, polars: Mapping, time_s: float) -> list[Flag]:
