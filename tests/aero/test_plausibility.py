@@ -176,6 +176,35 @@ def test_a_polar_with_a_mach_method_counts_as_mach_dependent():
     assert P.polar_limits(polar).mach_dependent
 
 
+def test_mach_dependence_needs_a_speed_of_sound_on_the_section_polars(tmp_path):
+    """Without a speed of sound every strip is evaluated at M = 0, whatever the polar can do."""
+    class MachTable(TablePolar):
+        def evaluate_mach(self, alpha, mach):
+            return self.evaluate(alpha)
+
+    polar = MachTable(TABLE.alpha, TABLE.cl, TABLE.cd, name="by-mach.csv")
+    assert not P.polar_limits(SectionPolars.uniform(polar, 4)).mach_dependent
+    with_sound = P.polar_limits(SectionPolars.uniform(polar, 4, speed_of_sound=300.0))
+    assert with_sound.mach_dependent and with_sound.speed_of_sound == 300.0
+    rpm = 0.75 * 300.0 * 60.0 / (2.0 * math.pi)      # tip Mach 0.75 at 300 m/s, 0.66 at ISA's 340
+    case = _rotor_case(tmp_path, rpm=rpm)
+    assert P.check_tip_mach(case, {"rotor": with_sound}) == []
+    unaware = P.polar_limits(SectionPolars.uniform(ThinAirfoilPolar(), 4, speed_of_sound=300.0))
+    flags = P.check_tip_mach(case, {"rotor": unaware})
+    assert _codes(flags) == ["tip-mach-high"] and flags[0].value == pytest.approx(0.75)
+
+
+def test_body_polar_limits_come_from_the_run_s_body_models(tmp_path):
+    from wakes.aero.bodies import BODY_MODELS
+
+    case = _rotor_case(tmp_path)
+    wing = _wing_case(tmp_path)
+    bodies = [BODY_MODELS[s.type](s, c) for c in (case, wing) for s in c.bodies]
+    limits = P.body_polar_limits(bodies)
+    assert set(limits) == {"rotor", "wing"}
+    assert not limits["rotor"].stall and limits["wing"].alpha_range_deg is None
+
+
 def test_section_angles_outside_the_table_are_flagged_with_stations_and_time():
     limits = {"rotor": P.polar_limits(TABLE)}
     sections = _rotor_sections([5.0, 24.0, 8.0, -12.0], [0.6, 1.0, 0.9, -0.8])
