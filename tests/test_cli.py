@@ -59,6 +59,14 @@ BAD = {
     "polar columns": (TINY + '[bodies.wing.airfoil]\npolar = "p.csv"\n', r"p.csv'?: missing column\(s\) cd"),
     "polar angles": (TINY + '[bodies.wing.airfoil]\npolar = "q.csv"\n', r"q.csv.*increase strictly"),
     "polar range": (TINY + '[bodies.wing.airfoil]\npolar = "r.csv"\n', r"'r.csv' covers -1 to 1 deg.*step 0"),
+    "huge span": (TINY.replace("span = 4.0", "span = 1e300"),
+                  r"bodies.wing.span must be at most 10000 \[m\]; got 1e\+300 \(accepted: between 0.0001 and 10000\)"),
+    "wing in rotor": (TINY + '[bodies.rotor]\ntype = "rotor"\nblades = 2\nradius = 0.5\nroot_cutout = 0.1\n'
+                      'chord = 0.05\nrpm = 1000.0\nkind = "propeller"\naxis = [-1.0, 0.0, 0.0]\n'
+                      'hub = [0.0, 1.0, 0.0]\n',
+                      r"bodies.wing and bodies.rotor overlap near"),
+    "wing through ground": (TINY + "[ground]\npoint = [0.0, 0.0, 0.0]\nnormal = [0.0, 0.3, 1.0]\n",
+                            r"bodies.wing reaches through the ground plane"),
 }
 
 
@@ -77,6 +85,16 @@ def test_user_errors_exit_2_with_one_line_and_write_nothing(name, tmp_path, caps
     assert "case.toml" in err or ".csv" in err
     assert re.search(message, err), err
     assert not out.exists()
+
+
+def test_check_refuses_what_run_would_refuse(tmp_path, capsys):
+    """A case that passes 'wakes check' must not fail 'wakes run' on its input: span = 1e300
+    used to pass check and overflow in the lattice."""
+    case = tmp_path / "case.toml"
+    case.write_text(TINY.replace("span = 4.0", "span = 1e300"))
+    assert main(["check", str(case)]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "bodies.wing.span must be at most 10000" in err, err
 
 
 def test_console_script_has_no_traceback(tmp_path):

@@ -15,7 +15,8 @@ message (exit 2, nothing written). Anything else fails the test.
 Profiles: by default a short one that runs in CI (the runs use the kernels
 of the base cases only, so a cold numba cache compiles one set);
 ``WAKES_FUZZ_LONG=1`` runs the long profile of ``LONG_EXAMPLES`` cases, in
-which every valid case runs, whatever kernels it needs. Examples are drawn
+which every valid case runs, whatever kernels it needs;
+``WAKES_FUZZ_EXAMPLES=N`` sets another number of cases for either. Examples are drawn
 deterministically (``derandomize``), so every machine tries the same cases.
 """
 
@@ -45,7 +46,8 @@ CASES = ROOT / "cases"      # relative polar paths of the base cases are read fr
 
 LONG = os.environ.get("WAKES_FUZZ_LONG", "") not in ("", "0")
 LONG_EXAMPLES = 10_000
-SHORT_EXAMPLES = 120
+SHORT_EXAMPLES = 300
+EXAMPLES = int(os.environ.get("WAKES_FUZZ_EXAMPLES", LONG_EXAMPLES if LONG else SHORT_EXAMPLES))
 RUN_STEPS = 3               # steps of a fuzzed run: enough to shed, move and roll up a wake
 MAX_MEMORY = "200M"         # memory budget of a fuzzed run: larger cases are refused (exit 4)
 
@@ -245,7 +247,7 @@ def mutation(draw, data: dict):
         value = draw(value_for(f))
         _set(data, path, value)
         return f"{'.'.join(path)} = {value!r}"
-    if what == "extremes":      # every number of one section or body at a bound of its range at once
+    if what == "extremes":      # every number of one section or body at a bound or inside its range
         tables = sorted({p[:-1] for p, f in SLOTS if p[0] != "bodies"} - {()})
         tables += [("bodies", n) for n in sorted(bodies)]
         table = draw(st.sampled_from(tables))
@@ -257,7 +259,9 @@ def mutation(draw, data: dict):
                 ends = [b for b in (m.get("minimum"), m.get("maximum")) if b is not None]
                 if m.get("above") is not None and m.get("minimum") is None:
                     ends.append(m["above"] + (1 if m.get("kind") == "int" else 1e-6))
-                pick = draw(st.sampled_from(ends + ["keep"]))
+                pick = draw(st.sampled_from(ends + ["keep", "inside"]))
+                if pick == "inside":
+                    pick = draw(_number_near_range(m, m.get("kind") == "int"))
                 if pick != "keep":
                     value = [pick] * 3 if m.get("kind") == "vec3" else pick
                     _set(data, table + path[-1:], int(value) if m.get("kind") == "int" else value)
@@ -326,7 +330,7 @@ def mutation(draw, data: dict):
 def fuzzed_cases(draw):
     base = draw(st.sampled_from(sorted(BASES)))
     data = copy.deepcopy(BASES[base])
-    done = [draw(mutation(data)) for _ in range(draw(st.integers(1, 3)))]
+    done = [draw(mutation(data)) for _ in range(draw(st.integers(1, 4)))]
     return base, data, done
 
 
@@ -452,7 +456,7 @@ def _main(argv) -> tuple[int, str]:
     return status, err.getvalue()
 
 
-@settings(max_examples=LONG_EXAMPLES if LONG else SHORT_EXAMPLES, deadline=None, derandomize=True,
+@settings(max_examples=EXAMPLES, deadline=None, derandomize=True,
           database=None, suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large,
                                                 HealthCheck.filter_too_much])
 @given(fuzzed_cases())

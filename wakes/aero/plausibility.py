@@ -46,15 +46,17 @@ Bounds (codes in brackets):
   under 1 %).
 * ``wake-too-short`` -- a rotor's or wing's wake cut so close behind it
   that the inflow it induces is estimated more than 20 % low
-  (:func:`wake_deficit`; our criterion: about 10 % of a hovering rotor's
-  induced power, see there).
+  (:func:`wake_deficit`; our criterion: there a hovering rotor's induced
+  power is about 6 % low, see there).
 
-:func:`check_run` runs them all; :func:`case_polar_limits` gives the
-polars' ranges of a case.
+:func:`check_run` runs them all; :func:`body_polar_limits` (from a run's
+body models) or :func:`case_polar_limits` (from the case) give the polars'
+ranges.
 """
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections.abc import Mapping
 from dataclasses import dataclass
@@ -141,7 +143,10 @@ class PolarLimits:
         Whether the polar's lift stops rising somewhere (False: thin-airfoil
         lift that rises for ever).
     mach_dependent : bool
-        Whether the polar changes with the Mach number.
+        Whether the polar changes with the Mach number in the run.
+    speed_of_sound : float or None
+        The speed of sound the sections' Mach numbers were taken with [m/s],
+        if known.
     """
 
     name: str
@@ -149,6 +154,7 @@ class PolarLimits:
     cl_range: tuple[float, float] | None
     stall: bool
     mach_dependent: bool
+    speed_of_sound: float | None = None
 
 
 def polar_limits(polar) -> PolarLimits | None:
@@ -156,11 +162,13 @@ def polar_limits(polar) -> PolarLimits | None:
 
     Parameters
     ----------
-    polar : ThinAirfoilPolar, TablePolar or SectionPolars
+    polar : a polar or SectionPolars
         A table is recognised by its ``alpha_range`` [rad] and ``cl``
         arrays, thin-airfoil theory by its ``lift_slope``, Mach dependence
         by an ``evaluate_mach`` method. Several distinct polars of one
-        surface give the widest angle and c_l ranges of them.
+        surface give the widest angle and c_l ranges of them. A
+        SectionPolars without a ``speed_of_sound`` evaluates every strip at
+        M = 0, so its polars count as Mach-independent.
 
     Examples
     --------
@@ -173,17 +181,20 @@ def polar_limits(polar) -> PolarLimits | None:
         parts = [polar_limits(p) for p in inner]
         if not parts or any(p is None for p in parts):
             return None
-        if len(parts) == 1:
-            return parts[0]
         ranges = [p.alpha_range_deg for p in parts]
         cls = [p.cl_range for p in parts]
-        return PolarLimits(
+        merged = parts[0] if len(parts) == 1 else PolarLimits(
             name=", ".join(p.name for p in parts),
             alpha_range_deg=(None if any(r is None for r in ranges)
                              else (min(r[0] for r in ranges), max(r[1] for r in ranges))),
             cl_range=None if any(c is None for c in cls) else (min(c[0] for c in cls),
                                                               max(c[1] for c in cls)),
             stall=all(p.stall for p in parts), mach_dependent=all(p.mach_dependent for p in parts))
+        if hasattr(polar, "speed_of_sound"):
+            sos = polar.speed_of_sound
+            merged = dataclasses.replace(merged, speed_of_sound=sos,
+                                         mach_dependent=merged.mach_dependent and sos is not None)
+        return merged
     mach = callable(getattr(polar, "evaluate_mach", None))
     name = str(getattr(polar, "name", type(polar).__name__))
     if hasattr(polar, "alpha_range") and hasattr(polar, "cl"):
@@ -199,15 +210,34 @@ def polar_limits(polar) -> PolarLimits | None:
 def case_polar_limits(case) -> dict:
     """``{body name: PolarLimits}`` of every body of ``case`` with an airfoil.
 
-    Reads the polar tables the case names (as a run does).
+    Reads the polar tables the case names (as a run does). A Mach-dependent
+    polar counts as such only if the case gives a speed of sound
+    (``[fluid] speed_of_sound``); without one its strips are at M = 0.
     """
+    sos = getattr(case.fluid, "speed_of_sound", None)
     out = {}
     for spec in case.bodies:
         airfoil = getattr(spec, "airfoil", None)
         if airfoil is not None:
             limits = polar_limits(make_polar(airfoil))
             if limits is not None:
-                out[spec.name] = limits
+                out[spec.name] = dataclasses.replace(limits, speed_of_sound=sos,
+                                                     mach_dependent=limits.mach_dependent and sos is not None)
+    return out
+
+
+def body_polar_limits(bodies) -> dict:
+    """``{body name: PolarLimits}`` of a run's body models (:data:`wakes.aero.bodies.BODY_MODELS`
+    instances), from the section polars their surfaces use -- with the speed of sound, if any."""
+    out = {}
+    for body in bodies:
+        polars = getattr(body, "polars", None)
+        if polars is None:
+            surfaces = body.surfaces(0.0)
+            polars = getattr(surfaces[0], "polars", None) if surfaces else None
+        limits = polar_limits(polars) if polars is not None else None
+        if limits is not None:
+            out[body.name] = limits
     return out
 
 
@@ -260,11 +290,13 @@ def wake_deficit(length: float, radius: float) -> float:
     on its axis at the disc w/2; cut at distance L it induces
     w/2 L/sqrt(L^2 + R^2) (Biot--Savart on the cylinder's rings), so the
     missing fraction is 1 - L/sqrt(L^2 + R^2). In hover the wake moves
-    with the flow it induces, and a missing fraction d lowers the induced
-    power by about 1 - sqrt(1 - d) (measured on the lift-rotor template, a
-    2-bladed 0.8 m rotor at C_T 0.0036: wakes cut 3, 6, 8 and 10
-    revolutions old, estimated d 0.49, 0.20, 0.12 and 0.08, gave kappa
-    0.88, 1.02, 1.05 and 1.07).
+    with the flow it induces, so a shorter wake also moves slower and packs
+    its vorticity closer, which makes up for part of d. Measured on the
+    lift-rotor template (``wakes new rotor``: 2 blades, R = 0.8 m,
+    C_T 0.0036, 0.03 m cores, each run 8 revolutions longer than its wake):
+    wakes cut 3, 6, 8 and 10 revolutions old, with d estimated by
+    :func:`rotor_wake_length` 0.46, 0.20, 0.12 and 0.08, gave kappa 0.90,
+    1.02, 1.05 and 1.07.
 
     Examples
     --------
@@ -363,16 +395,22 @@ def check_propeller_efficiency(summary: dict, case) -> list[Flag]:
 
 
 def _stations(rows: pd.DataFrame) -> str:
-    """Where the rows lie along their surface, e.g. ``r/R 0.15-0.29 (blades 1, 2)``."""
-    if "r_over_R" in rows:
+    """Where the rows lie along their surface, e.g. ``r/R 0.15-0.29 (blades 1, 2)``.
+
+    Columns a body does not fill (NaN in a mixed case's table) are ignored.
+    """
+    def has(c):
+        return c in rows and rows[c].notna().any()
+
+    if has("r_over_R"):
         where = f"r/R {rows['r_over_R'].min():.2f}-{rows['r_over_R'].max():.2f}"
-        if "blade" in rows:
-            blades = ", ".join(str(int(b)) for b in sorted(rows["blade"].unique()))
-            where += f" (blade{'s' if rows['blade'].nunique() > 1 else ''} {blades})"
+        if has("blade"):
+            blades = sorted(int(b) for b in rows["blade"].dropna().unique())
+            where += f" (blade{'s' if len(blades) > 1 else ''} {', '.join(map(str, blades))})"
         return where
-    if "eta" in rows:
+    if has("eta"):
         return f"eta {rows['eta'].min():.2f}-{rows['eta'].max():.2f}"
-    return f"strips {', '.join(str(int(s)) for s in sorted(rows['strip'].unique()))}"
+    return f"strips {', '.join(str(int(s)) for s in sorted(rows['strip'].dropna().unique()))}"
 
 
 def check_sections(sections: pd.DataFrame, polars: Mapping, time_s: float) -> list[Flag]:
@@ -450,18 +488,20 @@ def tip_mach(spec, case, speed_of_sound: float = ISA_SPEED_OF_SOUND) -> float:
 def check_tip_mach(case, polars: Mapping, speed_of_sound: float = ISA_SPEED_OF_SOUND) -> list[Flag]:
     """A rotor's tip Mach number above 0.7 with a polar that has no Mach dependence.
 
-    ``speed_of_sound`` [m/s] defaults to ISA sea level; bodies missing from
-    ``polars`` are taken as Mach-independent.
+    The speed of sound is the polars' (:attr:`PolarLimits.speed_of_sound`)
+    or else ``speed_of_sound`` [m/s], ISA sea level by default; bodies
+    missing from ``polars`` are taken as Mach-independent.
     """
     out = []
     for spec in _rotor_specs(case):
         limits = polars.get(spec.name)
         if limits is not None and limits.mach_dependent:
             continue
-        m = tip_mach(spec, case, speed_of_sound)
+        sos = limits.speed_of_sound if limits is not None and limits.speed_of_sound else speed_of_sound
+        m = tip_mach(spec, case, sos)
         if m > TIP_MACH_MAX:
             out.append(Flag("tip-mach-high",
-                            f"{spec.name}: blade tips reach Mach {m:.3g} (speed of sound {speed_of_sound:g} "
+                            f"{spec.name}: blade tips reach Mach {m:.3g} (speed of sound {sos:g} "
                             f"m/s) with a polar without Mach dependence; above {TIP_MACH_MAX:g} the section "
                             "loads change with compressibility", m, TIP_MACH_MAX, MACH_SOURCE))
     return out
@@ -631,7 +671,9 @@ def check_run(summary: dict, loads: pd.DataFrame, sections: pd.DataFrame, case,
     case : wakes.case.Case
         The case that was run.
     polars : mapping of str to PolarLimits, optional
-        Each body's polar ranges; by default :func:`case_polar_limits`.
+        Each body's polar ranges: :func:`body_polar_limits` of the run's
+        bodies where they are at hand; by default :func:`case_polar_limits`
+        (the polar files read again, Mach numbers taken as unknown).
     speed_of_sound : float
         [m/s], for the tip Mach number; ISA sea level by default.
 
