@@ -128,14 +128,16 @@ def test_the_walk_reaches_every_key_of_every_section_and_body_type():
 
 NAN, INF = float("nan"), float("inf")
 SPECIAL_NUMBERS = [NAN, INF, -INF, 0, 0.0, -0.0, -1, -1.0, 1, 5e-324, 1e-300, -1e-300, 1e-12, 1e300,
-                   -1e300, 1.7976931348623157e308, 10 ** 30, -(10 ** 30), 2 ** 63, 2 ** 64 + 1]
+                   -1e300, 1.7976931348623157e308, 10 ** 30, -(10 ** 30), 2 ** 63, 2 ** 64 + 1,
+                   10 ** 5000, -(10 ** 5000)]      # more digits than Python turns into text
 SCALARS = st.one_of(st.booleans(), st.integers(-(2 ** 70), 2 ** 70),
                     st.floats(allow_nan=True, allow_infinity=True), st.text(max_size=6),
                     st.sampled_from(SPECIAL_NUMBERS))
 TOML_ONLY = st.one_of(st.datetimes(timezones=st.none() | st.just(datetime.UTC)), st.dates(), st.times())
 KEY_NAMES = st.text("abcdefghijklmnopqrstuvwxyz_-", min_size=1, max_size=8)
 ANY = st.one_of(SCALARS, TOML_ONLY, st.just(""), st.lists(SCALARS, max_size=4),
-                st.dictionaries(KEY_NAMES, SCALARS, max_size=3))
+                st.dictionaries(KEY_NAMES, SCALARS, max_size=3),
+                st.dictionaries(st.integers(0, 3), SCALARS, min_size=1, max_size=2))   # not TOML: the API only
 PATHS = ["", " ", "nope.csv", "validation/polars/turbine-section.csv", "polars/survey-glider-section.csv",
          "validation", "validation/polars", "/", "/nonexistent/p.csv", "../README.md", "a" * 300,
          "x\x00y", "drone-lift-rotor.toml", "validation/../polars/survey-glider-section.csv",

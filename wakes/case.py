@@ -31,6 +31,7 @@ import difflib
 import math
 import re
 import stat
+import sys
 import tomllib
 from dataclasses import dataclass, field, fields
 from pathlib import Path
@@ -583,7 +584,7 @@ def _number(value, where, ctx, meta, integer=False):
             return value
         ctx.fail(f"{where} must be finite{_range_text(meta)}; got {value!r}")
     if integer and abs(value) > 2 ** 62:
-        ctx.fail(f"{where} must be an integer{_range_text(meta)}; got {value!r}")
+        ctx.fail(f"{where} must be an integer{_range_text(meta)}; got {_short(value)}")
     _check_range(value, where, ctx, meta)
     return int(value) if integer else float(value)
 
@@ -602,7 +603,7 @@ def _check_range(value, where, ctx, meta):
         return
     words = _range_words(meta)
     full = f" (accepted: {words})" if words != broken else ""
-    ctx.fail(f"{where} must be {broken}{_unit_text(meta)}; got {value!r}{full}")
+    ctx.fail(f"{where} must be {broken}{_unit_text(meta)}; got {_short(value)}{full}")
 
 
 def _range_words(meta) -> str:
@@ -634,10 +635,10 @@ def _distribution(value, where, ctx, meta) -> Distribution:
         return d
     if not isinstance(value, dict):
         ctx.fail(f"{where} must be a number or a table such as {{law = \"linear\", root = 1.0, "
-                 f"tip = 0.5}}; got {value!r}")
+                 f"tip = 0.5}}; got {_short(value)}")
     law = value.get("law")
     if law not in DISTRIBUTION_LAWS:
-        ctx.fail(f"{where}.law must be one of {', '.join(map(repr, DISTRIBUTION_LAWS))}; got {law!r}")
+        ctx.fail(f"{where}.law must be one of {', '.join(map(repr, DISTRIBUTION_LAWS))}; got {_short(law)}")
     accepted = {"constant": ("value",), "linear": ("root", "tip"), "elliptic": ("root",),
                 "table": ("eta", "values")}[law]
     _reject_unknown(value, ("law",) + accepted, where, ctx)
@@ -666,11 +667,16 @@ def _short(value, limit: int = 80) -> str:
         text = repr(value)
     except RecursionError:
         text = f"a {type(value).__name__} nested too deeply"
+    except ValueError:         # an integer of more digits than Python converts to text
+        digits = f"an integer of more than {sys.get_int_max_str_digits():,} digits"
+        text = digits if isinstance(value, int) else f"a {type(value).__name__} holding {digits}"
     return text if len(text) <= limit else text[:limit - 3] + "..."
 
 
 def _reject_unknown(table: dict, accepted, where: str, ctx) -> None:
     for k in table:
+        if not isinstance(k, str):
+            ctx.fail(f"{where or 'the case'}: keys must be names (text); got {_short(k)}")
         if k not in accepted:
             close = difflib.get_close_matches(k, accepted, n=1, cutoff=0.6)
             hint = f"did you mean '{close[0]}'? " if close else ""
@@ -739,7 +745,7 @@ def _public_fields(cls):
 
 def _parse_section(cls, table, where: str, ctx, extra=None):
     if not isinstance(table, dict):
-        ctx.fail(f"[{where}] must be a table of keys; got {table!r}")
+        ctx.fail(f"[{where}] must be a table of keys; got {_short(table)}")
     fl = _public_fields(cls)
     _reject_unknown(table, [f.name for f in fl], where, ctx)
     kwargs = dict(extra or {})
@@ -764,13 +770,13 @@ def _parse_bodies(table, ctx) -> tuple:
             ctx.fail(f"body name {_short(name)} may hold only letters, digits, '-' and '_' "
                      "(1 to 64 of them)")
         if not isinstance(body, dict):
-            ctx.fail(f"[{where}] must be a table; got {body!r}")
+            ctx.fail(f"[{where}] must be a table; got {_short(body)}")
         btype = body.get("type")
         if not isinstance(btype, str) or btype not in BODY_TYPES:
-            close = difflib.get_close_matches(str(btype), BODY_TYPES, n=1, cutoff=0.6)
+            close = difflib.get_close_matches(btype, BODY_TYPES, n=1, cutoff=0.6) if isinstance(btype, str) else []
             hint = f" (did you mean {close[0]!r}?)" if close else ""
             ctx.fail(f"{where}.type must be one of {', '.join(map(repr, BODY_TYPES))}; "
-                     f"got {btype!r}{hint}")
+                     f"got {_short(btype)}{hint}")
         out.append(_parse_section(BODY_TYPES[btype], body, where, ctx, extra={"name": name}))
     return tuple(out)
 
@@ -922,6 +928,8 @@ def read_toml(path) -> dict:
         raise CaseError(f"{p}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
     except RecursionError:
         raise CaseError(f"{p}: arrays or tables nested too deeply to read") from None
+    except ValueError as exc:    # e.g. an integer of more digits than Python reads
+        raise CaseError(f"{p}: invalid TOML: {exc}") from None
 
 
 def _reason(exc: BaseException) -> str:
