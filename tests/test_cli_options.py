@@ -77,6 +77,8 @@ def place(tmp_path, finished) -> Path:
     (tmp_path / "afile").write_text("not a folder\n")
     (tmp_path / "empty").mkdir()
     (tmp_path / "points.csv").write_text("x_m,y_m,z_m\n2.0,0.0,0.0\n")
+    (tmp_path / "bigint.toml").write_text("[freestream]\nspeed = " + "9" * 5000 + "\n")
+    (tmp_path / "deep.toml").write_text("x = " + "[" * 5000 + "]" * 5000 + "\n")
     shutil.copytree(finished, tmp_path / "run")
     return tmp_path
 
@@ -89,6 +91,8 @@ BAD = [
     (["run", "{p}/afile/x.toml", "--out", "{p}/o"], r"case file '.*afile/x.toml' not found"),
     (["check", f"{{p}}/{LONG_NAME}.toml"], r"case file .*: cannot read it \(File name too long\)"),
     (["check", "{p}/afile"], r"afile: invalid TOML at line 1"),
+    (["check", "{p}/bigint.toml"], r"bigint.toml: invalid TOML: Exceeds the limit \(4300 digits\)"),
+    (["run", "{p}/deep.toml", "--out", "{p}/o"], r"deep.toml: arrays or tables nested too deeply to read"),
     # run: --out
     (["run", "{p}/tiny.toml", "--out", "{p}/afile"], r"--out .*afile: exists and is not a folder"),
     (["run", "{p}/tiny.toml", "--out", "{p}/afile/o"], r"--out .*afile/o: .*afile is a file, so nothing"),
@@ -125,8 +129,7 @@ BAD = [
     (["probe", "{p}/run", "--plane", "x=1", "--extent=-1:1,nan:2"], r"--extent -1:1,nan:2: each range"),
     (["probe", "{p}/run", "--plane", "x=1", "--extent=1:1,0:2"], r"--extent 1:1,0:2: the range 1:1 has zero size"),
     (["probe", "{p}/run", "--plane", "x=1", "--extent=a"], r"--extent 'a': accepted is A0:A1,B0:B1"),
-    (["probe", "{p}/run", "--plane", "x=1", "--grid", "1x5"],
-     r"--grid 1x5: accepted is at least 2 and at most 10,000 points"),
+    (["probe", "{p}/run", "--plane", "x=1", "--grid", "1x5"], r"--grid 1x5: accepted is at least 2 and at most 10,000"),
     (["probe", "{p}/run", "--plane", "x=1", "--grid", "99999x99999"], r"--grid 99999x99999: accepted"),
     (["probe", "{p}/run", "--plane", "x=1", "--grid", "ax3"], r"--grid 'ax3': accepted is NAxNB"),
     (["probe", "{p}/run", "--plane", "x=1", "--out", "{p}/afile/t.csv"], r"--out .*afile is a file"),

@@ -128,14 +128,16 @@ def test_the_walk_reaches_every_key_of_every_section_and_body_type():
 
 NAN, INF = float("nan"), float("inf")
 SPECIAL_NUMBERS = [NAN, INF, -INF, 0, 0.0, -0.0, -1, -1.0, 1, 5e-324, 1e-300, -1e-300, 1e-12, 1e300,
-                   -1e300, 1.7976931348623157e308, 10 ** 30, -(10 ** 30), 2 ** 63, 2 ** 64 + 1]
+                   -1e300, 1.7976931348623157e308, 10 ** 30, -(10 ** 30), 2 ** 63, 2 ** 64 + 1,
+                   10 ** 5000, -(10 ** 5000)]      # more digits than Python turns into text
 SCALARS = st.one_of(st.booleans(), st.integers(-(2 ** 70), 2 ** 70),
                     st.floats(allow_nan=True, allow_infinity=True), st.text(max_size=6),
                     st.sampled_from(SPECIAL_NUMBERS))
 TOML_ONLY = st.one_of(st.datetimes(timezones=st.none() | st.just(datetime.UTC)), st.dates(), st.times())
 KEY_NAMES = st.text("abcdefghijklmnopqrstuvwxyz_-", min_size=1, max_size=8)
 ANY = st.one_of(SCALARS, TOML_ONLY, st.just(""), st.lists(SCALARS, max_size=4),
-                st.dictionaries(KEY_NAMES, SCALARS, max_size=3))
+                st.dictionaries(KEY_NAMES, SCALARS, max_size=3),
+                st.dictionaries(st.integers(0, 3), SCALARS, min_size=1, max_size=2))   # not TOML: the API only
 PATHS = ["", " ", "nope.csv", "validation/polars/turbine-section.csv", "polars/survey-glider-section.csv",
          "validation", "validation/polars", "/", "/nonexistent/p.csv", "../README.md", "a" * 300,
          "x\x00y", "drone-lift-rotor.toml", "validation/../polars/survey-glider-section.csv",
@@ -229,6 +231,14 @@ def _place(body: dict):
     return key, (where if ok else [0.0, 0.0, 0.0])
 
 
+def _desc(value) -> str:
+    """``repr(value)`` for the record of a mutation, also for integers too long to print."""
+    try:
+        return repr(value)[:80]
+    except ValueError:
+        return f"a {type(value).__name__} with an integer too long to print"
+
+
 @st.composite
 def mutation(draw, data: dict):
     """Change ``data`` in place by one mutation; return its description."""
@@ -243,13 +253,13 @@ def mutation(draw, data: dict):
             path = ("bodies", name) + path[2:]
         if what == "delete":
             _set(data, path, None, delete=True)
-            return f"delete {'.'.join(path)}"
+            return f"delete {'.'.join(map(str, path))}"
         value = draw(value_for(f))
         _set(data, path, value)
-        return f"{'.'.join(path)} = {value!r}"
+        return f"{'.'.join(map(str, path))} = {_desc(value)}"
     if what == "extremes":      # every number of one section or body at a bound or inside its range
         tables = sorted({p[:-1] for p, f in SLOTS if p[0] != "bodies"} - {()})
-        tables += [("bodies", n) for n in sorted(bodies)]
+        tables += [("bodies", n) for n in sorted(bodies, key=str)]
         table = draw(st.sampled_from(tables))
         kind = bodies[table[1]].get("type") if table[0] == "bodies" and isinstance(bodies[table[1]], dict) else None
         schema = table if table[0] != "bodies" else ("bodies", kind)
@@ -265,14 +275,14 @@ def mutation(draw, data: dict):
                 if pick != "keep":
                     value = [pick] * 3 if m.get("kind") == "vec3" else pick
                     _set(data, table + path[-1:], int(value) if m.get("kind") == "int" else value)
-        return f"extremes of {'.'.join(table)}"
+        return f"extremes of {'.'.join(map(str, table))}"
     if what == "unknown key":
         sections = ["fluid", "freestream", "time", "solver", "wake", "output", "ground", "cluster"]
         where = draw(st.sampled_from(sections + [f"bodies.{n}" for n in bodies] + [""]))
         name = draw(KEY_NAMES)
         path = tuple(where.split(".")) + (name,) if where else (name,)
         _set(data, path, draw(ANY))
-        return f"{'.'.join(path)} = ..."
+        return f"{'.'.join(map(str, path))} = ..."
     if what == "unknown section":
         name = draw(st.sampled_from(["flui", "wakes", "body", "extra", "bodies2"]))
         data[name] = draw(st.one_of(st.just({}), ANY))
@@ -286,7 +296,7 @@ def mutation(draw, data: dict):
         if how == "empty" or not bodies:
             data["bodies"] = draw(st.sampled_from([{}, [], {"x": {}}, {"x": 1}]))
             return "bodies emptied"
-        name = draw(st.sampled_from(sorted(bodies)))
+        name = draw(st.sampled_from(sorted(bodies, key=str)))
         if how == "copy":
             twin = copy.deepcopy(bodies[name])
             if isinstance(twin, dict):
@@ -294,7 +304,7 @@ def mutation(draw, data: dict):
                 shift = draw(st.sampled_from([0.0, 1e-9, 0.01, 0.3, 2.0, 50.0]))
                 axis = draw(st.integers(0, 2))
                 twin[key] = [x + (shift if i == axis else 0.0) for i, x in enumerate(where)]
-            bodies[name + "-2"] = twin
+            bodies[f"{name}-2"] = twin
             return f"copy of {name} moved {shift} along {axis}" if isinstance(twin, dict) else "copy"
         if how == "rename":
             new = draw(st.sampled_from(["", "a b", "x.y", "wing\n", "é", "n" * 70, "ok_name-2"]))
@@ -306,8 +316,8 @@ def mutation(draw, data: dict):
     if what == "collide":
         if len(bodies) < 1:
             return "nothing to collide"
-        a = draw(st.sampled_from(sorted(bodies)))
-        b = draw(st.sampled_from(sorted(bodies)))
+        a = draw(st.sampled_from(sorted(bodies, key=str)))
+        b = draw(st.sampled_from(sorted(bodies, key=str)))
         if not (isinstance(bodies[a], dict) and isinstance(bodies[b], dict)):
             return "nothing to collide"
         key, _ = _place(bodies[a])

@@ -15,6 +15,7 @@ import difflib
 import math
 import re
 import stat
+import sys
 import tomllib
 from dataclasses import field, fields
 from pathlib import Path
@@ -95,6 +96,8 @@ def read_toml(path) -> dict:
         raise CaseError(f"{p}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
     except RecursionError:
         raise CaseError(f"{p}: arrays or tables nested too deeply to read") from None
+    except ValueError as exc:    # e.g. an integer of more digits than Python reads
+        raise CaseError(f"{p}: invalid TOML: {exc}") from None
 
 
 def reason(exc: BaseException) -> str:
@@ -126,7 +129,7 @@ def number(value, where, ctx, meta, integer=False):
             return value
         ctx.fail(f"{where} must be finite{range_text(meta)}; got {value!r}")
     if integer and abs(value) > 2 ** 62:
-        ctx.fail(f"{where} must be an integer{range_text(meta)}; got {value!r}")
+        ctx.fail(f"{where} must be an integer{range_text(meta)}; got {short(value)}")
     check_range(value, where, ctx, meta)
     return int(value) if integer else float(value)
 
@@ -145,7 +148,7 @@ def check_range(value, where, ctx, meta):
         return
     words = range_words(meta)
     full = f" (accepted: {words})" if words != broken else ""
-    ctx.fail(f"{where} must be {broken}{unit_text(meta)}; got {value!r}{full}")
+    ctx.fail(f"{where} must be {broken}{unit_text(meta)}; got {short(value)}{full}")
 
 
 def range_words(meta) -> str:
@@ -177,10 +180,10 @@ def _distribution(value, where, ctx, meta) -> Distribution:
         return d
     if not isinstance(value, dict):
         ctx.fail(f"{where} must be a number or a table such as {{law = \"linear\", root = 1.0, "
-                 f"tip = 0.5}}; got {value!r}")
+                 f"tip = 0.5}}; got {short(value)}")
     law = value.get("law")
     if law not in DISTRIBUTION_LAWS:
-        ctx.fail(f"{where}.law must be one of {', '.join(map(repr, DISTRIBUTION_LAWS))}; got {law!r}")
+        ctx.fail(f"{where}.law must be one of {', '.join(map(repr, DISTRIBUTION_LAWS))}; got {short(law)}")
     accepted = {"constant": ("value",), "linear": ("root", "tip"), "elliptic": ("root",),
                 "table": ("eta", "values")}[law]
     reject_unknown(value, ("law",) + accepted, where, ctx)
@@ -209,11 +212,16 @@ def short(value, limit: int = 80) -> str:
         text = repr(value)
     except RecursionError:
         text = f"a {type(value).__name__} nested too deeply"
+    except ValueError:         # an integer of more digits than Python converts to text
+        digits = f"an integer of more than {sys.get_int_max_str_digits():,} digits"
+        text = digits if isinstance(value, int) else f"a {type(value).__name__} holding {digits}"
     return text if len(text) <= limit else text[:limit - 3] + "..."
 
 
 def reject_unknown(table: dict, accepted, where: str, ctx) -> None:
     for k in table:
+        if not isinstance(k, str):
+            ctx.fail(f"{where or 'the case'}: keys must be names (text); got {short(k)}")
         if k not in accepted:
             close = difflib.get_close_matches(k, accepted, n=1, cutoff=0.6)
             hint = f"did you mean '{close[0]}'? " if close else ""
@@ -282,7 +290,7 @@ def public_fields(cls):
 
 def parse_section(cls, table, where: str, ctx, extra=None):
     if not isinstance(table, dict):
-        ctx.fail(f"[{where}] must be a table of keys; got {table!r}")
+        ctx.fail(f"[{where}] must be a table of keys; got {short(table)}")
     fl = public_fields(cls)
     reject_unknown(table, [f.name for f in fl], where, ctx)
     kwargs = dict(extra or {})

@@ -572,13 +572,13 @@ def _parse_bodies(table, ctx) -> tuple:
             ctx.fail(f"body name {short(name)} may hold only letters, digits, '-' and '_' "
                      "(1 to 64 of them)")
         if not isinstance(body, dict):
-            ctx.fail(f"[{where}] must be a table; got {body!r}")
+            ctx.fail(f"[{where}] must be a table; got {short(body)}")
         btype = body.get("type")
         if not isinstance(btype, str) or btype not in BODY_TYPES:
-            close = difflib.get_close_matches(str(btype), BODY_TYPES, n=1, cutoff=0.6)
+            close = difflib.get_close_matches(btype, BODY_TYPES, n=1, cutoff=0.6) if isinstance(btype, str) else []
             hint = f" (did you mean {close[0]!r}?)" if close else ""
             ctx.fail(f"{where}.type must be one of {', '.join(map(repr, BODY_TYPES))}; "
-                     f"got {btype!r}{hint}")
+                     f"got {short(btype)}{hint}")
         out.append(parse_section(BODY_TYPES[btype], body, where, ctx, extra={"name": name}))
     return tuple(out)
 
