@@ -55,7 +55,7 @@ from .io.checkpoint import prepare_resume
 from .plots import plot_run
 from .probe import parse_extent, parse_plane, probe_plane, probe_points
 from .progress import ProgressBar
-from .run import check_new_folder, result_table, run_guarded, write_run
+from .run import check_new_folder, result_table, run_guarded, warning_lines, write_run
 from .sweep import parse_vary, sweep
 from .templates import new_case
 from .verify import run_checks
@@ -201,6 +201,13 @@ def _run(args) -> int:
         print(f"{case.title}: {case.time.steps} steps of {case.time.dt:.4g} s in {wall:.1f} s")
         print(result_table(run.summary))
         print(f"results in {out}/")
+    lines = warning_lines(run.summary)
+    if lines and not args.quiet:
+        print("\n".join(lines))
+    elif lines:
+        n = len(run.summary["warnings"])
+        print(f"wakes: {n} plausibility warning{'s' if n != 1 else ''}; see {out}/summary.json",
+              file=sys.stderr)
     return 0
 
 

@@ -31,6 +31,7 @@ from __future__ import annotations
 import io
 import math
 import os
+import signal
 import threading
 from pathlib import Path
 
@@ -172,6 +173,11 @@ def run_guarded(case: Case, out, *, write, progress=None, max_memory: int | None
     run.stop_signal = control.stop_signal
     if run.status not in ("finished", "interrupted") and run.resume_state is not None:
         save(run.resume_state)
+    if run.status == "interrupted" and run.stop_signal is not None:
+        run.summary["reason"] = f"signal {signal.Signals(run.stop_signal).name}: {run.message}"
+    if run.resume_state is not None:   # a checkpoint of it is in out/checkpoints
+        run.summary["resume"] = {"possible": True, "from_step": run.resume_state.step,
+                                 "how": f"wakes run --resume {out}"}
     if len(run.loads):
         write(run, out)
     if run.status == "finished":
@@ -301,3 +307,25 @@ def result_table(summary: dict) -> str:
             rows.append((name, q, text, unit))
     widths = [max(len(r[i]) for r in rows) for i in range(4)]
     return "\n".join("  ".join(c.ljust(w) for c, w in zip(r, widths)).rstrip() for r in rows)
+
+
+def warning_lines(summary: dict) -> list[str]:
+    """The plausibility warnings of ``summary.json`` as printed at the end of ``wakes run``.
+
+    Examples
+    --------
+    >>> w = {"code": "wake-too-short", "message": "wing: wake 0.8 semi-spans long",
+    ...      "value": 0.3, "bound": 0.2, "source": "our criterion"}
+    >>> print("\\n".join(warning_lines({"warnings": [w]})))
+    1 plausibility warning:
+      ! wake-too-short: wing: wake 0.8 semi-spans long (bound 0.2; our criterion)
+    >>> warning_lines({"warnings": []})
+    []
+    """
+    warnings = summary.get("warnings") or []
+    if not warnings:
+        return []
+    lines = [f"{len(warnings)} plausibility warning{'s' if len(warnings) != 1 else ''}:"]
+    lines += [f"  ! {w['code']}: {w['message']} (bound {w['bound']:.4g}; {w['source']})"
+              for w in warnings]
+    return lines

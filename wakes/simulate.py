@@ -31,6 +31,7 @@ from .aero.ground import with_ground
 from .aero.influence_cache import RigidInfluenceCache
 from .aero.lifting_line import LinearCache, SolverSettings, solve_circulation
 from .aero.loads import strip_loads, trefftz_induced_drag
+from .aero.plausibility import body_polar_limits, check_run
 from .aero.vortex_lattice import surface_filaments
 from .aero.wake import WakeSettings
 from .budget import MemoryBudgetError
@@ -303,6 +304,8 @@ class TimeLoop:
         run.wake_step = steps - 1 if status == "finished" else good.step
         run.wake_time_s = t if wake_time is None else wake_time
         run.resume_state = good if status != "finished" else None
+        run.summary.update(run_status(run, steps_done))
+        run.summary["warnings"] = plausibility_warnings(run, bodies)
         return run
 
     def step(self, step: int, t: float) -> None:
@@ -371,6 +374,39 @@ def _progress_reporter(progress):
     except ValueError:   # no signature to inspect (some builtins): the documented three arguments
         pass
     return progress
+
+
+#: ``summary.json`` ``status`` of each :attr:`Run.status`.
+SUMMARY_STATUS = {"finished": "finished", "interrupted": "stopped", "memory": "over-budget",
+                  "unstable": "diverged", "failed": "failed"}
+
+
+def run_status(run: Run, steps_done: int) -> dict:
+    """The ``status``, ``reason``, ``last_step`` and ``resume`` entries of ``summary.json``.
+
+    ``status`` is "finished", "stopped" (a signal), "over-budget" (memory),
+    "diverged" (the watchdog) or "failed"; ``last_step`` the index of the last
+    step whose loads are in the tables (-1 when none); ``resume`` says whether
+    and from which step the run can go on. In memory no checkpoint exists yet,
+    so ``resume.possible`` is false here; :func:`wakes.run.run_guarded`, which
+    writes the checkpoint, sets it.
+    """
+    finished = run.status == "finished"
+    return {"status": SUMMARY_STATUS.get(run.status, "failed"),
+            "reason": "all steps done" if finished else run.message,
+            "last_step": steps_done - 1,
+            "resume": {"possible": False,
+                       "from_step": None if finished else run.resume_state.step,
+                       "how": None}}
+
+
+def plausibility_warnings(run: Run, bodies) -> list[dict]:
+    """``summary.json`` ``warnings``: :func:`wakes.aero.plausibility.check_run` on the run's tables
+    (empty when no loads were computed)."""
+    if not len(run.loads):
+        return []
+    flags = check_run(run.summary, run.loads, run.sections, run.case, body_polar_limits(bodies))
+    return [f.as_dict() for f in flags]
 
 
 def _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t, wake_time, started,
