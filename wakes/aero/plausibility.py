@@ -64,7 +64,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .polars import make_polar
+from .sections import make_polar
 
 KAPPA_MIN = 1.0
 FM_MAX = 0.85

@@ -31,8 +31,8 @@ from ..io.tables import read_numeric_table
 from .post_stall import ViternaCorrigan, cd_max_from_aspect_ratio, check_extendable, extend_to_180
 
 POLAR_COLUMNS = ("alpha_deg", "cl", "cd")
-OUT_OF_RANGE_MODES = ("error", "flat-plate")                # the modes the case schema offers today
-TABLE_OUT_OF_RANGE_MODES = OUT_OF_RANGE_MODES + ("viterna",)  # all a TablePolar accepts
+OUT_OF_RANGE_MODES = ("error", "flat-plate", "viterna")     # the modes the case schema offers
+TABLE_OUT_OF_RANGE_MODES = OUT_OF_RANGE_MODES                # all a TablePolar accepts
 _EXTEND_CHOICES = " or ".join(f'"{m}"' for m in OUT_OF_RANGE_MODES if m != "error")
 FLAT_PLATE_BLEND = np.radians(10.0)  # angle over which a table blends into flat-plate values
 
@@ -371,10 +371,14 @@ def _evaluate(polar, alpha, mach, with_mach_slope: bool):
     return cl, cd, dcl, np.zeros_like(cl)
 
 
-def make_polar(airfoil):
-    """The polar an airfoil spec asks for: a CSV table or thin-airfoil theory."""
-    if airfoil.polar is not None:
-        return load_polar_table(airfoil.polar, out_of_range=airfoil.out_of_range)
-    return ThinAirfoilPolar(lift_slope=airfoil.lift_slope,
-                            zero_lift_angle=np.radians(airfoil.zero_lift_angle),
-                            cd0=airfoil.cd0, cd2=airfoil.cd2)
+def has_mach_column(path) -> bool:
+    """Whether the header row of the CSV file ``path`` names a ``mach`` column (False if unreadable)."""
+    try:
+        with open(path, encoding="utf-8-sig") as fh:
+            for raw in fh:
+                line = raw.split("#", 1)[0].strip()
+                if line:
+                    return "mach" in [f.strip() for f in line.split(",")]
+    except (OSError, UnicodeDecodeError):
+        pass
+    return False

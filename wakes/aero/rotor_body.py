@@ -16,10 +16,11 @@ import dataclasses
 import numpy as np
 import pandas as pd
 
-from .polars import SectionPolars, make_polar
+from .polars import SectionPolars
 from .rotor import blade_turn_deg, is_axial_flow
 from .rotor_loads import KIND_COLUMNS, blade_forces, coefficients, last_revolution, radial_table
 from .rotor_wake import BladeSymmetry, RolledUpWake, StartupDrift, tip_vortex_table
+from .sections import make_polar
 from .wake import WakeSheet
 
 # Summary figures beyond the kind's own columns.
@@ -44,7 +45,9 @@ class RotorBody:
         self.spec = spec
         self.kind = spec.kind
         self.geometry = g = spec.geometry()
-        self.polars = SectionPolars.uniform(make_polar(spec.airfoil), spec.panels)
+        # Viterna-Corrigan post-stall drag from the blade aspect ratio R/c unless the case gives it
+        self.polars = SectionPolars.uniform(make_polar(spec.airfoil, aspect_ratio=g.radius / g.mean_chord()),
+                                            spec.panels, speed_of_sound=case.fluid.speed_of_sound)
         self.density = case.fluid.density
         self.axis = g.frame()[0]
         self.hub = np.asarray(g.hub, dtype=np.float64)

@@ -59,7 +59,15 @@ from scipy.optimize import brentq
 
 from ..errors import CaseError, InputError
 from ..io.tables import read_numeric_table
-from .polars import PolarRangeError, TablePolar, at_mach, load_polar_table, mach_of
+from .polars import (
+    PolarRangeError,
+    TablePolar,
+    ThinAirfoilPolar,
+    at_mach,
+    has_mach_column,
+    load_polar_table,
+    mach_of,
+)
 
 GAMMA_AIR = 1.4                       # ratio of specific heats of air
 COMPRESSIBILITY_RULES = ("none", "prandtl-glauert", "karman-tsien")
@@ -431,6 +439,51 @@ def with_compressibility(polar, rule: str, *, mach_limit: float = DEFAULT_MACH_L
     return CompressiblePolar(polar, rule, mach_limit=mach_limit, mach_out_of_range=mach_out_of_range)
 
 
+def make_polar(airfoil, *, aspect_ratio: float | None = None):
+    """The polar an airfoil spec asks for.
+
+    It lives here, not in :mod:`wakes.aero.polars`, as it needs both
+    modules. A built-in section (``section``), a CSV table (``polar``; by Mach
+    number if it has a ``mach`` column) or thin-airfoil theory, corrected
+    by the ``compressibility`` rule if one is named.
+
+    Parameters
+    ----------
+    airfoil : wakes.case.specs.AirfoilSpec
+        The ``[bodies.NAME.airfoil]`` table of a case.
+    aspect_ratio : float, optional
+        Blade aspect ratio for the Viterna-Corrigan post-stall drag when the
+        spec gives neither ``post_stall_aspect_ratio`` nor
+        ``post_stall_cd_max`` (a rotor passes R/c); None: the 2-D value.
+
+    Raises
+    ------
+    wakes.errors.CaseError
+        A table that cannot be read, or a rule that does not apply to it.
+    """
+    section = getattr(airfoil, "section", None)
+    rule = getattr(airfoil, "compressibility", "none")
+    ar = getattr(airfoil, "post_stall_aspect_ratio", None) or aspect_ratio
+    tail = dict(out_of_range=airfoil.out_of_range, cd_max=getattr(airfoil, "post_stall_cd_max", None),
+                aspect_ratio=ar)
+    mach_mode = getattr(airfoil, "mach_out_of_range", "error")
+    try:
+        if section is not None:
+            base = builtin_polar(section, **tail)
+        elif airfoil.polar is not None and has_mach_column(airfoil.polar):
+            base = load_mach_table(airfoil.polar, mach_out_of_range=mach_mode, **tail)
+        elif airfoil.polar is not None:
+            base = load_polar_table(airfoil.polar, **tail)
+        else:
+            base = ThinAirfoilPolar(lift_slope=airfoil.lift_slope,
+                                    zero_lift_angle=np.radians(airfoil.zero_lift_angle),
+                                    cd0=airfoil.cd0, cd2=airfoil.cd2)
+        return with_compressibility(base, rule, mach_limit=getattr(airfoil, "mach_limit", DEFAULT_MACH_LIMIT),
+                                    mach_out_of_range=mach_mode)
+    except InputError as exc:
+        raise CaseError(str(exc)) from None
+
+
 __all__ = ["BUILTIN_SECTIONS", "COMPRESSIBILITY_RULES", "CompressiblePolar", "MACH_OUT_OF_RANGE_MODES",
            "MachTablePolar", "PolarRangeError", "at_mach", "builtin_polar", "critical_mach", "karman_tsien",
-           "load_mach_table", "prandtl_glauert", "with_compressibility"]
+           "load_mach_table", "make_polar", "prandtl_glauert", "with_compressibility"]

@@ -7,7 +7,8 @@ import pandas as pd
 
 from .geometry import rotation_matrix, wing_surface
 from .loads import wing_totals
-from .polars import SectionPolars, make_polar
+from .polars import SectionPolars
+from .sections import make_polar
 from .wake import WakeSheet
 
 WING_SUMMARY_KEYS = ("CL", "CDi", "span_efficiency", "lift_N", "induced_drag_N",
@@ -33,7 +34,8 @@ class WingBody:
         self.spec = spec
         self.velocity = case.freestream.vector()
         self.density = case.fluid.density
-        polars = SectionPolars.uniform(make_polar(spec.airfoil), spec.spanwise_panels)
+        polars = SectionPolars.uniform(make_polar(spec.airfoil), spec.spanwise_panels,
+                                       speed_of_sound=case.fluid.speed_of_sound)
         self._surface = wing_surface(spec.name, spec.planform(), n_span=spec.spanwise_panels,
                                      spacing=spec.spacing, n_chord=spec.chordwise_panels,
                                      lifting_line=spec.model == "lifting-line", polars=polars,

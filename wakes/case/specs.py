@@ -38,7 +38,7 @@ import numpy as np
 from ..aero.clearance import contact_point, disc_triangles, wing_triangles
 from ..aero.geometry import SPACINGS, Distribution, WingPlanform
 from ..aero.ground import GroundPlane
-from ..aero.polars import OUT_OF_RANGE_MODES, load_polar_table
+from ..aero.polars import OUT_OF_RANGE_MODES, has_mach_column
 from ..aero.rotor import (
     BLADE_SPACINGS,
     RotorGeometry,
@@ -47,6 +47,14 @@ from ..aero.rotor import (
     is_axial_flow,
 )
 from ..aero.rotor_loads import ROTOR_KINDS
+from ..aero.sections import (
+    BUILTIN_SECTIONS,
+    COMPRESSIBILITY_RULES,
+    DEFAULT_MACH_LIMIT,
+    MACH_OUT_OF_RANGE_MODES,
+    MAX_MACH_LIMIT,
+    make_polar,
+)
 from ..aero.wake import SEA_LEVEL_KINEMATIC_VISCOSITY
 from ..errors import CaseError
 from ..induction.api import METHODS
@@ -99,6 +107,10 @@ class FluidSpec:
                          above=0.0, minimum=1e-4, maximum=2e4)
     kinematic_viscosity: float = key(SEA_LEVEL_KINEMATIC_VISCOSITY, "kinematic viscosity nu (ISA sea level)", "m^2/s",
                                      minimum=0.0, maximum=1.0)
+    # 340.3 m/s: ISA sea level (ICAO 1993). The range spans a heavy gas such as sulphur
+    # hexafluoride (about 135 m/s) to water (about 1480 m/s); both figures from memory.
+    speed_of_sound: float = key(340.3, "speed of sound, for the sections' Mach numbers (ISA sea level)",
+                                "m/s", minimum=100.0, maximum=2000.0)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -241,12 +253,24 @@ class ClusterSpec:
 
 @dataclass(frozen=True, kw_only=True)
 class AirfoilSpec:
-    """[bodies.NAME.airfoil]: the section polar, a CSV table or thin-airfoil theory."""
+    """[bodies.NAME.airfoil]: the section polar: built in, a CSV table or thin-airfoil theory."""
 
-    polar: str | None = key(None, "CSV polar table (alpha_deg, cl, cd), relative to the case file",
-                            kind="path")
-    out_of_range: str = key("error", "angles outside the table: error, or blend to flat plate",
-                            kind="str", choices=OUT_OF_RANGE_MODES)
+    section: str | None = key(None, "built-in section polar instead of a table or thin-airfoil keys",
+                              kind="str", choices=tuple(BUILTIN_SECTIONS))
+    polar: str | None = key(None, "CSV polar table (alpha_deg, cl, cd; with a mach column: tables by "
+                            "Mach number), relative to the case file", kind="path")
+    out_of_range: str = key("error", "angles outside the table: error, blend to flat plate, or "
+                            "Viterna-Corrigan to +-180 deg", kind="str", choices=OUT_OF_RANGE_MODES)
+    post_stall_aspect_ratio: float | None = key(None, "viterna: aspect ratio giving cd at 90 deg "
+                                                "(default: rotor R/c; wing 2-D)", above=0.0, maximum=1000.0)
+    post_stall_cd_max: float | None = key(None, "viterna: cd at 90 deg instead of the aspect ratio",
+                                          minimum=0.5, maximum=3.0)
+    compressibility: str = key("none", "rule correcting the low-speed polar to the local Mach number",
+                               kind="str", choices=COMPRESSIBILITY_RULES)
+    mach_limit: float = key(DEFAULT_MACH_LIMIT, "highest Mach number the rule is used at",
+                            above=0.0, maximum=MAX_MACH_LIMIT)
+    mach_out_of_range: str = key("error", "Mach numbers above mach_limit or outside a Mach table: "
+                                 "error, or hold the end value", kind="str", choices=MACH_OUT_OF_RANGE_MODES)
     lift_slope: float = key(2 * math.pi, "thin airfoil: section lift slope", "1/rad", above=0.0,
                             maximum=20.0)
     zero_lift_angle: float = key(0.0, "thin airfoil: zero-lift angle", "deg",
@@ -255,20 +279,60 @@ class AirfoilSpec:
     cd2: float = key(0.0, "thin airfoil: drag polar cd = cd0 + cd2 cl^2", minimum=0.0, maximum=10.0)
 
     _THIN = ("lift_slope", "zero_lift_angle", "cd0", "cd2")
+    _TABLE = ("out_of_range", "post_stall_aspect_ratio", "post_stall_cd_max")
+
+    def _table(self) -> str | None:
+        """Which key names a table: "section", "polar" or None (thin airfoil)."""
+        return "section" if self.section is not None else "polar" if self.polar is not None else None
+
+    def _mach_table(self) -> bool:
+        return self.polar is not None and has_mach_column(self.polar)
 
     def after_parse(self, raw: dict, where: str, ctx) -> AirfoilSpec:
-        if self.polar is not None:
+        if self.section is not None and self.polar is not None:
+            ctx.fail(f"{where}.section: give either a built-in section or a polar table, not both "
+                     f"(section = {raw['section']!r}, polar = {raw['polar']!r})")
+        table = self._table()
+        if table is not None:
             both = [k for k in self._THIN if k in raw]
             if both:
                 ctx.fail(f"{where}.{both[0]}: give either a polar table or thin-airfoil "
-                         f"coefficients, not both (polar = {raw['polar']!r})")
-            load_polar_table(self.polar, out_of_range=self.out_of_range)
-        elif "out_of_range" in raw:
-            ctx.fail(f"{where}.out_of_range applies to a polar table only; set {where}.polar")
+                         f"coefficients, not both ({table} = {raw[table]!r})")
+        else:
+            given = [k for k in self._TABLE if k in raw]
+            if given:
+                ctx.fail(f"{where}.{given[0]} applies to a polar table only; set {where}.polar or "
+                         f"{where}.section")
+        post = [k for k in ("post_stall_aspect_ratio", "post_stall_cd_max") if k in raw]
+        if len(post) == 2:
+            ctx.fail(f"{where}.post_stall_cd_max: give post_stall_aspect_ratio or post_stall_cd_max, "
+                     "not both")
+        if post and self.out_of_range != "viterna":
+            ctx.fail(f"{where}.{post[0]} applies to out_of_range = \"viterna\" only; got "
+                     f"out_of_range = {self.out_of_range!r}")
+        mach_table = self._mach_table()
+        if mach_table and self.compressibility != "none":
+            ctx.fail(f"{where}.compressibility = {self.compressibility!r}: the polar "
+                     f"{raw['polar']!r} is already tabulated by Mach number; use \"none\"")
+        if "mach_limit" in raw and self.compressibility == "none":
+            ctx.fail(f"{where}.mach_limit applies to a compressibility rule only; set "
+                     f"{where}.compressibility to \"prandtl-glauert\" or \"karman-tsien\"")
+        if "mach_out_of_range" in raw and self.compressibility == "none" and not mach_table:
+            ctx.fail(f"{where}.mach_out_of_range applies to a compressibility rule or a polar table "
+                     f"with a mach column only")
+        try:
+            make_polar(self)
+        except CaseError as exc:
+            ctx.fail(f"{where}: {exc}")
         return self
 
     def omitted(self) -> set:
-        return set(self._THIN) if self.polar is not None else {"polar", "out_of_range"}
+        out = set(self._THIN) if self._table() is not None else {"polar", "section", *self._TABLE}
+        if self.compressibility == "none":
+            out.add("mach_limit")
+            if not self._mach_table():
+                out.add("mach_out_of_range")
+        return out
 
 
 @dataclass(frozen=True, kw_only=True)
