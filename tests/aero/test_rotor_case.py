@@ -97,7 +97,7 @@ def test_polar_not_covering_the_angles_met_names_station_time_and_angle(tmp_path
     assert main(["run", str(case), "--out", str(out)]) == 2
     err = capsys.readouterr().err
     assert re.search(r"surface 'rotor/blade \d', strip \d+ \(eta = 0\.\d+\)", err), err
-    assert re.search(r"covers -2 to 4 deg; an angle of [\d.]+ deg was met", err)
+    assert re.search(r"covers -2 to 4 deg; an angle of [\d.]+ deg at Mach 0\.\d+ was met", err)
     assert re.search(r"at step \d+ \(t = [\d.e-]+ s\)", err)
     assert not out.exists()
 
