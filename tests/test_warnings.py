@@ -110,3 +110,57 @@ def test_a_stopped_run_says_so_with_its_last_step_and_how_to_resume(tmp_path, mo
 
 def write_run_no_plots(run, out):
     return write_run(run, out, plots=False)
+
+
+TINY_PARTICLES = """title = "tiny"
+[freestream]
+speed = 10.0
+angle_of_attack = 5.0
+[bodies.wing]
+type = "wing"
+model = "lifting-line"
+span = 6.0
+chord = 1.0
+spanwise_panels = 6
+[wake]
+model = "particles"
+near_wake_steps = 3
+[time]
+dt = 0.025
+steps = 12
+"""
+
+
+def test_a_run_the_watchdog_stopped_is_diverged_with_its_checkpoint(tmp_path, monkeypatch):
+    """The watchdog's speed limit lowered to 1.02 times the freestream (as in
+    tests/test_robust_run.py): this wing's start-up transient passes it at the
+    start of step 3, so the last good state is the start of step 2."""
+    import tomllib
+
+    import wakes.watchdog as watchdog
+    monkeypatch.setattr(watchdog, "SPEED_FACTOR", 1.02)
+    case = parse_case(tomllib.loads(TINY_PARTICLES))
+    run_guarded(case, tmp_path, write=write_run_no_plots)
+    summary = _summary(tmp_path)
+    assert summary["status"] == "diverged"
+    assert "step 3" in summary["reason"] and "last good state" in summary["reason"]
+    assert summary["last_step"] == 1
+    assert summary["resume"] == {"possible": True, "from_step": 2, "how": f"wakes run --resume {tmp_path}"}
+
+
+def test_a_run_that_diverges_in_its_first_step_still_writes_its_status(tmp_path, monkeypatch):
+    """A speed limit below the freestream fails the check at the start of step 0: no
+    step is done, so no tables, but summary.json says diverged, last step -1, resume
+    from step 0."""
+    import tomllib
+
+    import wakes.watchdog as watchdog
+    monkeypatch.setattr(watchdog, "SPEED_FACTOR", 0.5)
+    case = parse_case(tomllib.loads(TINY_PARTICLES))
+    run = run_guarded(case, tmp_path, write=write_run_no_plots)
+    assert run.status == "unstable" and not len(run.loads)
+    assert not (tmp_path / "loads.csv").exists()
+    summary = _summary(tmp_path)
+    assert summary["status"] == "diverged" and summary["last_step"] == -1
+    assert summary["warnings"] == [] and summary["bodies"] == {}
+    assert summary["resume"]["possible"] is True and summary["resume"]["from_step"] == 0

@@ -44,6 +44,7 @@ from .io import checkpoint as checkpoints
 from .io.checkpoint import LoopState
 from .io.runfolder import RUN_MARKERS, RunFolder, read_run  # noqa: F401  (re-exported)
 from .io.snapshots import WakeSnapshots
+from .io.tables import write_json
 from .plots import plot_run
 from .simulate import Run, TimeLoop
 from .watchdog import RunControl
@@ -180,6 +181,8 @@ def run_guarded(case: Case, out, *, write, progress=None, max_memory: int | None
                                  "how": f"wakes run --resume {out}"}
     if len(run.loads):
         write(run, out)
+    else:   # stopped before a step was done: no tables, but the status and the checkpoint
+        write_json(run.summary, out / "summary.json")
     if run.status == "finished":
         checkpoints.remove_checkpoints(out)
     return run
