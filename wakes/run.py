@@ -12,7 +12,8 @@ writes the run folder.
 A run folder holds (see the README for the columns)::
 
     case.toml            the resolved case, every default filled in
-    summary.json         figures of every body, the case, version and revision
+    summary.json         figures of every body, the case, version and revision; the run's
+                         status, reason, last step and resume, and plausibility warnings
     loads.csv            one row per step and body
     sections.csv         span or radial distributions at the last step
     loads.parquet, sections.parquet    the same tables, when pyarrow is installed
@@ -145,7 +146,10 @@ def run_guarded(case: Case, out, *, write, progress=None, max_memory: int | None
         current step was finished), "unstable", "memory" or "failed"; in
         every case but "finished" the newest checkpoint holds the last good
         state, and the outputs of the steps done are written. A finished
-        run's checkpoints are removed.
+        run's checkpoints are removed. ``summary.json`` (also when no step
+        was done) holds ``status``, ``reason``, ``last_step`` and ``resume``
+        (:func:`wakes.simulate.run_status`; here ``resume.possible`` is true
+        whenever a checkpoint was left) and the plausibility ``warnings``.
 
     Raises
     ------
