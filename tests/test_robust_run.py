@@ -181,10 +181,15 @@ def test_sigint_mid_run_then_resume_equals_uninterrupted_cli_run(tmp_path):
     assert ref.returncode == 0, ref.stderr
     flag = tmp_path / "paused"
     proc = _cli(["run", str(case_file), "--out", str(tmp_path / "cut"), "--quiet"], pause=7, flag=flag)
-    _wait_for_pause(flag, proc)
-    proc.send_signal(signal.SIGINT)      # caught while paused inside step 7's checkpoint write
-    _release(flag)
-    code = proc.wait(300)
+    try:
+        _wait_for_pause(flag, proc)
+        proc.send_signal(signal.SIGINT)      # caught while paused inside step 7's checkpoint write
+        _release(flag)
+        code = proc.wait(300)
+    finally:   # a failed wait must not leave a paused child behind
+        if proc.poll() is None:
+            proc.kill()
+            proc.wait(60)
     err = proc.communicate()[1]
     assert code == 128 + signal.SIGINT, err
     assert "interrupted" in err and "--resume" in err and "Traceback" not in err
@@ -227,16 +232,22 @@ def test_sigkill_at_random_points_leaves_only_parseable_files(tmp_path):
     procs = [_cli(["run", str(case_file), "--out", str(out), "--quiet", "--no-plots"],
                   pause=int(pause), flag=flag)
              for out, flag, pause in zip(outs, flags, rng.integers(1, 6, size=3))]
-    for out, flag, proc, delay in zip(outs, flags, procs, rng.uniform(0.0, 0.3, size=3)):
-        _wait_for_pause(flag, proc)
-        _release(flag)
-        time.sleep(delay)
-        assert proc.poll() is None, "a 2000-step run finished early"
-        proc.kill()
-        proc.wait(60)
-        files = [p for p in out.rglob("*") if p.is_file()]
-        assert files
-        for p in files:
-            assert not p.name.endswith(".part") or p.name.startswith("."), p
-            if not p.name.startswith("."):
-                _parses(p)
+    try:
+        for out, flag, proc, delay in zip(outs, flags, procs, rng.uniform(0.0, 0.3, size=3)):
+            _wait_for_pause(flag, proc)
+            _release(flag)
+            time.sleep(delay)
+            assert proc.poll() is None, "a 2000-step run finished early"
+            proc.kill()
+            proc.wait(60)
+            files = [p for p in out.rglob("*") if p.is_file()]
+            assert files
+            for p in files:
+                assert not p.name.endswith(".part") or p.name.startswith("."), p
+                if not p.name.startswith("."):
+                    _parses(p)
+    finally:   # a failed check must not leave a paused or 2000-step child behind
+        for proc in procs:
+            if proc.poll() is None:
+                proc.kill()
+                proc.wait(60)
