@@ -46,7 +46,7 @@ CASES = ROOT / "cases"      # relative polar paths of the base cases are read fr
 
 LONG = os.environ.get("WAKES_FUZZ_LONG", "") not in ("", "0")
 LONG_EXAMPLES = 10_000
-SHORT_EXAMPLES = 300
+SHORT_EXAMPLES = 100
 EXAMPLES = int(os.environ.get("WAKES_FUZZ_EXAMPLES", LONG_EXAMPLES if LONG else SHORT_EXAMPLES))
 RUN_STEPS = 3               # steps of a fuzzed run: enough to shed, move and roll up a wake
 MAX_MEMORY = "200M"         # memory budget of a fuzzed run: larger cases are refused (exit 4)
@@ -165,7 +165,7 @@ def _number_near_range(meta, integer: bool):
 
 
 def _distribution(meta):
-    num = st.one_of(_number_near_range(meta, False), SCALARS)
+    num = st.one_of(_number_near_range(meta, False), st.sampled_from(SPECIAL_NUMBERS), SCALARS)
     eta = st.one_of(st.just([0.0, 1.0]), st.just([-1.0, 0.0, 1.0]), st.just([0.0, 0.5, 1.0]),
                     st.lists(st.floats(-2, 2), max_size=5), st.lists(SCALARS, max_size=3))
     law = st.sampled_from(["constant", "linear", "elliptic", "table", "cubic", "", 3])
@@ -180,7 +180,7 @@ def value_for(field: dataclasses.Field):
     meta = field.metadata
     kind = meta.get("kind")
     if kind in ("float", "int"):
-        plausible = _number_near_range(meta, kind == "int")
+        plausible = st.one_of(_number_near_range(meta, kind == "int"), st.sampled_from(SPECIAL_NUMBERS))
     elif kind == "str":
         choices = list(meta.get("choices") or ()) or ["tcp://127.0.0.1:1", "tcp://host:99999",
                                                        "ftp://x:1", "demo case", "a\nb\"c\\"]
@@ -188,7 +188,8 @@ def value_for(field: dataclasses.Field):
     elif kind == "bool":
         plausible = st.sampled_from([True, False, "true", 1, 0])
     elif kind == "vec3":
-        comp = st.one_of(_number_near_range(meta, False), st.sampled_from([0.0, 1.0, -1.0, 0.5]))
+        comp = st.one_of(_number_near_range(meta, False), st.sampled_from([0.0, 1.0, -1.0, 0.5]),
+                         st.sampled_from(SPECIAL_NUMBERS))
         plausible = st.one_of(st.lists(comp, min_size=3, max_size=3),
                               st.lists(st.floats(-2.0, 2.0), min_size=3, max_size=3),
                               st.lists(comp, max_size=5))
@@ -395,8 +396,11 @@ def _a_message(exc: BaseException) -> None:
     assert isinstance(exc, WakesError) and text.strip(), repr(exc)
 
 
-def library_outcome(data: dict, workdir: Path) -> str:
-    """Parse, estimate and (if valid) run a few steps with the library; return what happened."""
+def library_outcome(data: dict, workdir: Path, write: bool = True, steps: int = RUN_STEPS) -> str:
+    """Parse, estimate and (if valid) run a few steps with the library; return what happened.
+
+    ``write=False`` skips writing the run folder's tables and figures (checkpoints of a stopped
+    run are still written); at most ``steps`` steps are run."""
     from wakes.estimate import estimate_case
     from wakes.run import run_guarded, write_run
 
@@ -411,10 +415,10 @@ def library_outcome(data: dict, workdir: Path) -> str:
     assert est.steps == case.time.steps and est.memory_mb > 0
     if not _runs_here(case) or case.cluster.scheduler:
         return "checked"
-    short = dataclasses.replace(case, time=TimeSpec(dt=case.time.dt, steps=min(case.time.steps, RUN_STEPS)))
+    short = dataclasses.replace(case, time=TimeSpec(dt=case.time.dt, steps=min(case.time.steps, steps)))
     out = workdir / "lib-run"
     try:
-        run = run_guarded(short, out, write=lambda r, o: write_run(r, o, plots=False),
+        run = run_guarded(short, out, write=lambda r, o: write_run(r, o, plots=False) if write else None,
                           max_memory=200 * 2 ** 20)
     except WakesError as exc:
         _a_message(exc)
@@ -451,7 +455,8 @@ def cli_outcome(data: dict, workdir: Path) -> str:
     status, err = _main(["run", str(path), "--out", str(out), "--no-plots", "--quiet",
                          "--max-memory", MAX_MEMORY])
     assert status in (0, 2, 3, 4), (status, err)
-    assert "Traceback" not in err
+    # every line the command prints on stderr is its own: no traceback, no raw library warning
+    assert all(line.startswith("wakes") for line in err.splitlines()), err
     if status:
         assert err.startswith("wakes: "), err
     else:
@@ -480,6 +485,64 @@ def test_fuzzed_cases_check_and_run_or_fail_with_a_message(fuzzed):
         assert (library == "rejected") == (cli == "exit 2") or cli == "not TOML", (library, cli, done)
         event(f"library: {library}")
         event(f"command: {cli}")
+
+
+# ----------------------------------------------------------------- every key, every kind of bad value
+
+BAD_VALUES = [("text", "ten"), ("true", True), ("list", [1, 2]), ("table", {"a": 1}),
+              ("date", datetime.date(2020, 1, 1)), ("negative", -1), ("negative float", -1.5),
+              ("zero", 0), ("zero float", 0.0), ("tiny", 5e-324), ("1e-300", 1e-300), ("huge", 1e300),
+              ("huge int", 10 ** 30), ("too long int", 10 ** 5000), ("nan", NAN), ("inf", INF),
+              ("-inf", -INF), ("empty string", ""), ("unknown choice", "no-such-choice")]
+SWEEP_BASE = {"wing": "wing", "rotor": "rotor"}       # the base case each key is changed in
+SWEEP_SECTION_BASE = {"ground": "prop-wing", "cluster": "wing"}
+
+
+def _sweep_values(field: dataclasses.Field) -> list:
+    """The bad values of the brief, and the bounds of the key's range and just beyond them."""
+    meta = field.metadata
+    values = list(BAD_VALUES)
+    for bound in (meta.get("minimum"), meta.get("maximum"), meta.get("above")):
+        if bound is not None:
+            out = (INF if bound == meta.get("maximum") else -INF)
+            values += [(f"bound {bound:g}", bound), (f"beyond {bound:g}", math.nextafter(float(bound), out))]
+    if meta.get("kind") == "vec3":
+        values = [(name, [v] * 3) for name, v in values] + [("two numbers", [1.0, 2.0]), ("no numbers", [])]
+    for choice in meta.get("choices") or ():
+        values.append((f"choice {choice}", choice))
+    return values + [("missing", None)]
+
+
+def _sweep_slots(path: tuple) -> list[tuple[str, tuple]]:
+    """The base cases and the paths in them where a key of the schema is changed: one base in
+    the short profile, every base that has the key's section or body type in the long one."""
+    if path[0] != "bodies":
+        bases = sorted(BASES) if LONG else [SWEEP_SECTION_BASE.get(path[0], "wing")]
+        return [(base, path) for base in bases]
+    out = []
+    for base in sorted(BASES) if LONG else [SWEEP_BASE[path[1]]]:
+        out += [(base, ("bodies", name) + path[2:]) for name, body in BASES[base]["bodies"].items()
+                if body["type"] == path[1]]
+    return out
+
+
+@pytest.mark.parametrize("path, field", SLOTS, ids=[".".join(p) for p, _ in SLOTS])
+def test_every_key_with_every_kind_of_bad_value(path, field, tmp_path):
+    """Each key of the schema in turn: wrong types, negative, zero, tiny, huge, NaN, inf, empty
+    text, an unknown choice, its bounds and just beyond, and missing; checked and (if valid) run."""
+    k = 0
+    for base, where in _sweep_slots(path):
+        for name, value in _sweep_values(field):
+            data = copy.deepcopy(BASES[base])
+            _set(data, where, value, delete=name == "missing")
+            k += 1
+            workdir = tmp_path / str(k)
+            workdir.mkdir()
+            outcome = library_outcome(data, workdir, write=LONG, steps=RUN_STEPS if LONG else 2)
+            if name in ("nan", "-inf", "text", "list", "date") and field.metadata.get("kind") in ("float", "int"):
+                assert outcome == "rejected", (name, outcome)
+            if LONG:                # and through the command, as a user would
+                cli_outcome(data, workdir)
 
 
 # ----------------------------------------------------------------- named hostile cases

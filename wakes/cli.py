@@ -40,6 +40,7 @@ from __future__ import annotations
 import argparse
 import contextlib
 import sys
+import warnings
 from pathlib import Path
 
 import pandas as pd
@@ -336,6 +337,12 @@ def _sweep(args) -> int:
     return 0
 
 
+def _one_line_warning(message, category, filename, lineno, file=None, line=None):
+    """A warning from inside a computation as one line, without the source file and line
+    (those are for ``--debug``)."""
+    print(f"wakes: warning: {message}", file=sys.stderr)
+
+
 def main(argv=None) -> int:
     """Entry point of the ``wakes`` console script; returns the exit status."""
     parser = _parser()
@@ -343,36 +350,39 @@ def main(argv=None) -> int:
     if args.command == "run" and args.resume is None and (args.case is None or args.out is None):
         parser.error("wakes run needs CASE and --out DIR, or --resume RUN_DIR")
 
-    try:
-        if args.command == "run":
-            return _run(args)
-        if args.command in ("check", "new", "probe", "plot"):
-            return {"check": _check, "new": _new, "probe": _probe, "plot": _plot}[args.command](args)
-        if args.command == "verify":
-            return _verify(args)
-        if args.command == "sweep":
-            return _sweep(args)
-    except WakesError as exc:
-        if getattr(args, "debug", False):
-            raise
-        print(f"wakes: error: {exc}", file=sys.stderr)
-        return EXIT_MEMORY if isinstance(exc, MemoryBudgetError) else EXIT_USER_ERROR
-    except OSError as exc:      # a file the system would not read or write: full disk, permissions
-        if getattr(args, "debug", False):
-            raise
-        where = f"{exc.filename}: " if exc.filename else ""
-        print(f"wakes: error: {where}{_os_words(exc)}; files written before are kept whole "
-              "(every file is written to a temporary name and renamed)", file=sys.stderr)
-        return EXIT_USER_ERROR
-    except MemoryError:
-        if getattr(args, "debug", False):
-            raise
-        print("wakes: error: out of memory; give --max-memory to be refused before a run, or make "
-              "the case, grid or points smaller", file=sys.stderr)
-        return EXIT_MEMORY
-    except KeyboardInterrupt:
-        print("wakes: interrupted; nothing written", file=sys.stderr)
-        return 130
+    with warnings.catch_warnings():      # restores the warning display on return
+        if not getattr(args, "debug", False):
+            warnings.showwarning = _one_line_warning
+        try:
+            if args.command == "run":
+                return _run(args)
+            if args.command in ("check", "new", "probe", "plot"):
+                return {"check": _check, "new": _new, "probe": _probe, "plot": _plot}[args.command](args)
+            if args.command == "verify":
+                return _verify(args)
+            if args.command == "sweep":
+                return _sweep(args)
+        except WakesError as exc:
+            if getattr(args, "debug", False):
+                raise
+            print(f"wakes: error: {exc}", file=sys.stderr)
+            return EXIT_MEMORY if isinstance(exc, MemoryBudgetError) else EXIT_USER_ERROR
+        except OSError as exc:      # a file the system would not read or write: full disk, permissions
+            if getattr(args, "debug", False):
+                raise
+            where = f"{exc.filename}: " if exc.filename else ""
+            print(f"wakes: error: {where}{_os_words(exc)}; files written before are kept whole "
+                  "(every file is written to a temporary name and renamed)", file=sys.stderr)
+            return EXIT_USER_ERROR
+        except MemoryError:
+            if getattr(args, "debug", False):
+                raise
+            print("wakes: error: out of memory; give --max-memory to be refused before a run, or make "
+                  "the case, grid or points smaller", file=sys.stderr)
+            return EXIT_MEMORY
+        except KeyboardInterrupt:
+            print("wakes: interrupted; nothing written", file=sys.stderr)
+            return 130
     return 0
 
 

@@ -25,10 +25,11 @@ are linear and converge in one step.
 
 from __future__ import annotations
 
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import lu_factor, lu_solve
+from scipy.linalg import LinAlgWarning, lu_factor, lu_solve
 
 from ..errors import NumericalError
 from .polars import PolarRangeError
@@ -187,7 +188,16 @@ class LinearCache:
 
     def factors(self, aic: np.ndarray, jacobian_of):
         if self._aic is not aic:
-            self._lu = lu_factor(jacobian_of())
+            with warnings.catch_warnings():
+                warnings.simplefilter("error", LinAlgWarning)
+                try:
+                    self._lu = lu_factor(jacobian_of())
+                except (LinAlgWarning, ValueError) as exc:   # exactly singular, or not finite
+                    raise NumericalError(
+                        f"the vortex-lattice equations cannot be solved ({exc}); likely cause: "
+                        "panels that coincide or have almost no size, e.g. a chord or span "
+                        "thousands of times the other, or two surfaces on top of each other; "
+                        "remedy: check the bodies' chord, span, panel counts and positions") from None
             self._aic = aic
         return self._lu
 

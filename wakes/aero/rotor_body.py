@@ -88,9 +88,9 @@ class RotorBody:
         if settings.model == "particles":
             return WakeSheet(surface.te_nodes, time, settings)
         startup = None
-        if self.kind == "rotor" and self.spec.startup_revolutions > 0:
-            startup = StartupDrift(self.hub, self.axis, g.omega, g.blades, g.radius,
-                                   self.spec.startup_revolutions * g.period)
+        drift_time = self.spec.startup_revolutions * g.period
+        if self.kind == "rotor" and drift_time > 0.0:   # (a count so small it rounds to no time: none)
+            startup = StartupDrift(self.hub, self.axis, g.omega, g.blades, g.radius, drift_time)
         if self.spec.symmetric_wake and self._symmetry is None:
             self._symmetry = BladeSymmetry(self.hub, self.axis, g.blades)
         rollup = self.spec.rollup_age / blade_turn_deg(g.rpm, self.dt)

@@ -151,6 +151,13 @@ def check_range(value, where, ctx, meta):
     ctx.fail(f"{where} must be {broken}{unit_text(meta)}; got {short(value)}{full}")
 
 
+def in_range(value, meta) -> bool:
+    """Whether ``value`` is within the range of the key described by ``meta``."""
+    lo, hi, above = meta.get("minimum"), meta.get("maximum"), meta.get("above")
+    return ((above is None or value > above) and (lo is None or value >= lo)
+            and (hi is None or value <= hi))
+
+
 def range_words(meta) -> str:
     """The accepted range of a numeric key in words, e.g. "between 0.0001 and 10000"."""
     lo, hi, above = meta.get("minimum"), meta.get("maximum"), meta.get("above")

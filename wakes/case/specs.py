@@ -64,11 +64,13 @@ from .schema import (
     Context,
     accepted_text,
     dump_toml,
+    in_range,
     key,
     merge,
     parse_section,
     plain_default,
     public_fields,
+    range_words,
     read_toml,
     short,
     to_plain,
@@ -735,7 +737,26 @@ def _resolve(case: Case) -> Case:
     output = case.output
     if output.snapshot_every is None:
         output = dataclasses.replace(output, snapshot_every=math.ceil(steps / DEFAULT_SNAPSHOTS))
-    return dataclasses.replace(case, wake=wake, time=TimeSpec(dt=dt, steps=steps), output=output)
+    case = dataclasses.replace(case, wake=wake, time=TimeSpec(dt=dt, steps=steps), output=output)
+    _check_worked_out(case)
+    return case
+
+
+def _check_worked_out(case: Case) -> None:
+    """Values worked out from the rest of the case keep their keys' ranges too: the resolved
+    case a run folder records must read back."""
+    tables = [(name, getattr(case, name)) for name in ("time", "wake", "output")]
+    tables += [(f"bodies.{b.name}", b) for b in case.bodies]
+    for where, table in tables:
+        for f in public_fields(type(table)):
+            value = getattr(table, f.name)
+            meta = f.metadata
+            if not meta.get("resolved") or value is None or meta.get("kind") not in ("float", "int"):
+                continue
+            if not (math.isfinite(value) and in_range(value, meta)):
+                raise CaseError(f"{case.source}: {where}.{f.name} worked out from the rest of the case is "
+                                f"{value:g}, outside its range ({range_words(meta)}); give {where}.{f.name} "
+                                "or change the sizes and speeds it comes from")
 
 
 def load_case(path, overrides: dict | None = None) -> Case:
