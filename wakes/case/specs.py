@@ -274,7 +274,7 @@ class AirfoilSpec:
     mach_out_of_range: str = key("error", "Mach numbers above mach_limit or outside a Mach table: "
                                  "error, or hold the end value", kind="str", choices=MACH_OUT_OF_RANGE_MODES)
     lift_slope: float = key(2 * math.pi, "thin airfoil: section lift slope", "1/rad", above=0.0,
-                            maximum=20.0)
+                            minimum=0.1, maximum=20.0)
     zero_lift_angle: float = key(0.0, "thin airfoil: zero-lift angle", "deg",
                                  minimum=-30.0, maximum=30.0)
     cd0: float = key(0.0, "thin airfoil: drag polar cd = cd0 + cd2 cl^2", minimum=0.0, maximum=2.0)
