@@ -5,7 +5,6 @@ import os
 import signal
 import subprocess
 import sys
-import time
 import xml.etree.ElementTree as ET
 from pathlib import Path
 
@@ -110,32 +109,61 @@ def test_library_default_raises_the_watchdog_error(monkeypatch):
         run_case(_case(steps=12))
 
 
-# ``wakes run`` in a child process that pauses, by construction, right after it
-# has written the checkpoint of step PAUSE: it creates FLAG and waits for
-# FLAG.go. The tests send their signal at an event they control (the flag),
-# never at a moment raced against the run's speed.
+# ``wakes run`` in a child process that pauses, by construction, just before the
+# rename of its N-th atomic file write (the temporary file is complete, the
+# final name not yet taken: the moment a kill hurts most). It says so on one
+# pipe and blocks reading another until the test releases it, so the test
+# acts at an event the child makes, never at a moment raced against the run's
+# speed. Only the package's own atomic writes are counted, so the pause point
+# is the same on every machine, warm or cold numba cache.
 _PAUSING_CLI = """
-import os, sys, time
-import wakes.io.checkpoint as checkpoint
-pause, flag = int(sys.argv[1]), sys.argv[2]
-_write = checkpoint.write_checkpoint
-def write_then_pause(out, state, *args, **kwargs):
-    result = _write(out, state, *args, **kwargs)
-    if state.step == pause:
-        open(flag, "w").close()
-        while not os.path.exists(flag + ".go"):
-            time.sleep(0.005)
-    return result
-checkpoint.write_checkpoint = write_then_pause
+import os, sys
+import wakes.io.atomic as atomic
+pause_at, paused_fd, go_fd = int(sys.argv[1]), int(sys.argv[2]), int(sys.argv[3])
+renames = 0
+class _PauseBeforeRename:
+    def __getattr__(self, name):
+        return getattr(os, name)
+    def replace(self, src, dst):
+        global renames
+        renames += 1
+        if renames == pause_at:
+            os.write(paused_fd, b"p")
+            os.read(go_fd, 1)
+        os.replace(src, dst)
+atomic.os = _PauseBeforeRename()
 from wakes.cli import main
-sys.exit(main(sys.argv[3:]))
+sys.exit(main(sys.argv[4:]))
 """
 
 
-def _cli(args, *, pause, flag):
-    env = dict(os.environ, PYTHONUNBUFFERED="1")
-    return subprocess.Popen([sys.executable, "-c", _PAUSING_CLI, str(pause), str(flag), *args], env=env,
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+class _PausingRun:
+    """A ``wakes run`` child that pauses before its ``pause_at``-th atomic rename."""
+
+    def __init__(self, args, *, pause_at):
+        self._paused_r, paused_w = os.pipe()
+        go_r, self._go_w = os.pipe()
+        env = dict(os.environ, PYTHONUNBUFFERED="1")
+        self.proc = subprocess.Popen(
+            [sys.executable, "-c", _PAUSING_CLI, str(pause_at), str(paused_w), str(go_r), *args],
+            env=env, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, pass_fds=(paused_w, go_r))
+        os.close(paused_w)
+        os.close(go_r)
+
+    def wait_for_pause(self):
+        """Block until the child has paused (an empty read: it ended without pausing)."""
+        assert os.read(self._paused_r, 1) == b"p", self.proc.communicate()
+
+    def release(self):
+        os.write(self._go_w, b"g")
+
+    def close(self):
+        """Kill the child if it still runs (a failed check must not leave it behind)."""
+        if self.proc.poll() is None:
+            self.proc.kill()
+            self.proc.wait()
+        for fd in (self._paused_r, self._go_w):
+            os.close(fd)
 
 
 def _plain_cli(args):
@@ -143,31 +171,10 @@ def _plain_cli(args):
     return subprocess.run([sys.executable, "-m", "wakes.cli", *args], env=env, capture_output=True, text=True)
 
 
-def _wait_for_pause(flag: Path, proc, hang_guard=900.0):
-    """Wait until the child has paused after its checkpoint (the guard only stops a hung test)."""
-    start = time.monotonic()
-    while not flag.exists():
-        assert proc.poll() is None, proc.communicate()
-        assert time.monotonic() - start < hang_guard, "the child never reached its checkpoint"
-        time.sleep(0.01)
-
-
-def _release(flag: Path):
-    Path(str(flag) + ".go").touch()
-
-
 def _summary_without_timing(path):
     s = json.loads(Path(path).read_text())
     s["run"].pop("wall_time_s")
     return s
-
-
-def _wait_for_checkpoint(run_dir, proc, timeout=120.0):
-    start = time.monotonic()
-    while not list_checkpoints(run_dir):
-        assert proc.poll() is None, proc.communicate()
-        assert time.monotonic() - start < timeout
-        time.sleep(0.02)
 
 
 def test_sigint_mid_run_then_resume_equals_uninterrupted_cli_run(tmp_path):
@@ -179,18 +186,15 @@ def test_sigint_mid_run_then_resume_equals_uninterrupted_cli_run(tmp_path):
     case_file.write_text(TINY.format(steps=20, every=1))
     ref = _plain_cli(["run", str(case_file), "--out", str(tmp_path / "ref"), "--quiet", "--no-plots"])
     assert ref.returncode == 0, ref.stderr
-    flag = tmp_path / "paused"
-    proc = _cli(["run", str(case_file), "--out", str(tmp_path / "cut"), "--quiet"], pause=7, flag=flag)
+    run = _PausingRun(["run", str(case_file), "--out", str(tmp_path / "cut"), "--quiet"], pause_at=8)
     try:
-        _wait_for_pause(flag, proc)
-        proc.send_signal(signal.SIGINT)      # caught while paused inside step 7's checkpoint write
-        _release(flag)
-        code = proc.wait(300)
-    finally:   # a failed wait must not leave a paused child behind
-        if proc.poll() is None:
-            proc.kill()
-            proc.wait(60)
-    err = proc.communicate()[1]
+        run.wait_for_pause()
+        run.proc.send_signal(signal.SIGINT)   # caught while paused inside a step's file writes
+        run.release()
+        code = run.proc.wait()
+        err = run.proc.communicate()[1]
+    finally:
+        run.close()
     assert code == 128 + signal.SIGINT, err
     assert "interrupted" in err and "--resume" in err and "Traceback" not in err
     resumed = _plain_cli(["run", "--resume", str(tmp_path / "cut"), "--quiet", "--no-plots"])
@@ -218,36 +222,26 @@ def _parses(path: Path):
 
 def test_sigkill_at_random_points_leaves_only_parseable_files(tmp_path):
     """Three runs started together (their start-up overlaps), each killed at a random
-    moment after a checkpoint. Each run pauses after the checkpoint of a random step
-    and is released; the kill follows a random delay. The runs are long by
-    construction (2,000 steps of a growing particle wake, far longer than the
-    delay), so every kill lands inside the run; where it lands changes nothing in
-    the verdict: every file left behind parses, and no temporary file is left
-    under a final name."""
+    point of its file writes: just before the rename of a random (seeded) atomic write,
+    where a temporary file is complete and its final name not yet taken. Every file
+    left behind under a final name parses, and temporary files are hidden."""
     case_file = tmp_path / "tiny.toml"
-    case_file.write_text(TINY.format(steps=2000, every=1))
+    case_file.write_text(TINY.format(steps=30, every=1))   # a checkpoint a step: >= 30 renames
     rng = np.random.default_rng(9)
     outs = [tmp_path / f"run{k}" for k in range(3)]
-    flags = [tmp_path / f"paused{k}" for k in range(3)]
-    procs = [_cli(["run", str(case_file), "--out", str(out), "--quiet", "--no-plots"],
-                  pause=int(pause), flag=flag)
-             for out, flag, pause in zip(outs, flags, rng.integers(1, 6, size=3))]
+    runs = [_PausingRun(["run", str(case_file), "--out", str(out), "--quiet", "--no-plots"],
+                        pause_at=int(n)) for out, n in zip(outs, rng.integers(2, 26, size=3))]
     try:
-        for out, flag, proc, delay in zip(outs, flags, procs, rng.uniform(0.0, 0.3, size=3)):
-            _wait_for_pause(flag, proc)
-            _release(flag)
-            time.sleep(delay)
-            assert proc.poll() is None, "a 2000-step run finished early"
-            proc.kill()
-            proc.wait(60)
+        for out, run in zip(outs, runs):
+            run.wait_for_pause()
+            run.proc.kill()
+            run.proc.wait()
             files = [p for p in out.rglob("*") if p.is_file()]
             assert files
             for p in files:
                 assert not p.name.endswith(".part") or p.name.startswith("."), p
                 if not p.name.startswith("."):
                     _parses(p)
-    finally:   # a failed check must not leave a paused or 2000-step child behind
-        for proc in procs:
-            if proc.poll() is None:
-                proc.kill()
-                proc.wait(60)
+    finally:
+        for run in runs:
+            run.close()

@@ -5,9 +5,8 @@ Caradonna & Tung 1981, NASA TM-81232), about a minute on 2 cores; the convergenc
 ground-effect, propeller and turbine checks run their own cases, coarsened where stated.
 """
 
-import os
+import fcntl
 import pickle
-import time
 from pathlib import Path
 
 import numpy as np
@@ -29,27 +28,19 @@ class _HoverRun:
 
 def _once_per_session(path: Path, make):
     """``make()``, computed by one test process and read back by the others (pytest-xdist
-    workers share the parent of their temporary folders); a lock file taken with O_EXCL
-    makes the others wait instead of running the same case again."""
-    lock = path.with_suffix(".lock")
-    deadline = time.monotonic() + 1800.0
-    while True:
+    workers share the parent of their temporary folders). An exclusive lock on a lock file
+    (``fcntl.flock``, blocking) makes the others wait for the first instead of running the
+    same case again; the system releases it if its holder dies, so nothing waits on a clock."""
+    with open(path.with_suffix(".lock"), "w") as lock:
+        fcntl.flock(lock, fcntl.LOCK_EX)
         try:
-            fd = os.open(lock, os.O_CREAT | os.O_EXCL)
-            break
-        except FileExistsError:
-            if time.monotonic() > deadline:  # a worker died holding it: compute here
-                return make()
-            time.sleep(0.5)
-    try:
-        if path.is_file():
-            return pickle.loads(path.read_bytes())
-        value = make()
-        path.write_bytes(pickle.dumps(value))
-        return value
-    finally:
-        os.close(fd)
-        os.unlink(lock)
+            if path.is_file():
+                return pickle.loads(path.read_bytes())
+            value = make()
+            path.write_bytes(pickle.dumps(value))
+            return value
+        finally:
+            fcntl.flock(lock, fcntl.LOCK_UN)
 
 
 @pytest.fixture(scope="module")
