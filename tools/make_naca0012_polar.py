@@ -42,8 +42,8 @@ by geometry):
 Drag, 0 to 16 degrees: Sheldahl & Klimas 1981 ("Aerodynamic
 characteristics of seven symmetrical airfoil sections through 180-degree
 angle of attack ...", Sandia SAND80-2114), NACA 0012, Re = 2e6 column,
-read from the transcription of their tables by L. Lazauskas (who states
-that he corrected obvious anomalies of the original; the values below
+read from a secondary copy of the report's tables (whose copier states
+that obvious anomalies of the original were corrected; the values below
 were not compared with the report itself). Drag is even in the angle
 for the symmetric section.
 """
@@ -55,7 +55,7 @@ SLOPE_PER_DEG = 0.1025 + 0.00485 * np.log10(RE / 1e6)   # McCroskey 1987 (memory
 CL_MAX = 1.40                       # memory, Re ~ 2e6 (see the module notes)
 STALL_DEG = 17.0                    # read (drag rise, Sheldahl & Klimas) and memory (Abbott & von Doenhoff)
 
-# Sheldahl & Klimas 1981, NACA 0012, Re = 2e6 (read, Lazauskas transcription): alpha_deg -> cd
+# Sheldahl & Klimas 1981, NACA 0012, Re = 2e6 (read from a copy of its tables): alpha_deg -> cd
 CD_SK81_RE2E6 = {
     0: 0.0064, 1: 0.0064, 2: 0.0066, 3: 0.0069, 4: 0.0073, 5: 0.0081, 6: 0.0090, 7: 0.0097, 8: 0.0105,
     9: 0.0113, 10: 0.0128, 11: 0.0140, 12: 0.0155, 13: 0.0172, 14: 0.0191, 15: 0.0213, 16: 0.0237,
@@ -82,7 +82,7 @@ def main() -> None:
     print(f"#     to {a1:.2f} deg, then a parabola (ours) to cl_max {CL_MAX} at {STALL_DEG:g} deg (memory of")
     print("#     McCroskey 1987 and Ladson 1988, NASA TM-4074; stall angle from the drag rise of Sheldahl")
     print("#     & Klimas 1981); the table stops at 16 deg.")
-    print("# cd: Sheldahl & Klimas 1981 (SAND80-2114), Re = 2e6, read from L. Lazauskas's transcription.")
+    print("# cd: Sheldahl & Klimas 1981 (SAND80-2114), Re = 2e6, read from a copy of its tables.")
     print("# source column: cl source ; cd source")
     print("alpha_deg,cl,cd,source")
     for a, l, d in zip(alpha, cl, cd):
