@@ -103,6 +103,25 @@ def _os_words(exc: BaseException) -> str:
     return getattr(exc, "strerror", None) or str(exc) or type(exc).__name__
 
 
+def _existing(option: str, value) -> tuple[str, os.stat_result | None]:
+    """The path text of ``value`` and its status, or None where nothing exists there.
+
+    Raises
+    ------
+    wakes.errors.InputError
+        For an empty path, a NUL character, or a path the system refuses to look at.
+    """
+    text = os.fspath(value)
+    if not text or "\0" in text:
+        raise InputError(f"{option} {text!r}: not a usable path (empty or holding a NUL character)")
+    try:
+        return text, Path(text).stat()
+    except (FileNotFoundError, NotADirectoryError):
+        return text, None
+    except (OSError, ValueError) as exc:
+        raise InputError(f"{option} {text}: cannot use this path ({_os_words(exc)})") from None
+
+
 def writable_path(option: str, value, *, folder: bool) -> Path:
     """Check that a command-line output path can be created or written, before any work.
 
@@ -129,16 +148,8 @@ def writable_path(option: str, value, *, folder: bool) -> Path:
     wakes.errors.InputError
         Naming the option, the path and what is wrong with it.
     """
-    text = os.fspath(value)
-    if not text or "\0" in text:
-        raise InputError(f"{option} {text!r}: not a usable path (empty or holding a NUL character)")
+    text, info = _existing(option, value)
     path = Path(text)
-    try:
-        info = path.stat()
-    except (FileNotFoundError, NotADirectoryError):
-        info = None
-    except (OSError, ValueError) as exc:
-        raise InputError(f"{option} {text}: cannot use this path ({_os_words(exc)})") from None
     if info is not None:
         if folder and not stat.S_ISDIR(info.st_mode):
             raise InputError(f"{option} {text}: exists and is not a folder")
@@ -175,15 +186,9 @@ def readable_file(option: str, value, *, what: str = "file") -> Path:
     wakes.errors.InputError
         Naming the option, the path and what is wrong with it.
     """
-    text = os.fspath(value)
-    if not text or "\0" in text:
-        raise InputError(f"{option} {text!r}: not a usable path (empty or holding a NUL character)")
-    try:
-        info = Path(text).stat()
-    except (FileNotFoundError, NotADirectoryError):
-        raise InputError(f"{option} {text}: {what} not found") from None
-    except (OSError, ValueError) as exc:
-        raise InputError(f"{option} {text}: cannot use this path ({_os_words(exc)})") from None
+    text, info = _existing(option, value)
+    if info is None:
+        raise InputError(f"{option} {text}: {what} not found")
     if stat.S_ISDIR(info.st_mode):
         raise InputError(f"{option} {text}: is a folder; give the {what}")
     if not stat.S_ISREG(info.st_mode):

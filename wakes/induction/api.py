@@ -78,15 +78,7 @@ def induce(sources, targets, *, gradient: bool = False, method: str = "direct",
     their core factor (Katz & Plotkin 2001; Vatistas et al. 1991); a target
     on a singular segment's line gets nothing from that segment.
 
-    Examples
-    --------
-    >>> import numpy as np, wakes
-    >>> ring = wakes.Filaments.from_polyline(
-    ...     [[np.cos(t), np.sin(t), 0.0] for t in np.linspace(0, 2*np.pi, 64, endpoint=False)],
-    ...     circulation=1.0, core_radius=0.01, closed=True)
-    >>> u = wakes.induce(ring, [[0.0, 0.0, 0.0]])
-    >>> round(float(u[0, 2]), 3)   # Gamma/(2R) at the centre
-    0.5
+    The public :func:`wakes.induce` calls this and holds the example.
     """
     src = as_source_list(sources)
     tgt = as_float_array("targets", targets, (None, 3))
