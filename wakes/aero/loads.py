@@ -60,6 +60,10 @@ class StripLoads:
         Section-plane speed used for the coefficients [m/s].
     force_pressure, force_profile : ndarray, shape (n, 3)
         Forces on each strip [N], global frame.
+    flow : ndarray, shape (n, 3), or None
+        Velocity of the air relative to the strip in its section plane
+        [m/s], global frame: ``speed`` along the direction at the
+        effective angle of attack to the chord.
     """
 
     surface: str
@@ -76,6 +80,7 @@ class StripLoads:
     speed: np.ndarray
     force_pressure: np.ndarray
     force_profile: np.ndarray
+    flow: np.ndarray | None = None
 
 
 def _in_plane(v, t, n):
@@ -136,7 +141,7 @@ def strip_loads(surface, gamma: np.ndarray, gamma_prev, dt: float, v_load: np.nd
     return StripLoads(surface.name, surface.section_eta.copy(), surface.section_points.copy(),
                       surface.section_chord.copy(), width, strip_gamma.copy(), np.asarray(cl),
                       np.asarray(cd), alpha_geo, np.asarray(alpha_eff), alpha_geo - alpha_eff,
-                      speed, f_press, f_prof)
+                      speed, f_press, f_prof, speed[:, None] * flow_dir)
 
 
 def trefftz_induced_drag(groups, drag_dir: np.ndarray, density: float) -> list[float]:
