@@ -21,6 +21,7 @@ import pandas as pd
 
 from ..errors import InputError
 from ..induction.elements import Filaments, Particles
+from .atomic import write_text
 
 RUN_MARKERS = ("summary.json", "case.toml", "loads.csv")
 MANIFEST = "manifest.txt"
@@ -179,8 +180,6 @@ def record_files(out: str | os.PathLike, paths) -> Path:
     >>> listed_files(out)
     ['loads.csv', 'manifest.txt']
     """
-    from .atomic import write_text
-
     out = Path(out)
     names = set(listed_files(out)) | {MANIFEST}
     root = out.resolve()
