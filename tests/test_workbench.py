@@ -90,6 +90,17 @@ def test_filament_snapshots_over_time_are_read_back_by_vtk(run_dirs):
     np.testing.assert_allclose(got, segs["gamma_m2_s"], rtol=1e-9)   # CSV keeps 10 digits
 
 
+def test_wing_panels_are_written_beside_every_wake_snapshot(run_dirs):
+    folder, run = run_dirs["filaments"]
+    surfaces = _pvd_files(folder / "wake" / "surfaces.pvd")
+    wake_times = [t for t, _ in _pvd_files(folder / "wake" / "filaments.pvd")]
+    assert set(wake_times) <= {t for t, _ in surfaces}          # the wing at every wake snapshot
+    poly = _read_vtp(surfaces[-1][1])
+    assert poly.GetNumberOfPolys() == 6                         # 6 spanwise panels, a lifting line
+    normal = poly.GetCellData().GetArray("normal")
+    assert all(normal.GetTuple3(i)[2] > 0.9 for i in range(6))  # up, for a lifting wing
+
+
 def _assert_round_off_segments_dropped(segs, rows):
     """The rule behind the segment count: no segment with |Gamma| at round-off is kept.
 
