@@ -50,7 +50,7 @@ from ._version import __version__
 from .budget import check_budget, parse_size
 from .case import MAX_DT, MIN_DT, SCHEDULER_ADDRESS, load_case
 from .errors import MemoryBudgetError, WakesError
-from .estimate import estimate_case
+from .estimate import estimate_case, step_costs
 from .io.atomic import write_text
 from .io.checkpoint import prepare_resume
 from .io.runfolder import record_files
@@ -189,7 +189,7 @@ def _run(args) -> int:
         clear_run(out, keep=case_inputs(case))
     made = _make_folder("--out" if args.resume is None else "--resume", out)
     bar = ProgressBar(case.time.dt, origin=(0, 0.0) if state is None else state.origin,
-                      quiet=args.quiet)
+                      quiet=args.quiet, step_costs=step_costs(case))
     try:
         run = run_guarded(case, out, progress=bar, max_memory=max_memory, resume=state,
                           write=lambda r, o: write_run(r, o, plots=r.status == "finished"
