@@ -100,9 +100,8 @@ class ProgressBar:
             self._first, self._start = step, self.clock()   # the time is measured from here
         sim_time = self.origin[1] + (step - self.origin[0]) * self.dt
         text = wake_text(sim_time, wake)
-        left = self.time_left(step, steps)
-        if left == left:   # not NaN: at least one step timed
-            text += f"  {tqdm.format_interval(left)} left"
+        left = 0.0 if step >= steps else self.time_left(step, steps)
+        text += f"  {'?' if left != left else tqdm.format_interval(left)} left"   # NaN: nothing timed yet
         self._bar.set_postfix_str(text, refresh=False)
         self._bar.update(step - self._bar.n)
         if step >= steps:
