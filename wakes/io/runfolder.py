@@ -33,6 +33,9 @@ class RunFolder:
     loads, sections : pandas.DataFrame
     wake_segments, wake_particles : pandas.DataFrame
         The final wake tables (empty when the run wrote no wake).
+    radial_loading, tip_vortex : pandas.DataFrame
+        Rotors' revolution-averaged radial loading and tip-vortex path
+        (empty when the run has no rotor).
     """
 
     path: Path
@@ -42,6 +45,8 @@ class RunFolder:
     sections: pd.DataFrame
     wake_segments: pd.DataFrame
     wake_particles: pd.DataFrame
+    radial_loading: pd.DataFrame
+    tip_vortex: pd.DataFrame
 
     @property
     def title(self) -> str:
@@ -121,9 +126,7 @@ def read_run(path: str | os.PathLike) -> RunFolder:
         raise InputError(f"run folder file {path / 'summary.json'}: has no 'bodies' entry; "
                          "not written by 'wakes run'")
     empty = pd.DataFrame()
-    tables = {name: (_read_csv(path / name) if (path / name).is_file() else empty)
-              for name in ("sections.csv", "wake_segments.csv", "wake_particles.csv")}
+    tables = {name: (_read_csv(path / f"{name}.csv") if (path / f"{name}.csv").is_file() else empty)
+              for name in ("sections", "wake_segments", "wake_particles", "radial_loading", "tip_vortex")}
     return RunFolder(path=path, case=summary.get("case", {}), summary=summary,
-                     loads=_read_csv(path / "loads.csv"), sections=tables["sections.csv"],
-                     wake_segments=tables["wake_segments.csv"],
-                     wake_particles=tables["wake_particles.csv"])
+                     loads=_read_csv(path / "loads.csv"), **tables)
