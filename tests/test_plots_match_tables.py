@@ -120,7 +120,7 @@ def test_loads_figure_draws_every_body_of_a_mixed_case(runs):
     folder, _ = runs["mixed"]
     panels, fig = _check_loads_figure(folder)
     assert panels["propeller"] == ["CT", "CP", "efficiency"]
-    assert panels["wing"][:2] == ["CL", "CD"] or panels["wing"][:2] == ["CL", "CDi"]
+    assert panels["wing"] == ["CL", "CD", "CM"]
     xlabels = sorted(ax.get_xlabel() for ax in fig.axes if ax.get_xlabel())
     assert xlabels == ["revolutions [-]", "simulated time [s]"]
     assert {ax.get_title("left") for ax in fig.axes} >= {"wing (wing)", "propeller (propeller)"}

@@ -90,6 +90,17 @@ def test_filament_snapshots_over_time_are_read_back_by_vtk(run_dirs):
     np.testing.assert_allclose(got, segs["gamma_m2_s"], rtol=1e-9)   # CSV keeps 10 digits
 
 
+def test_wing_panels_are_written_beside_every_wake_snapshot(run_dirs):
+    folder, run = run_dirs["filaments"]
+    surfaces = _pvd_files(folder / "wake" / "surfaces.pvd")
+    wake_times = [t for t, _ in _pvd_files(folder / "wake" / "filaments.pvd")]
+    assert set(wake_times) <= {t for t, _ in surfaces}          # the wing at every wake snapshot
+    poly = _read_vtp(surfaces[-1][1])
+    assert poly.GetNumberOfPolys() == 6                         # 6 spanwise panels, a lifting line
+    normal = poly.GetCellData().GetArray("normal")
+    assert all(normal.GetTuple3(i)[2] > 0.9 for i in range(6))  # up, for a lifting wing
+
+
 def _assert_round_off_segments_dropped(segs, rows):
     """The rule behind the segment count: no segment with |Gamma| at round-off is kept.
 
@@ -307,3 +318,38 @@ def test_read_run_refuses_a_summary_without_bodies(tmp_path):
     (tmp_path / "summary.json").write_text("[1, 2]")
     with pytest.raises(wakes.WakesError, match="no 'bodies'"):
         read_run(tmp_path)
+
+
+
+def test_probe_sums_in_chunks_with_the_same_result(run_dirs, monkeypatch):
+    """Memory stays bounded: no induce call sees more than CHUNK_POINTS targets, and the
+    chunked sum equals the one-call sum (each target's sum is independent)."""
+    import wakes.probe as probe
+    folder, run = run_dirs["filaments"]
+    pts = np.random.default_rng(5).uniform([-1, -3, -1], [6, 3, 1], size=(23, 3))
+    whole = probe.velocity_at(folder, pts)
+    sizes = []
+    real = probe.induce
+
+    def counting(sources, targets):
+        sizes.append(len(targets))
+        return real(sources, targets)
+
+    monkeypatch.setattr(probe, "CHUNK_POINTS", 5)
+    monkeypatch.setattr(probe, "induce", counting)
+    chunked = probe.velocity_at(folder, pts)
+    assert sizes == [5, 5, 5, 5, 3]
+    pd.testing.assert_frame_equal(chunked, whole)
+
+
+def test_probe_beyond_its_memory_limit_is_refused_with_the_size_and_the_limit(run_dirs, monkeypatch, capsys):
+    import wakes.probe as probe
+    folder, _ = run_dirs["filaments"]
+    monkeypatch.setattr(probe, "MAX_PROBE_BYTES", 1000 * probe.BYTES_PER_POINT)   # 1000 points
+    with pytest.raises(wakes.InputError, match=r"grid 40x30 \(1,200 points\).*limit of 0 MB \(1,000 points"):
+        probe.probe_plane(folder, "x=3", extent="-1:1,-1:1", grid=(40, 30))
+    assert main(["probe", str(folder), "--plane", "x=3", "--extent=-1:1,-1:1", "--grid", "40x30",
+                 "--out", str(folder / "big.csv")]) == 2
+    assert "grid 40x30" in capsys.readouterr().err and not (folder / "big.csv").exists()
+    with pytest.raises(wakes.InputError, match="the points"):
+        probe.velocity_at(folder, np.zeros((1001, 3)))

@@ -53,10 +53,11 @@ from .errors import MemoryBudgetError, WakesError
 from .estimate import estimate_case
 from .io.atomic import write_text
 from .io.checkpoint import prepare_resume
+from .io.runfolder import record_files
 from .plots import plot_run
 from .probe import parse_extent, parse_plane, probe_plane, probe_points
 from .progress import ProgressBar
-from .run import check_new_folder, result_table, run_guarded, warning_lines, write_run
+from .run import case_inputs, check_new_folder, clear_run, result_table, run_guarded, warning_lines, write_run
 from .sweep import parse_vary, sweep
 from .templates import new_case
 from .verify import run_checks
@@ -96,7 +97,8 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--debug", action="store_true", help="show tracebacks of errors")
     run.add_argument("--quiet", action="store_true", help="print nothing but errors")
     run.add_argument("--overwrite", action="store_true",
-                     help="replace the files of an earlier run in DIR")
+                     help="remove the files an earlier run wrote in DIR (those its manifest.txt lists "
+                          "and the run folder's known names; other files stay) before this run starts")
     run.add_argument("--no-plots", action="store_true",
                      help="write no figures (draw them later with 'wakes plot DIR')")
 
@@ -180,6 +182,8 @@ def _run(args) -> int:
         out = check_new_folder(writable_path("--out", args.out, folder=True), args.overwrite)
         case, state = load_case(args.case), None
     check_budget(case, max_memory)       # a refusal leaves nothing behind
+    if args.resume is None and args.overwrite:   # the earlier run's files go now, the user's stay
+        clear_run(out, keep=case_inputs(case))
     made = _make_folder("--out" if args.resume is None else "--resume", out)
     bar = ProgressBar(case.time.dt, origin=(0, 0.0) if state is None else state.origin,
                       quiet=args.quiet)
@@ -295,6 +299,8 @@ def _plot(args) -> int:
     if args.out is not None:
         writable_path("--out", args.out, folder=True)
     paths = plot_run(args.run_dir, out=args.out, overwrite=args.overwrite)
+    if args.out is None:          # figures in the run folder are the run's: --overwrite removes them
+        record_files(args.run_dir, paths)
     for p in paths:
         print(p)
     return 0

@@ -5,8 +5,8 @@ objects, not yet saved); :func:`plot_run` writes them into ``RUN_DIR/plots``.
 Each figure draws one table of the run folder and nothing else:
 
 * ``loads.png`` from ``loads.csv``: every body's history, in a column of
-  its own, of the coefficients of its kind (:data:`LOAD_PANELS`): lift
-  and drag coefficients of a wing against time; thrust and power
+  its own, of the coefficients of its kind (:data:`LOAD_PANELS`): lift,
+  drag and pitching moment coefficients of a wing against time; thrust and power
   coefficients and the figure of merit of a lift rotor, thrust and power
   coefficients and efficiency of a propeller, power and thrust
   coefficients of a turbine, against revolutions;
@@ -34,6 +34,8 @@ from pathlib import Path
 
 import numpy as np
 
+from .case import BODY_TYPES, Case
+from .case.schema import public_fields
 from .errors import InputError
 from .io.atomic import write_bytes
 from .io.runfolder import read_run
@@ -57,7 +59,8 @@ MAX_WAKE_SEGMENTS_DRAWN = 30000   # a 3-D line plot beyond this takes minutes; e
 #: Axis label of each figure of ``summary.json`` and ``loads.csv`` drawn as a curve.
 QUANTITY_LABELS = {
     "CL": "lift coefficient C_L [-]", "CD": "drag coefficient C_D [-]",
-    "CDi": "induced drag coefficient C_Di [-]", "Cm": "pitching moment coefficient C_m [-]",
+    "CDi": "induced drag coefficient C_Di [-]", "CM": "pitching moment coefficient C_m [-]",
+    "lift_to_drag": "lift-to-drag ratio L/D [-]",
     "span_efficiency": "span efficiency e [-]", "CT": "thrust coefficient C_T [-]",
     "CP": "power coefficient C_P [-]", "CQ": "torque coefficient C_Q [-]", "FM": "figure of merit FM [-]",
     "efficiency": "propulsive efficiency η [-]", "J": "advance ratio J [-]",
@@ -67,7 +70,7 @@ QUANTITY_LABELS = {
 #: Load history panels of each body kind, by preference: those with data are drawn, at most three.
 #: A lift rotor's C_Q equals its C_P (both scale with (Omega R)^2 and Omega R), so only C_P is drawn.
 LOAD_PANELS = {
-    "wing": ("CL", "CD", "CDi", "Cm"),
+    "wing": ("CL", "CD", "CM", "CDi"),
     "rotor": ("CT", "CP", "FM"),
     "propeller": ("CT", "CP", "efficiency"),
     "turbine": ("CP", "CT", "tip_speed_ratio"),
@@ -379,9 +382,6 @@ def key_label(key: str, case: dict | None = None) -> str:
     >>> key_label("bodies.prop.airfoil.cd0")
     'prop airfoil: cd0 [-]'
     """
-    from .case import BODY_TYPES, Case
-    from .case.schema import public_fields
-
     parts = key.split(".")
     classes, context = [Case], []
     i = 0

@@ -19,12 +19,18 @@ import pandas as pd
 from .polars import SectionPolars
 from .rotor import blade_turn_deg, is_axial_flow
 from .rotor_loads import (
+    FLOW_COLUMNS,
     KIND_COLUMNS,
     averaged_radial_table,
     blade_forces,
     coefficients,
+    freestream_ratios,
+    inflow_ratio,
     last_revolution,
+    near_hover,
+    power_split,
     radial_table,
+    shaft_torques,
     strip_distributions,
 )
 from .rotor_wake import BladeSymmetry, RolledUpWake, StartupDrift, tip_vortex_table
@@ -63,7 +69,7 @@ class RotorBody:
         # propeller: flight speed along the axis; turbine: wind speed; rotor: unused
         self.speed = {"propeller": float(-(v_inf @ self.axis)), "turbine": float(np.linalg.norm(v_inf)),
                       "rotor": 0.0}[self.kind]
-        self.hover = not np.any(v_inf)
+        self.mu, self.climb_ratio = freestream_ratios(v_inf, self.axis, g.omega, g.radius)
         self.axial_flow = is_axial_flow(v_inf, self.axis)
         self.dt = case.time.dt
         self.end_time = (case.time.steps - 1) * case.time.dt
@@ -115,7 +121,7 @@ class RotorBody:
         return wake
 
     def loads_row(self, strips: list, trefftz_drag: float) -> dict:
-        """Thrust, torque, power and coefficients of the kind, power split, thrust per blade.
+        """Thrust, torque, power and coefficients of the kind, power split, flow ratios, thrust per blade.
 
         Keeps the section values of the last ``steps_per_revolution`` steps
         and, over the last revolution, samples blade 1's tip-vortex path,
@@ -124,8 +130,12 @@ class RotorBody:
         f = blade_forces(strips, self.hub, self.axis, self.geometry.spin)
         self._radial_samples.append(strip_distributions(strips, dr=self.dr, hub=self.hub, axis=self.axis,
                                                         spin=self.geometry.spin))
+        g = self.geometry
         row = self._totals(float(f["thrust"].sum()), float(f["torque_induced"].sum()),
                            float(f["torque_profile"].sum()))
+        row["advance_ratio_mu"] = self.mu
+        row["inflow_ratio_lambda"] = inflow_ratio(self.kind, strips, self.axis, self.r, self.dr, g.omega,
+                                                  g.radius)
         for k, t in enumerate(f["thrust"]):
             row[f"blade_{k + 1}_thrust_N"] = float(t)
         if self._wakes:
@@ -138,9 +148,9 @@ class RotorBody:
     def _totals(self, thrust: float, torque_induced: float, torque_profile: float) -> dict:
         g = self.geometry
         row = coefficients(self.kind, thrust=thrust, torque=torque_induced + torque_profile,
-                           omega=g.omega, radius=g.radius, density=self.density, speed=self.speed)
-        row["induced_power_W"] = g.omega * torque_induced
-        row["profile_power_W"] = g.omega * torque_profile
+                           omega=g.omega, radius=g.radius, density=self.density, speed=self.speed,
+                           mu=self.mu, climb_ratio=self.climb_ratio)
+        row.update(power_split(self.kind, g.omega, torque_induced, torque_profile))
         return row
 
     def section_table(self, strips: list) -> pd.DataFrame:
@@ -176,8 +186,11 @@ class RotorBody:
         ``steps_per_revolution`` steps; the coefficients are those of the
         averages. ``thrust_change_last_revolution`` compares the mean
         thrust of the last two revolutions (relative), a convergence
-        indicator (NaN with fewer than two revolutions). In hover (no
-        freestream) a lift rotor also reports the induced-power factor
+        indicator (NaN with fewer than two revolutions). The flow ratios
+        mu and lambda are the last revolution's means
+        (:mod:`wakes.aero.rotor_loads`). Near hover
+        (:func:`wakes.aero.rotor_loads.near_hover`, the figure of merit's
+        rule) a lift rotor also reports the induced-power factor
         kappa = P_induced / (T^(3/2)/sqrt(2 rho A)) of momentum theory.
         ``collective_deg`` is the case's collective (the pitch where the
         twist is zero) and ``pitch_075R_deg`` the blade pitch, collective
@@ -191,14 +204,16 @@ class RotorBody:
         thrust = float(last["thrust_N"].mean())
         p_ind = float(last["induced_power_W"].mean())
         p_pro = float(last["profile_power_W"].mean())
-        out = self._totals(thrust, p_ind / g.omega, p_pro / g.omega)
+        out = self._totals(thrust, *shaft_torques(self.kind, g.omega, p_ind, p_pro))
         out = {k: float(out[k]) for k in KIND_COLUMNS[self.kind] + _EXTRA_SUMMARY}
+        out.update({k: float(last[k].mean()) for k in FLOW_COLUMNS})
         if len(mine) >= 2 * n:
             before = float(mine["thrust_N"].iloc[-2 * n:-n].mean())
             out["thrust_change_last_revolution"] = (thrust - before) / abs(before) if before else float("nan")
         else:
             out["thrust_change_last_revolution"] = float("nan")
-        if self.kind == "rotor" and self.hover:
+        ct = out["CT"] if self.kind == "rotor" else float("nan")
+        if self.kind == "rotor" and near_hover(self.mu, self.climb_ratio, ct):
             ideal = max(thrust, 0.0) ** 1.5 / np.sqrt(2.0 * self.density * g.disc_area)
             out["induced_power_factor"] = float(p_ind / ideal) if ideal > 0 else float("nan")
         out["revolutions"] = float((len(mine) - 1) * self.dt / g.period)
