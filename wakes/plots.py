@@ -428,9 +428,9 @@ def sweep_figure(table, key: str, case: dict | None = None):
     -------
     matplotlib.figure.Figure or None
         One panel per coefficient of :data:`SWEEP_PANELS` present, at most
-        four, over the points that did not fail.
+        four, over the points that ran or were reused (not those failed or stopped).
     """
-    ok = table[table["status"] != "failed"]
+    ok = table[table["status"].isin(("ran", "reused"))]
     cols = [c for base in SWEEP_PANELS for c in table.columns if c == base or c.endswith("." + base)][:4]
     if not cols or not len(ok) or not np.issubdtype(table[key].dtype, np.number):
         return None
