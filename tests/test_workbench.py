@@ -320,24 +320,6 @@ def test_read_run_refuses_a_summary_without_bodies(tmp_path):
         read_run(tmp_path)
 
 
-def test_tip_vortex_figure_leaves_out_the_root_vortex():
-    """Tip (r = 0.8 R, +Γ) and root (r = 0.2 R, -Γ) helices of equal strength,
-    and a weak sheet: only the tip helix is picked."""
-    import pandas as pd
-    from wakes.plots import tip_vortex_points
-
-    psi = np.linspace(0.0, 4 * np.pi, 49)
-    rows = []
-    for r, g in ((0.8, 1.0), (0.2, -1.0), (0.5, 0.1)):
-        pts = np.column_stack([r * np.cos(psi), r * np.sin(psi), -0.05 * psi])
-        for a, b in zip(pts[:-1], pts[1:]):
-            rows.append({"x0_m": a[0], "y0_m": a[1], "z0_m": a[2],
-                         "x1_m": b[0], "y1_m": b[1], "z1_m": b[2], "gamma_m2_s": g})
-    axial, radial = tip_vortex_points(pd.DataFrame(rows), {"hub": [0, 0, 0], "axis": [0, 0, 1]})
-    assert len(radial) == 48
-    np.testing.assert_allclose(radial, 0.8 * np.cos(np.diff(psi)[0] / 2), rtol=1e-12)
-    assert axial.max() < 0.0
-
 
 def test_probe_sums_in_chunks_with_the_same_result(run_dirs, monkeypatch):
     """Memory stays bounded: no induce call sees more than CHUNK_POINTS targets, and the

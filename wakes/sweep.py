@@ -45,21 +45,19 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import numba
-import numpy as np
 import pandas as pd
 
 from .case import Case, parse_case, read_toml
 from .cluster import connect
 from .errors import CaseError, InputError, WakesError
 from .io import atomic
+from .plots import save_figure, sweep_figure
 from .run import run_guarded, write_run
 
 POINT_RECORD = "point.json"
 LISTED_BAD_POINTS = 10     # bad points named one by one in the refusal before a sweep runs
 # the libraries whose log lines and warnings a sweep keeps off the terminal
 QUIET_LIBRARIES = ("distributed", "dask", "tornado", "asyncio", "bokeh")
-# Coefficients plotted against the first varied key, in this order, when present.
-PLOTTED = ("CT", "CP", "FM", "efficiency", "CQ", "CL", "CDi", "span_efficiency")
 
 
 @dataclass(frozen=True)
@@ -499,10 +497,10 @@ def sweep(case, vary: dict, *, out="sweep", zipped: bool = False, client=None,
                                      if summary is not None else
                                      {"status": "stopped", "error": "stopped by Ctrl-C before it finished"})
             table = _table(points, rows)
-            _write_outputs(table, list(vary), out)
+            _write_outputs(table, list(vary), out, raw)
         raise SweepStopped(table, out, remote=client is not None or bool(scheduler)) from None
     table = _table(points, rows)
-    _write_outputs(table, list(vary), out)
+    _write_outputs(table, list(vary), out, raw)
     return table
 
 
@@ -570,7 +568,7 @@ def _close(client, cluster) -> None:
         cluster.close()
 
 
-def _write_outputs(table: pd.DataFrame, keys: list, out: Path) -> None:
+def _write_outputs(table: pd.DataFrame, keys: list, out: Path, raw: dict) -> None:
     out.mkdir(parents=True, exist_ok=True)
     atomic.write_text(out / "sweep.csv", table.to_csv(index=False, float_format="%.10g"))
     try:
@@ -581,31 +579,6 @@ def _write_outputs(table: pd.DataFrame, keys: list, out: Path) -> None:
         atomic.write_bytes(out / "sweep.parquet", buf.getvalue())
     except ImportError:
         pass
-    _plot(table, keys[0], out / "sweep.png")
-
-
-def _plot(table: pd.DataFrame, key: str, path: Path) -> None:
-    import matplotlib  # optional heavy library: loaded only when drawing
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt  # after choosing the Agg backend
-
-    ok = table[table["status"] != "failed"]
-    cols = [c for c in table.columns for base in PLOTTED
-            if c == base or c.endswith("." + base)][:4]
-    if not cols or not len(ok) or not np.issubdtype(table[key].dtype, np.number):
-        return
-    fig, axes = plt.subplots(len(cols), 1, figsize=(6, 2.3 * len(cols)), sharex=True,
-                             squeeze=False)
-    order = ok.sort_values(key)
-    for ax, c in zip(axes[:, 0], cols):
-        ax.plot(order[key], order[c], "o-", color="#1f5f8b")
-        ax.set_ylabel(c)
-        ax.grid(alpha=0.3)
-    axes[-1, 0].set_xlabel(key)
-    axes[0, 0].set_title(f"sweep over {key}")
-    fig.tight_layout()
-    buf = io.BytesIO()
-    fig.savefig(buf, format="png", dpi=120)
-    plt.close(fig)
-    atomic.write_bytes(path, buf.getvalue())
+    fig = sweep_figure(table, keys[0], raw)
+    if fig is not None:
+        save_figure(fig, out / "sweep.png")

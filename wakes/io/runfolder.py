@@ -21,6 +21,7 @@ import pandas as pd
 
 from ..errors import InputError
 from ..induction.elements import Filaments, Particles
+from .atomic import write_text
 
 RUN_MARKERS = ("summary.json", "case.toml", "loads.csv")
 MANIFEST = "manifest.txt"
@@ -50,6 +51,9 @@ class RunFolder:
     loads, sections : pandas.DataFrame
     wake_segments, wake_particles : pandas.DataFrame
         The final wake tables (empty when the run wrote no wake).
+    radial_loading, tip_vortex : pandas.DataFrame
+        Rotors' revolution-averaged radial loading and tip-vortex path
+        (empty when the run has no rotor).
     """
 
     path: Path
@@ -59,6 +63,8 @@ class RunFolder:
     sections: pd.DataFrame
     wake_segments: pd.DataFrame
     wake_particles: pd.DataFrame
+    radial_loading: pd.DataFrame
+    tip_vortex: pd.DataFrame
 
     @property
     def title(self) -> str:
@@ -138,12 +144,10 @@ def read_run(path: str | os.PathLike) -> RunFolder:
         raise InputError(f"run folder file {path / 'summary.json'}: has no 'bodies' entry; "
                          "not written by 'wakes run'")
     empty = pd.DataFrame()
-    tables = {name: (_read_csv(path / name) if (path / name).is_file() else empty)
-              for name in ("sections.csv", "wake_segments.csv", "wake_particles.csv")}
+    tables = {name: (_read_csv(path / f"{name}.csv") if (path / f"{name}.csv").is_file() else empty)
+              for name in ("sections", "wake_segments", "wake_particles", "radial_loading", "tip_vortex")}
     return RunFolder(path=path, case=summary.get("case", {}), summary=summary,
-                     loads=_read_csv(path / "loads.csv"), sections=tables["sections.csv"],
-                     wake_segments=tables["wake_segments.csv"],
-                     wake_particles=tables["wake_particles.csv"])
+                     loads=_read_csv(path / "loads.csv"), **tables)
 
 
 def _inside(out: Path, rel: str) -> Path | None:
@@ -179,8 +183,6 @@ def record_files(out: str | os.PathLike, paths) -> Path:
     >>> listed_files(out)
     ['loads.csv', 'manifest.txt']
     """
-    from .atomic import write_text
-
     out = Path(out)
     names = set(listed_files(out)) | {MANIFEST}
     root = out.resolve()
