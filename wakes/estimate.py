@@ -93,9 +93,10 @@ class Estimate:
         Biot–Savart pairs of a direct summation over the whole run.
     pair_rate_per_s : float
         Pairs per second of the yardstick measured on this machine (direct
-        sum, the ``vatistas2`` core on one thread).
+        sum, the ``vatistas2`` core, with this process's numba threads).
     run_time_s : float
-        Estimated wall time [s] on one thread with direct summation; a
+        Estimated wall time [s] with direct summation at the yardstick's
+        rate (so with the same numba threads as the yardstick); a
         treecode (``[wake] induction``) is faster on large wakes.
     step_times_s : ndarray, shape (steps,)
         Estimated wall time [s] of every step (their sum is ``run_time_s``),
@@ -123,7 +124,7 @@ class Estimate:
                 ("final wake", f"{self.final_segments:,} segments, {self.final_particles:,} particles"),
                 ("memory", f"about {self.memory_mb:,.0f} MB"),
                 ("Biot-Savart pairs", f"{self.pair_evaluations:.3g} (direct sum)"),
-                ("run time", f"about {_duration(self.run_time_s)} on one thread (direct sum; "
+                ("run time", f"about {_duration(self.run_time_s)} (direct sum; "
                              f"yardstick {self.pair_rate_per_s:.3g} pairs/s measured here)")]
 
 
