@@ -12,7 +12,8 @@ from pathlib import Path
 import pandas as pd
 import pytest
 from wakes.cli import main
-from wakes.io.runfolder import MANIFEST, listed_files
+from wakes.io.runfolder import MANIFEST, PLOT_FILES, listed_files
+from wakes.plots import FIGURES
 
 TINY = """
 title = "tiny"
@@ -199,3 +200,8 @@ def test_set_applies_to_every_point_of_a_sweep(tmp_path):
         case = tomllib.loads((folder / "case.toml").read_text())
         assert case["time"]["steps"] == 2 and case["freestream"]["speed"] == 8.0
         assert case["freestream"]["angle_of_attack"] == alpha
+
+
+def test_the_run_folders_known_figure_names_are_the_figures_a_run_draws():
+    # the names --overwrite removes in a folder without manifest.txt
+    assert set(PLOT_FILES) == set(FIGURES)

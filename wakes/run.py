@@ -16,11 +16,14 @@ A run folder holds (see the README for the columns)::
                          status, reason, last step and resume, and plausibility warnings
     loads.csv            one row per step and body
     sections.csv         span or radial distributions at the last step
+    radial_loading.csv, tip_vortex.csv    rotors: radial loading averaged over the last
+                         revolution and the blades; the tip vortex's path
     loads.parquet, sections.parquet    the same tables, when pyarrow is installed
     wake_segments.csv, wake_particles.csv   the final wake as tables
     wake/filaments_NNNNNN.vtp, wake/particles_NNNNNN.vtp   VTK PolyData wake snapshots,
+    wake/surfaces_NNNNNN.vtp  the wings' and blades' panels at the same times,
                          every [output] snapshot_every steps and at the end
-    wake/filaments.pvd, wake/particles.pvd                 ParaView collections over time
+    wake/filaments.pvd, wake/particles.pvd, wake/surfaces.pvd   ParaView collections over time
     checkpoints/         the state to resume from (while a run is unfinished)
     plots/*.png          figures (:mod:`wakes.plots`)
     manifest.txt         every file the run wrote: what ``--overwrite`` removes before a new run
@@ -286,7 +289,8 @@ def write_run(run, out: str | os.PathLike, *, plots: bool = True) -> list[Path]:
     paths = run.write(out)
     sources = [e for elements in run.wake.values() for e in elements]
     snapshots = WakeSnapshots(out, keep_before=run.wake_step)
-    paths += snapshots.write(run.wake_step, run.wake_time_s, sources) + write_parquet(run, out)
+    paths += (snapshots.write(run.wake_step, run.wake_time_s, sources, run.surfaces(run.wake_time_s))
+              + write_parquet(run, out))
     if plots:
         paths += plot_run(out, overwrite=True)
     record_files(out, paths)

@@ -21,6 +21,7 @@ from .rotor import blade_turn_deg, is_axial_flow
 from .rotor_loads import (
     FLOW_COLUMNS,
     KIND_COLUMNS,
+    averaged_radial_table,
     blade_forces,
     coefficients,
     freestream_ratios,
@@ -30,6 +31,7 @@ from .rotor_loads import (
     power_split,
     radial_table,
     shaft_torques,
+    strip_distributions,
 )
 from .rotor_wake import BladeSymmetry, RolledUpWake, StartupDrift, tip_vortex_table
 from .sections import make_polar
@@ -77,6 +79,9 @@ class RotorBody:
         self._symmetry = None
         self._wakes = []
         self._tip_samples = collections.deque(maxlen=self.steps_per_revolution)
+        # the section values of the last steps_per_revolution steps: the last full revolution's
+        self._radial_samples = collections.deque(maxlen=self.steps_per_revolution)
+        self._chord = g.chord((self.r - g.root_cutout) / (g.radius - g.root_cutout))
 
     def surfaces(self, time: float) -> list:
         """The blades at ``time`` [s], one lifting-line surface each, named ``NAME/blade K``."""
@@ -118,10 +123,13 @@ class RotorBody:
     def loads_row(self, strips: list, trefftz_drag: float) -> dict:
         """Thrust, torque, power and coefficients of the kind, power split, flow ratios, thrust per blade.
 
-        Over the last revolution also samples blade 1's tip-vortex path
+        Keeps the section values of the last ``steps_per_revolution`` steps
+        and, over the last revolution, samples blade 1's tip-vortex path,
         for :meth:`tables`.
         """
         f = blade_forces(strips, self.hub, self.axis, self.geometry.spin)
+        self._radial_samples.append(strip_distributions(strips, dr=self.dr, hub=self.hub, axis=self.axis,
+                                                        spin=self.geometry.spin))
         g = self.geometry
         row = self._totals(float(f["thrust"].sum()), float(f["torque_induced"].sum()),
                            float(f["torque_profile"].sum()))
@@ -152,12 +160,24 @@ class RotorBody:
                             pitch_deg=self.pitch_deg, hub=self.hub, axis=self.axis, spin=g.spin)
 
     def tables(self) -> dict:
-        """Extra result tables: ``{"tip_vortex.csv": ...}`` (:func:`tip_vortex_table`), if any."""
-        if not self._tip_samples:
-            return {}
+        """Extra result tables, those there are data for.
+
+        ``radial_loading.csv``: the radial loading averaged over the last
+        full revolution (the last ``steps_per_revolution`` steps, or the
+        steps done since a resume if fewer) and over the blades
+        (:func:`averaged_radial_table`); ``tip_vortex.csv``: blade 1's
+        tip-vortex path (:func:`tip_vortex_table`).
+        """
         g = self.geometry
-        return {"tip_vortex.csv": tip_vortex_table(self.name, list(self._tip_samples), hub=self.hub,
-                                                   axis=self.axis, radius=g.radius, omega=g.omega)}
+        out = {}
+        if self._radial_samples:
+            out["radial_loading.csv"] = averaged_radial_table(
+                self.name, list(self._radial_samples), radius=g.radius, r=self.r, chord=self._chord,
+                pitch_deg=self.pitch_deg)
+        if self._tip_samples:
+            out["tip_vortex.csv"] = tip_vortex_table(self.name, list(self._tip_samples), hub=self.hub,
+                                                     axis=self.axis, radius=g.radius, omega=g.omega)
+        return out
 
     def summary(self, loads: pd.DataFrame) -> dict:
         """Loads averaged over the last full revolution, and how much they still change.
@@ -172,6 +192,10 @@ class RotorBody:
         (:func:`wakes.aero.rotor_loads.near_hover`, the figure of merit's
         rule) a lift rotor also reports the induced-power factor
         kappa = P_induced / (T^(3/2)/sqrt(2 rho A)) of momentum theory.
+        ``collective_deg`` is the case's collective (the pitch where the
+        twist is zero) and ``pitch_075R_deg`` the blade pitch, collective
+        plus twist, at r = 0.75 R, where the collective of a twisted blade is
+        commonly quoted [deg] (NaN when 0.75 R lies inside the root cut-out).
         """
         mine = loads[loads["body"] == self.name]
         n = self.steps_per_revolution
@@ -195,4 +219,7 @@ class RotorBody:
         out["revolutions"] = float((len(mine) - 1) * self.dt / g.period)
         out["averaged_steps"] = int(len(last))
         out["solidity"] = float(g.solidity())
+        out["collective_deg"] = float(g.collective)
+        eta_075 = (0.75 * g.radius - g.root_cutout) / (g.radius - g.root_cutout)
+        out["pitch_075R_deg"] = float(g.pitch(eta_075)) if eta_075 >= 0.0 else float("nan")
         return out

@@ -265,6 +265,41 @@ def coefficients(kind: str, *, thrust: float, torque: float, omega: float, radiu
     raise ValueError(kind)
 
 
+def strip_distributions(strips, *, dr: np.ndarray, hub: np.ndarray, axis: np.ndarray,
+                        spin: int) -> dict:
+    """Section values of every blade and strip at one step, as arrays.
+
+    Parameters
+    ----------
+    strips : list of StripLoads
+        One per blade, B of them, n strips each.
+    dr : ndarray, shape (n,)
+        Strip width [m], in the strips' order.
+    hub, axis : ndarray, shape (3,)
+        Hub centre [m] and unit thrust axis.
+    spin : int
+        +1 or -1.
+
+    Returns
+    -------
+    dict of ndarray, each shape (B, n)
+        ``gamma_m2_s`` (bound circulation), ``cl``, ``cd``, ``alpha_deg``
+        (effective angle of attack), ``dT_dr_N_per_m`` (thrust per unit
+        radius, the force along the axis) and ``dQ_dr_N`` (shaft torque per
+        unit radius), in the strips' order.
+    """
+    out = {k: [] for k in ("gamma_m2_s", "cl", "cd", "alpha_deg", "dT_dr_N_per_m", "dQ_dr_N")}
+    for s in strips:
+        f = s.force_pressure + s.force_profile
+        out["gamma_m2_s"].append(s.gamma)
+        out["cl"].append(s.cl)
+        out["cd"].append(s.cd)
+        out["alpha_deg"].append(np.degrees(s.alpha_effective))
+        out["dT_dr_N_per_m"].append((f @ axis) / dr)
+        out["dQ_dr_N"].append(-spin * (np.cross(s.points - hub, f) @ axis) / dr)
+    return {k: np.asarray(v, dtype=np.float64).reshape(len(strips), -1) for k, v in out.items()}
+
+
 def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndarray,
                  pitch_deg: np.ndarray, hub: np.ndarray, axis: np.ndarray, spin: int) -> pd.DataFrame:
     """Radial distributions of every blade: circulation, cl, angles, dT/dr and dQ/dr.
@@ -298,19 +333,64 @@ def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndar
         blade's plane of rotation), ``dT_dr_N_per_m``, ``dQ_dr_N`` (shaft
         torque per unit radius).
     """
+    d = strip_distributions(strips, dr=dr, hub=hub, axis=axis, spin=spin)
     frames = []
     for k, s in enumerate(strips):
-        arm = s.points - hub
-        f = s.force_pressure + s.force_profile
         frames.append(pd.DataFrame({
             "body": name, "blade": k + 1, "strip": np.arange(r.shape[0]), "r_m": r,
-            "r_over_R": r / radius, "chord_m": s.chord, "gamma_m2_s": s.gamma, "cl": s.cl, "cd": s.cd,
-            "pitch_deg": pitch_deg, "alpha_deg": np.degrees(s.alpha_effective),
-            "inflow_angle_deg": pitch_deg - np.degrees(s.alpha_effective),
-            "dT_dr_N_per_m": (f @ axis) / dr,
-            "dQ_dr_N": -spin * (np.cross(arm, f) @ axis) / dr,
+            "r_over_R": r / radius, "chord_m": s.chord, "gamma_m2_s": d["gamma_m2_s"][k], "cl": d["cl"][k],
+            "cd": d["cd"][k], "pitch_deg": pitch_deg, "alpha_deg": d["alpha_deg"][k],
+            "inflow_angle_deg": pitch_deg - d["alpha_deg"][k],
+            "dT_dr_N_per_m": d["dT_dr_N_per_m"][k], "dQ_dr_N": d["dQ_dr_N"][k],
         }).sort_values("r_m"))
     return pd.concat(frames, ignore_index=True)
+
+
+def averaged_radial_table(name: str, samples: list, *, radius: float, r: np.ndarray, chord: np.ndarray,
+                          pitch_deg: np.ndarray) -> pd.DataFrame:
+    """Radial loading averaged over steps and blades: a rotor's revolution-averaged loading.
+
+    Parameters
+    ----------
+    name : str
+        Body name.
+    samples : list of dict
+        :func:`strip_distributions` of successive steps (those of the last
+        full revolution), each array shape (B, n).
+    radius : float
+        R [m].
+    r, chord, pitch_deg : ndarray, shape (n,)
+        Section radius [m], chord [m] and pitch (collective + twist) [deg],
+        in the strips' order.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per strip, root to tip: ``body``, ``r_over_R``, ``r_m``,
+        ``chord_m``, ``pitch_deg``, then the means over every sample and
+        blade of ``gamma_m2_s``, ``cl``, ``cd``, ``alpha_deg``,
+        ``dT_dr_N_per_m`` and ``dQ_dr_N``; ``inflow_angle_deg`` = pitch
+        minus the mean ``alpha_deg``; ``steps_averaged`` (samples) and
+        ``blades_averaged``.
+
+    Examples
+    --------
+    >>> step = {"gamma_m2_s": np.array([[1.0, 2.0], [3.0, 4.0]])}
+    >>> t = averaged_radial_table("rotor", [step], radius=1.0, r=np.array([0.4, 0.8]),
+    ...                           chord=np.array([0.1, 0.1]), pitch_deg=np.array([8.0, 4.0]))
+    >>> t["gamma_m2_s"].tolist(), int(t["blades_averaged"].iloc[0])
+    ([2.0, 3.0], 2)
+    """
+    order = np.argsort(r)
+    table = pd.DataFrame({"body": name, "r_over_R": r[order] / radius, "r_m": r[order],
+                          "chord_m": chord[order], "pitch_deg": pitch_deg[order]})
+    for key in samples[0]:
+        table[key] = np.mean([s[key] for s in samples], axis=(0, 1))[order]
+    if "alpha_deg" in table:
+        table["inflow_angle_deg"] = table["pitch_deg"] - table["alpha_deg"]
+    table["steps_averaged"] = len(samples)
+    table["blades_averaged"] = samples[0][next(iter(samples[0]))].shape[0]
+    return table
 
 
 def last_revolution(frame: pd.DataFrame, steps_per_revolution: int) -> pd.DataFrame:

@@ -22,6 +22,7 @@ import pandas as pd
 from ..errors import InputError
 from ..induction.elements import Filaments, Particles
 from .atomic import write_text
+from .snapshots import KINDS as SNAPSHOT_KINDS
 
 RUN_MARKERS = ("summary.json", "case.toml", "loads.csv")
 MANIFEST = "manifest.txt"
@@ -33,7 +34,7 @@ PLOT_FILES = ("loads.png", "span_loading.png", "radial_loading.png", "wake_3d.pn
 RUN_SUBFOLDERS = ("wake", "checkpoints", "plots", "polars")   # made by a run; removed when left empty
 # Known patterns: snapshots, checkpoints, the default outputs of 'wakes probe' (of the run's wake)
 # and the temporary file of a write killed half way (.NAME.RANDOM.part).
-_OWNED = re.compile(r"^(?:wake/(?:filaments|particles)(?:_\d{6,}\.vtp|\.pvd)|checkpoints/step-\d{7,}\.npz"
+_OWNED = re.compile(rf"^(?:wake/(?:{'|'.join(SNAPSHOT_KINDS)})(?:_\d{{6,}}\.vtp|\.pvd)|checkpoints/step-\d{{7,}}\.npz"
                     r"|probe_points\.csv|probe_plane_[xyz][^/]*\.(?:csv|vts)"
                     r"|(?:(?:wake|checkpoints|plots|polars)/)?\.[^/]+\.part)$")
 
@@ -51,6 +52,9 @@ class RunFolder:
     loads, sections : pandas.DataFrame
     wake_segments, wake_particles : pandas.DataFrame
         The final wake tables (empty when the run wrote no wake).
+    radial_loading, tip_vortex : pandas.DataFrame
+        Rotors' revolution-averaged radial loading and tip-vortex path
+        (empty when the run has no rotor).
     """
 
     path: Path
@@ -60,6 +64,8 @@ class RunFolder:
     sections: pd.DataFrame
     wake_segments: pd.DataFrame
     wake_particles: pd.DataFrame
+    radial_loading: pd.DataFrame
+    tip_vortex: pd.DataFrame
 
     @property
     def title(self) -> str:
@@ -139,12 +145,10 @@ def read_run(path: str | os.PathLike) -> RunFolder:
         raise InputError(f"run folder file {path / 'summary.json'}: has no 'bodies' entry; "
                          "not written by 'wakes run'")
     empty = pd.DataFrame()
-    tables = {name: (_read_csv(path / name) if (path / name).is_file() else empty)
-              for name in ("sections.csv", "wake_segments.csv", "wake_particles.csv")}
+    tables = {name: (_read_csv(path / f"{name}.csv") if (path / f"{name}.csv").is_file() else empty)
+              for name in ("sections", "wake_segments", "wake_particles", "radial_loading", "tip_vortex")}
     return RunFolder(path=path, case=summary.get("case", {}), summary=summary,
-                     loads=_read_csv(path / "loads.csv"), sections=tables["sections.csv"],
-                     wake_segments=tables["wake_segments.csv"],
-                     wake_particles=tables["wake_particles.csv"])
+                     loads=_read_csv(path / "loads.csv"), **tables)
 
 
 def _inside(out: Path, rel: str) -> Path | None:
