@@ -13,8 +13,8 @@ from wakes.aero.rotor_wake import RolledUpWake
 from wakes.aero.wake import WakeSettings, WakeSheet
 from wakes.aero.wake_motion import march
 from wakes.case import parse_case
-from wakes.run import run_case
 from wakes.induction.api import induce
+from wakes.run import run_case
 from wakes.vortex.dynamics import stretching_rate
 from wakes.vortex.integrators import INTEGRATORS
 
