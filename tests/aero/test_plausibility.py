@@ -85,13 +85,13 @@ def test_induced_power_factor_above_one_or_absent_is_silent():
                                              "wing": {"CL": 0.5}}}) == []
 
 
-def test_figure_of_merit_above_bound_is_flagged_in_hover_only(tmp_path):
+def test_figure_of_merit_above_bound_is_flagged_where_reported(tmp_path):
     hover = _rotor_case(tmp_path)
     assert _codes(P.check_figure_of_merit({"bodies": {"rotor": {"FM": 0.9}}}, hover)) == ["figure-of-merit-high"]
     assert P.check_figure_of_merit({"bodies": {"rotor": {"FM": 0.72}}}, hover) == []
-    # in edgewise flight the induced power drops and FM means nothing: not judged
+    # in edgewise flight FM means nothing and is reported as NaN: not judged
     forward = _rotor_case(tmp_path, speed=20.0, name="forward")
-    assert P.check_figure_of_merit({"bodies": {"forward": {"FM": 0.9}}}, forward) == []
+    assert P.check_figure_of_merit({"bodies": {"forward": {"FM": float("nan")}}}, forward) == []
 
 
 def test_turbine_power_bound_is_the_actuator_disc():
