@@ -9,7 +9,7 @@ import pandas as pd
 import pytest
 from wakes.case import parse_case
 from wakes.io.runfolder import read_run
-from wakes.plots import QUANTITY_LABELS, figures, key_label, plot_run, sweep_figure
+from wakes.plots import QUANTITY_LABELS, figures, key_label, load_panels, plot_run, sweep_figure
 from wakes.run import run_case
 
 # A wing with a propeller ahead of it (the shape of cases/propeller-wing.toml, coarser:
@@ -133,6 +133,14 @@ def test_loads_figure_of_a_lift_rotor_is_coefficients_against_revolutions(runs):
     assert [ax.get_xlabel() for ax in fig.axes if ax.get_xlabel()] == ["revolutions [-]"]
     revolutions = folder.summary["bodies"]["lift"]["revolutions"]
     assert max(fig.axes[0].get_lines()[0].get_xdata()) == pytest.approx(revolutions, rel=1e-9)
+
+
+def test_load_panels_of_a_turbine_and_of_a_rotor_in_forward_flight():
+    frame = pd.DataFrame({"CP": [0.4, 0.45], "CT": [0.7, 0.8], "tip_speed_ratio": [6.5, 6.5],
+                          "CQ": [0.4, 0.45], "FM": [np.nan, np.nan], "thrust_N": [1.0, 2.0]})
+    assert load_panels(frame, "turbine") == ["CP", "CT"]
+    assert load_panels(frame, "rotor") == ["CT", "CP"]          # no FM where it is not defined
+    assert load_panels(frame[["thrust_N"]], "wing") == ["thrust_N"]
 
 
 def test_span_loading_figure_is_the_wing_rows_of_sections_csv(runs):

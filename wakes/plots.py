@@ -68,12 +68,13 @@ QUANTITY_LABELS = {
     "torque_Nm": "torque [N m]", "lift_N": "lift [N]",
 }
 #: Load history panels of each body kind, by preference: those with data are drawn, at most three.
-#: A lift rotor's C_Q equals its C_P (both scale with (Omega R)^2 and Omega R), so only C_P is drawn.
+#: A lift rotor's C_Q equals its C_P (both scale with (Omega R)^2 and Omega R), so only C_P is drawn;
+#: ratios fixed by the case (a turbine's tip-speed ratio, a rotor's advance ratio) are not drawn.
 LOAD_PANELS = {
     "wing": ("CL", "CD", "CM", "CDi"),
     "rotor": ("CT", "CP", "FM"),
     "propeller": ("CT", "CP", "efficiency"),
-    "turbine": ("CP", "CT", "tip_speed_ratio"),
+    "turbine": ("CP", "CT"),
 }
 # When a body has none of its kind's coefficients: dimensional loads.
 FALLBACK_PANELS = ("lift_N", "thrust_N", "power_W", "torque_Nm")

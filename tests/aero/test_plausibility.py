@@ -9,8 +9,6 @@ import pytest
 from wakes.aero import plausibility as P
 from wakes.aero.polars import SectionPolars, TablePolar, ThinAirfoilPolar
 from wakes.case import load_case
-from wakes.run import run_case
-from wakes.templates import new_case
 
 ROTOR = """
 [fluid]
@@ -387,11 +385,3 @@ def test_case_polar_limits_reads_each_body_s_polar(tmp_path):
     assert limits["wing"].alpha_range_deg == pytest.approx((-8.0, 12.0))
     assert limits["wing"].cl_range == pytest.approx((-0.7, 1.2))
 
-
-@pytest.mark.slow
-@pytest.mark.parametrize("kind", ["rotor", "propeller", "turbine"])
-def test_rotor_templates_run_as_written_without_a_flag(kind, tmp_path):
-    """The templates of ``wakes new`` at full length (17, 4 and 17 s on a shared 2-core machine)."""
-    case = load_case(new_case(kind, tmp_path / f"{kind}.toml"))
-    run = run_case(case)
-    assert P.check_run(run.summary, run.loads, run.sections, case) == []

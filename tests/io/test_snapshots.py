@@ -78,6 +78,7 @@ def test_lifting_surfaces_are_written_beside_the_wake_and_turn_with_the_blades(t
     for step, t in ((0, 0.0), (1, quarter)):
         snaps.write(step, t, [_ring(4)], body.surfaces(t))
     assert snaps.times("surfaces") == [0.0, quarter]
+    assert snaps.write(2, 0.05, [], body.surfaces(0.05)) == []   # no wake, no file (nothing before a wake)
     reader = vtk.vtkXMLPolyDataReader()
     corners = []
     for step in (0, 1):

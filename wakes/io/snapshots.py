@@ -116,13 +116,16 @@ class WakeSnapshots:
         """Write the wake ``sources`` (Filaments and Particles) and ``surfaces`` at ``step`` and ``time`` [s].
 
         ``surfaces`` are :class:`wakes.aero.geometry.LiftingSurface` objects
-        at ``time``. Returns the files written: a ``.vtp`` and its rewritten
-        ``.pvd`` per kind present (none for an empty wake and no surfaces).
+        at ``time``, written only beside a wake. Returns the files written:
+        a ``.vtp`` and its rewritten ``.pvd`` per kind present (none for an
+        empty wake, so a run that fails in its first step leaves no file).
         """
         written = []
         writers = {"filaments": vtk_io.write_filaments, "particles": vtk_io.write_particles,
                    "surfaces": vtk_io.write_surfaces}
-        for kind, elements in zip(KINDS, merge_wake(sources) + (list(surfaces) or None,)):
+        wake = merge_wake(sources)
+        bodies = list(surfaces) if any(e is not None for e in wake) and len(surfaces) else None
+        for kind, elements in zip(KINDS, wake + (bodies,)):
             if elements is None:
                 continue
             name = f"{kind}_{step:06d}.vtp"
