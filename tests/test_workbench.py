@@ -90,6 +90,17 @@ def test_filament_snapshots_over_time_are_read_back_by_vtk(run_dirs):
     np.testing.assert_allclose(got, segs["gamma_m2_s"], rtol=1e-9)   # CSV keeps 10 digits
 
 
+def test_wing_panels_are_written_beside_every_wake_snapshot(run_dirs):
+    folder, run = run_dirs["filaments"]
+    surfaces = _pvd_files(folder / "wake" / "surfaces.pvd")
+    wake_times = [t for t, _ in _pvd_files(folder / "wake" / "filaments.pvd")]
+    assert set(wake_times) <= {t for t, _ in surfaces}          # the wing at every wake snapshot
+    poly = _read_vtp(surfaces[-1][1])
+    assert poly.GetNumberOfPolys() == 6                         # 6 spanwise panels, a lifting line
+    normal = poly.GetCellData().GetArray("normal")
+    assert all(normal.GetTuple3(i)[2] > 0.9 for i in range(6))  # up, for a lifting wing
+
+
 def _assert_round_off_segments_dropped(segs, rows):
     """The rule behind the segment count: no segment with |Gamma| at round-off is kept.
 
@@ -309,20 +320,36 @@ def test_read_run_refuses_a_summary_without_bodies(tmp_path):
         read_run(tmp_path)
 
 
-def test_tip_vortex_figure_leaves_out_the_root_vortex():
-    """Tip (r = 0.8 R, +Γ) and root (r = 0.2 R, -Γ) helices of equal strength,
-    and a weak sheet: only the tip helix is picked."""
-    import pandas as pd
-    from wakes.plots import tip_vortex_points
 
-    psi = np.linspace(0.0, 4 * np.pi, 49)
-    rows = []
-    for r, g in ((0.8, 1.0), (0.2, -1.0), (0.5, 0.1)):
-        pts = np.column_stack([r * np.cos(psi), r * np.sin(psi), -0.05 * psi])
-        for a, b in zip(pts[:-1], pts[1:]):
-            rows.append({"x0_m": a[0], "y0_m": a[1], "z0_m": a[2],
-                         "x1_m": b[0], "y1_m": b[1], "z1_m": b[2], "gamma_m2_s": g})
-    axial, radial = tip_vortex_points(pd.DataFrame(rows), {"hub": [0, 0, 0], "axis": [0, 0, 1]})
-    assert len(radial) == 48
-    np.testing.assert_allclose(radial, 0.8 * np.cos(np.diff(psi)[0] / 2), rtol=1e-12)
-    assert axial.max() < 0.0
+def test_probe_sums_in_chunks_with_the_same_result(run_dirs, monkeypatch):
+    """Memory stays bounded: no induce call sees more than CHUNK_POINTS targets, and the
+    chunked sum equals the one-call sum (each target's sum is independent)."""
+    import wakes.probe as probe
+    folder, run = run_dirs["filaments"]
+    pts = np.random.default_rng(5).uniform([-1, -3, -1], [6, 3, 1], size=(23, 3))
+    whole = probe.velocity_at(folder, pts)
+    sizes = []
+    real = probe.induce
+
+    def counting(sources, targets):
+        sizes.append(len(targets))
+        return real(sources, targets)
+
+    monkeypatch.setattr(probe, "CHUNK_POINTS", 5)
+    monkeypatch.setattr(probe, "induce", counting)
+    chunked = probe.velocity_at(folder, pts)
+    assert sizes == [5, 5, 5, 5, 3]
+    pd.testing.assert_frame_equal(chunked, whole)
+
+
+def test_probe_beyond_its_memory_limit_is_refused_with_the_size_and_the_limit(run_dirs, monkeypatch, capsys):
+    import wakes.probe as probe
+    folder, _ = run_dirs["filaments"]
+    monkeypatch.setattr(probe, "MAX_PROBE_BYTES", 1000 * probe.BYTES_PER_POINT)   # 1000 points
+    with pytest.raises(wakes.InputError, match=r"grid 40x30 \(1,200 points\).*limit of 0 MB \(1,000 points"):
+        probe.probe_plane(folder, "x=3", extent="-1:1,-1:1", grid=(40, 30))
+    assert main(["probe", str(folder), "--plane", "x=3", "--extent=-1:1,-1:1", "--grid", "40x30",
+                 "--out", str(folder / "big.csv")]) == 2
+    assert "grid 40x30" in capsys.readouterr().err and not (folder / "big.csv").exists()
+    with pytest.raises(wakes.InputError, match="the points"):
+        probe.velocity_at(folder, np.zeros((1001, 3)))

@@ -50,14 +50,15 @@ from ._version import __version__
 from .budget import check_budget, parse_size
 from .case import MAX_DT, MIN_DT, SCHEDULER_ADDRESS, load_case
 from .errors import MemoryBudgetError, WakesError
-from .estimate import estimate_case
+from .estimate import estimate_case, step_costs
 from .io.atomic import write_text
 from .io.checkpoint import prepare_resume
+from .io.runfolder import record_files
 from .plots import plot_run
 from .probe import parse_extent, parse_plane, probe_plane, probe_points
 from .progress import ProgressBar
-from .run import check_new_folder, result_table, run_guarded, warning_lines, write_run
-from .sweep import parse_vary, sweep
+from .run import case_inputs, check_new_folder, clear_run, result_table, run_guarded, warning_lines, write_run
+from .sweep import SweepStopped, failure_lines, parse_vary, sweep
 from .templates import new_case
 from .verify import run_checks
 from .watchdog import EXIT_MEMORY, exit_status
@@ -96,7 +97,8 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--debug", action="store_true", help="show tracebacks of errors")
     run.add_argument("--quiet", action="store_true", help="print nothing but errors")
     run.add_argument("--overwrite", action="store_true",
-                     help="replace the files of an earlier run in DIR")
+                     help="remove the files an earlier run wrote in DIR (those its manifest.txt lists "
+                          "and the run folder's known names; other files stay) before this run starts")
     run.add_argument("--no-plots", action="store_true",
                      help="write no figures (draw them later with 'wakes plot DIR')")
 
@@ -146,7 +148,10 @@ def _parser() -> argparse.ArgumentParser:
 
     sweep = sub.add_parser("sweep", help="run a case over a grid of values on Dask workers",
                            description="Run CASE once per point of a grid of values and write "
-                                       "one run folder per point, sweep.csv and sweep.png.")
+                                       "one run folder per point, sweep.csv and sweep.png. Every "
+                                       "point is checked before any runs. Exit status: 0 every point "
+                                       "finished, 1 a point failed (table on stderr), 2 a bad case or "
+                                       "value (nothing run), 130 stopped by Ctrl-C.")
     sweep.add_argument("case", metavar="CASE", help="case file (TOML)")
     sweep.add_argument("--vary", action="append", required=True, metavar="KEY=VALUES",
                        help="dotted case key and its values: a list 4,6,8 or an inclusive "
@@ -180,9 +185,12 @@ def _run(args) -> int:
         out = check_new_folder(writable_path("--out", args.out, folder=True), args.overwrite)
         case, state = load_case(args.case), None
     check_budget(case, max_memory)       # a refusal leaves nothing behind
+    costs = step_costs(case)             # the progress bar's time left is scaled from these
+    if args.resume is None and args.overwrite:   # the earlier run's files go now, the user's stay
+        clear_run(out, keep=case_inputs(case))
     made = _make_folder("--out" if args.resume is None else "--resume", out)
     bar = ProgressBar(case.time.dt, origin=(0, 0.0) if state is None else state.origin,
-                      quiet=args.quiet)
+                      quiet=args.quiet, step_costs=costs)
     try:
         run = run_guarded(case, out, progress=bar, max_memory=max_memory, resume=state,
                           write=lambda r, o: write_run(r, o, plots=r.status == "finished"
@@ -295,6 +303,8 @@ def _plot(args) -> int:
     if args.out is not None:
         writable_path("--out", args.out, folder=True)
     paths = plot_run(args.run_dir, out=args.out, overwrite=args.overwrite)
+    if args.out is None:          # figures in the run folder are the run's: --overwrite removes them
+        record_files(args.run_dir, paths)
     for p in paths:
         print(p)
     return 0
@@ -325,16 +335,20 @@ def _sweep(args) -> int:
         raise WakesError(f"--scheduler must be an address tcp://HOST:PORT or tls://HOST:PORT such as "
                          f"tcp://10.0.0.5:8786, port 1 to 65535; got {args.scheduler!r}")
     writable_path("--out", args.out, folder=True)
-    table = sweep(args.case, vary, out=args.out, zipped=args.zip, scheduler=args.scheduler,
-                  workers=args.workers, progress=not args.quiet and sys.stderr.isatty())
+    try:
+        table = sweep(args.case, vary, out=args.out, zipped=args.zip, scheduler=args.scheduler,
+                      workers=args.workers, progress=not args.quiet and sys.stderr.isatty())
+    except SweepStopped as stop:
+        print(f"wakes: {stop.message}", file=sys.stderr)
+        return 130
     if not args.quiet:
         with_cols = [c for c in table.columns if c not in ("folder", "error")]
         print(table[with_cols].to_string(index=False))
-        failed = table[table["status"] == "failed"]
-        for row in failed.itertuples():
-            print(f"point {row.Index} failed: {row.error}", file=sys.stderr)
         print(f"results in {args.out}/sweep.csv")
-    return 0
+    failed = failure_lines(table)
+    if failed:
+        print("wakes: " + "\n".join(failed), file=sys.stderr)
+    return 1 if failed else 0
 
 
 def _one_line_warning(message, category, filename, lineno, file=None, line=None):

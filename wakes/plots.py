@@ -1,17 +1,29 @@
-"""Figures of a finished run, drawn from its run folder.
+"""Figures of a finished run, drawn from its run folder's tables.
 
-:func:`plot_run` draws, into ``RUN_DIR/plots``:
+:func:`figures` builds them (matplotlib :class:`~matplotlib.figure.Figure`
+objects, not yet saved); :func:`plot_run` writes them into ``RUN_DIR/plots``.
+Each figure draws one table of the run folder and nothing else:
 
-* ``loads.png``: the history of the main loads of every body;
-* ``span_loading.png`` (wings) and ``radial_loading.png`` (rotors):
-  circulation and section lift coefficient at the last step;
-* ``wake_3d.png``: a 3-D view of the final wake coloured by strength;
-* ``tip_vortex.png`` (rotors): radius and axial position of the strongest
-  wake filaments, the rolled-up tip vortex, against wake position.
+* ``loads.png`` from ``loads.csv``: every body's history, in a column of
+  its own, of the coefficients of its kind (:data:`LOAD_PANELS`): lift,
+  drag and pitching moment coefficients of a wing against time; thrust and power
+  coefficients and the figure of merit of a lift rotor, thrust and power
+  coefficients and efficiency of a propeller, power and thrust
+  coefficients of a turbine, against revolutions;
+* ``span_loading.png`` (wings) from ``sections.csv``: circulation and
+  section lift coefficient at the last step;
+* ``radial_loading.png`` (rotors) from ``radial_loading.csv``:
+  circulation, section lift coefficient and thrust per unit radius,
+  averaged over the last revolution and the blades;
+* ``wake_3d.png`` from ``wake_segments.csv`` and ``wake_particles.csv``:
+  a 3-D view of the final wake coloured by strength;
+* ``tip_vortex.png`` (rotors) from ``tip_vortex.csv``: the tip vortex's
+  distance from the axis and along it against wake age.
 
-Every figure has axis labels with units and a title naming the case, in one
-look of our own (:data:`LOOK`). Only the Agg backend is used, so figures are
-drawn without a display.
+:func:`sweep_figure` draws a sweep's ``sweep.png`` from its table, with
+axis labels from the case schema (:func:`key_label`). Every figure has
+axis labels with units and a title naming the case, in one look of our own
+(:data:`LOOK`). Figures are drawn without pyplot or a display.
 """
 
 from __future__ import annotations
@@ -22,6 +34,8 @@ from pathlib import Path
 
 import numpy as np
 
+from .case import BODY_TYPES, Case
+from .case.schema import public_fields
 from .errors import InputError
 from .io.atomic import write_bytes
 from .io.runfolder import read_run
@@ -42,204 +56,269 @@ LOOK = {
 }
 MAX_WAKE_SEGMENTS_DRAWN = 30000   # a 3-D line plot beyond this takes minutes; every k-th is drawn
 
-# Load history: (column, axis label) by preference; the first two present are drawn.
-HISTORY = (("CL", "lift coefficient CL [-]"), ("CDi", "induced drag coefficient CDi [-]"),
-           ("thrust_N", "thrust [N]"), ("power_W", "shaft power [W]"), ("torque_Nm", "torque [N m]"))
+#: Axis label of each figure of ``summary.json`` and ``loads.csv`` drawn as a curve.
+QUANTITY_LABELS = {
+    "CL": "lift coefficient C_L [-]", "CD": "drag coefficient C_D [-]",
+    "CDi": "induced drag coefficient C_Di [-]", "CM": "pitching moment coefficient C_m [-]",
+    "lift_to_drag": "lift-to-drag ratio L/D [-]",
+    "span_efficiency": "span efficiency e [-]", "CT": "thrust coefficient C_T [-]",
+    "CP": "power coefficient C_P [-]", "CQ": "torque coefficient C_Q [-]", "FM": "figure of merit FM [-]",
+    "efficiency": "propulsive efficiency η [-]", "J": "advance ratio J [-]",
+    "tip_speed_ratio": "tip-speed ratio λ [-]", "thrust_N": "thrust [N]", "power_W": "shaft power [W]",
+    "torque_Nm": "torque [N m]", "lift_N": "lift [N]",
+}
+#: Load history panels of each body kind, by preference: those with data are drawn, at most three.
+#: A lift rotor's C_Q equals its C_P (both scale with (Omega R)^2 and Omega R), so only C_P is drawn;
+#: ratios fixed by the case (a turbine's tip-speed ratio, a rotor's advance ratio) are not drawn.
+LOAD_PANELS = {
+    "wing": ("CL", "CD", "CM", "CDi"),
+    "rotor": ("CT", "CP", "FM"),
+    "propeller": ("CT", "CP", "efficiency"),
+    "turbine": ("CP", "CT"),
+}
+# When a body has none of its kind's coefficients: dimensional loads.
+FALLBACK_PANELS = ("lift_N", "thrust_N", "power_W", "torque_Nm")
+#: Coefficients a sweep figure draws against the first varied key, in this order, at most four.
+SWEEP_PANELS = ("CT", "CP", "FM", "efficiency", "CL", "CD", "CDi", "span_efficiency")
 
 
 def _look():
     import matplotlib  # optional heavy library: loaded only when drawing
-    matplotlib.use("Agg", force=False)
     from cycler import cycler  # comes with matplotlib
+
     rc = dict(LOOK)
     rc["axes.prop_cycle"] = cycler(color=PALETTE)
     return matplotlib.rc_context(rc)
 
 
-def _save(fig, path: Path) -> Path:
-    """Write the figure atomically (a full disk leaves no truncated image) and close it."""
-    import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
+def _figure(**kw):
+    """A figure not registered with pyplot (nothing to close; no display needed)."""
+    from matplotlib.figure import Figure  # optional heavy library: loaded only when drawing
 
+    return Figure(**kw)
+
+
+def save_figure(fig, path) -> Path:
+    """Write a figure atomically (a full disk leaves no truncated image); the format from the suffix."""
     buf = io.BytesIO()
-    try:
-        fig.savefig(buf, format=Path(path).suffix.lstrip(".") or "png", bbox_inches="tight")
-    finally:
-        plt.close(fig)
-    return write_bytes(path, buf.getvalue())
+    fig.savefig(buf, format=Path(path).suffix.lstrip(".") or "png", bbox_inches="tight",
+                dpi=LOOK["savefig.dpi"])
+    return write_bytes(Path(path), buf.getvalue())
 
 
-def plot_loads(run, path) -> Path | None:
-    """Load history of every body: two main quantities against time; None if there is none."""
-    import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
-
-    loads = run.loads
-    bodies = list(dict.fromkeys(loads["body"])) if "body" in loads else []
-    cols = [(c, lab) for c, lab in HISTORY if c in loads and loads[c].notna().any()][:2]
-    if not bodies or not cols:
-        return None
-    with _look():
-        fig, axes = plt.subplots(len(cols), 1, sharex=True, squeeze=False,
-                                 figsize=(7.0, 2.3 * len(cols) + 0.6))
-        for ax, (col, label) in zip(axes[:, 0], cols):
-            for body in bodies:
-                mine = loads[loads["body"] == body]
-                if mine[col].notna().any():
-                    ax.plot(mine["time_s"], mine[col], label=body)
-            ax.set_ylabel(label)
-        axes[0, 0].set_title(f"{run.title}: load history")
-        axes[-1, 0].set_xlabel("simulated time [s]")
-        if len(bodies) > 1:
-            axes[0, 0].legend()
-        return _save(fig, Path(path))
-
-
-def plot_sections(run, folder) -> list[Path]:
-    """Span loading of wings and radial loading of rotors at the last step."""
-    import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
-
-    s = run.sections
-    out = []
-    if not len(s) or "gamma_m2_s" not in s:
-        return out
-    groups = (("span_loading.png", "eta", "y_m", "spanwise position y [m]", "span loading"),
-              ("radial_loading.png", "r_over_R", "r_over_R", "radius r/R [-]", "radial loading"))
-    for name, marker, xcol, xlabel, what in groups:
-        mine = s[s[marker].notna()] if marker in s else s.iloc[0:0]
-        if marker == "eta" and "r_over_R" in s:
-            mine = mine[mine["r_over_R"].isna()]
-        if not len(mine):
-            continue
-        with _look():
-            fig, (a1, a2) = plt.subplots(2, 1, sharex=True, figsize=(7.0, 5.0))
-            keys = ["body"] + (["blade"] if "blade" in mine and mine["blade"].notna().any()
-                               and marker == "r_over_R" else []) + (["surface"] if marker == "eta" else [])
-            for label, part in mine.groupby(keys, sort=False):
-                label = " ".join(dict.fromkeys(str(v) for v in (label if isinstance(label, tuple) else (label,))))
-                part = part.sort_values(xcol)
-                a1.plot(part[xcol], part["gamma_m2_s"], marker=".", label=label)
-                if "cl" in part:
-                    a2.plot(part[xcol], part["cl"], marker=".", label=label)
-            a1.set_ylabel("circulation Γ [m²/s]")
-            a2.set_ylabel("section lift coefficient cl [-]")
-            a2.set_xlabel(xlabel)
-            a1.set_title(f"{run.title}: {what} at the last step")
-            a1.legend()
-            out.append(_save(fig, Path(folder) / name))
+def _bodies(run) -> dict:
+    """Body name -> kind ("wing", "rotor", "propeller" or "turbine") of the run's case, in case order."""
+    out = {}
+    for name, body in run.case.get("bodies", {}).items():
+        out[name] = body.get("kind", "rotor") if body.get("type") == "rotor" else body.get("type", "wing")
     return out
 
 
-def plot_wake(run, path) -> Path | None:
-    """3-D view of the final wake: filaments coloured by |Γ|, particles by |α|; None if no wake."""
-    import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
+def _has_data(frame, col) -> bool:
+    return col in frame and bool(np.isfinite(frame[col].to_numpy(np.float64, na_value=np.nan)).any())
+
+
+def load_panels(loads, kind: str) -> list[str]:
+    """The ``loads.csv`` columns drawn for one body of ``kind`` (rows of that body only)."""
+    cols = [c for c in LOAD_PANELS.get(kind, ()) if _has_data(loads, c)][:3]
+    return cols or [c for c in FALLBACK_PANELS if _has_data(loads, c)][:2]
+
+
+def loads_figure(run):
+    """Load history of every body, one column of panels per body; None if ``loads.csv`` is empty.
+
+    A rotor's history is drawn against revolutions (time x rpm / 60), a
+    wing's against simulated time [s]. Each curve's label is its body's name.
+    """
+    loads = run.loads
+    kinds = _bodies(run)
+    names = [n for n in kinds if "body" in loads and (loads["body"] == n).any()]
+    if not names:
+        return None
+    mine = {n: loads[loads["body"] == n] for n in names}
+    panels = {n: load_panels(mine[n], kinds[n]) for n in names}
+    rows = max(1, max(len(p) for p in panels.values()))
+    fig = _figure(figsize=(max(7.0, 3.8 * len(names)), 2.2 * rows + 0.8), layout="constrained")
+    axes = fig.subplots(rows, len(names), squeeze=False)
+    for j, name in enumerate(names):
+        part = mine[name]
+        if kinds[name] == "wing":
+            x, xlabel = part["time_s"], "simulated time [s]"
+        else:
+            x, xlabel = part["time_s"] * float(run.case["bodies"][name]["rpm"]) / 60.0, "revolutions [-]"
+        for i in range(rows):
+            ax = axes[i, j]
+            if i >= len(panels[name]):
+                ax.set_visible(False)
+                continue
+            col = panels[name][i]
+            ax.plot(x, part[col], label=name)
+            ax.set_ylabel(QUANTITY_LABELS.get(col, col))
+            if i == len(panels[name]) - 1:
+                ax.set_xlabel(xlabel)
+        axes[0, j].set_title(f"{name} ({kinds[name]})")
+    fig.suptitle(f"{run.title}: load history", x=0.01, ha="left", fontweight="bold")
+    return fig
+
+
+def _lines(ax, table, x: str, y: str, label: str, **kw) -> None:
+    part = table.sort_values(x)
+    ax.plot(part[x], part[y], marker=".", label=label, **kw)
+
+
+def span_loading_figure(run):
+    """Circulation and section lift coefficient of every wing surface at the last step
+    (the wing rows of ``sections.csv``); None if the run has no wing."""
+    s = run.sections
+    if not len(s) or "eta" not in s or "gamma_m2_s" not in s:
+        return None
+    wing = s[s["eta"].notna() & (s["r_over_R"].isna() if "r_over_R" in s else True)]
+    if not len(wing):
+        return None
+    fig = _figure(figsize=(7.0, 5.0), layout="constrained")
+    a1, a2 = fig.subplots(2, 1, sharex=True)
+    for (body, surface), part in wing.groupby(["body", "surface"], sort=False):
+        label = str(body) if str(surface) == str(body) else f"{body}, {surface}"
+        _lines(a1, part, "y_m", "gamma_m2_s", label)
+        _lines(a2, part, "y_m", "cl", label)
+    a1.set_ylabel("circulation Γ [m²/s]")
+    a2.set_ylabel("section lift coefficient c_l [-]")
+    a2.set_xlabel("spanwise position y [m]")
+    a1.set_title(f"{run.title}: span loading at the last step")
+    a1.legend()
+    return fig
+
+
+def radial_loading_figure(run):
+    """Circulation, section lift coefficient and thrust per unit radius of every rotor, averaged
+    over its last revolution and its blades (``radial_loading.csv``); None if there is none."""
+    t = run.radial_loading
+    if not len(t):
+        return None
+    fig = _figure(figsize=(7.0, 6.6), layout="constrained")
+    axes = fig.subplots(3, 1, sharex=True)
+    for body, part in t.groupby("body", sort=False):
+        for ax, col in zip(axes, ("gamma_m2_s", "cl", "dT_dr_N_per_m")):
+            _lines(ax, part, "r_over_R", col, str(body))
+    axes[0].set_ylabel("circulation Γ [m²/s]")
+    axes[1].set_ylabel("section lift coefficient c_l [-]")
+    axes[2].set_ylabel("thrust per unit radius dT/dr [N/m]")
+    axes[2].set_xlabel("radius r/R [-]")
+    axes[0].set_title(f"{run.title}: radial loading, mean over the last revolution and the blades")
+    axes[0].legend()
+    return fig
+
+
+def wake_figure(run):
+    """3-D view of the final wake: filaments coloured by |Γ|, particles by |α|; None if no wake.
+
+    Beyond :data:`MAX_WAKE_SEGMENTS_DRAWN` segments every k-th is drawn.
+    """
     from matplotlib import colors  # optional heavy library: loaded only when drawing
     from mpl_toolkits.mplot3d.art3d import Line3DCollection  # comes with matplotlib
 
     seg, par = run.wake_segments, run.wake_particles
     if not len(seg) and not len(par):
         return None
-    with _look():
-        fig = plt.figure(figsize=(7.5, 5.6))
-        ax = fig.add_subplot(projection="3d")
-        pts = []
-        if len(seg):
-            every = max(1, int(np.ceil(len(seg) / MAX_WAKE_SEGMENTS_DRAWN)))
-            s = seg.iloc[::every]
-            a = s[["x0_m", "y0_m", "z0_m"]].to_numpy()
-            b = s[["x1_m", "y1_m", "z1_m"]].to_numpy()
-            g = np.abs(s["gamma_m2_s"].to_numpy())
-            lines = Line3DCollection(np.stack([a, b], axis=1), cmap=WAKE_CMAP,
-                                     norm=colors.Normalize(0.0, g.max() or 1.0), linewidths=0.8)
-            lines.set_array(g)
-            ax.add_collection3d(lines)
-            fig.colorbar(lines, ax=ax, shrink=0.6, pad=0.1, label="filament circulation |Γ| [m²/s]")
-            pts += [a, b]
-        if len(par):
-            p = par[["x_m", "y_m", "z_m"]].to_numpy()
-            mag = np.linalg.norm(par[["alpha_x_m3_s", "alpha_y_m3_s", "alpha_z_m3_s"]].to_numpy(), axis=1)
-            sc = ax.scatter(p[:, 0], p[:, 1], p[:, 2], c=mag, cmap=WAKE_CMAP, s=3, depthshade=False)
-            fig.colorbar(sc, ax=ax, shrink=0.6, pad=0.02, label="particle strength |α| [m³/s]")
-            pts.append(p)
-        allp = np.vstack(pts)
-        lo, hi = allp.min(axis=0), allp.max(axis=0)
-        mid, half = 0.5 * (lo + hi), 0.5 * max(float((hi - lo).max()), 1e-9)
-        ax.set_xlim(mid[0] - half, mid[0] + half)
-        ax.set_ylim(mid[1] - half, mid[1] + half)
-        ax.set_zlim(mid[2] - half, mid[2] + half)
-        ax.set_xlabel("x [m]")
-        ax.set_ylabel("y [m]")
-        ax.set_zlabel("z [m]")
-        ax.set_title(f"{run.title}: final wake")
-        return _save(fig, Path(path))
+    fig = _figure(figsize=(7.5, 5.6))
+    ax = fig.add_subplot(projection="3d")
+    pts = []
+    if len(seg):
+        every = max(1, int(np.ceil(len(seg) / MAX_WAKE_SEGMENTS_DRAWN)))
+        s = seg.iloc[::every]
+        a = s[["x0_m", "y0_m", "z0_m"]].to_numpy()
+        b = s[["x1_m", "y1_m", "z1_m"]].to_numpy()
+        g = np.abs(s["gamma_m2_s"].to_numpy())
+        lines = Line3DCollection(np.stack([a, b], axis=1), cmap=WAKE_CMAP,
+                                 norm=colors.Normalize(0.0, g.max() or 1.0), linewidths=0.8)
+        lines.set_array(g)
+        ax.add_collection3d(lines)
+        fig.colorbar(lines, ax=ax, shrink=0.6, pad=0.1, label="filament circulation |Γ| [m²/s]")
+        pts += [a, b]
+    if len(par):
+        p = par[["x_m", "y_m", "z_m"]].to_numpy()
+        mag = np.linalg.norm(par[["alpha_x_m3_s", "alpha_y_m3_s", "alpha_z_m3_s"]].to_numpy(), axis=1)
+        sc = ax.scatter(p[:, 0], p[:, 1], p[:, 2], c=mag, cmap=WAKE_CMAP, s=3, depthshade=False)
+        fig.colorbar(sc, ax=ax, shrink=0.6, pad=0.02, label="particle strength |α| [m³/s]")
+        pts.append(p)
+    allp = np.vstack(pts)
+    lo, hi = allp.min(axis=0), allp.max(axis=0)
+    mid, half = 0.5 * (lo + hi), 0.5 * max(float((hi - lo).max()), 1e-9)
+    ax.set_xlim(mid[0] - half, mid[0] + half)
+    ax.set_ylim(mid[1] - half, mid[1] + half)
+    ax.set_zlim(mid[2] - half, mid[2] + half)
+    ax.set_xlabel("x [m]")
+    ax.set_ylabel("y [m]")
+    ax.set_zlabel("z [m]")
+    ax.set_title(f"{run.title}: final wake")
+    return fig
 
 
-def tip_vortex_points(segments, body: dict) -> tuple[np.ndarray, np.ndarray]:
-    """Axial and radial positions of a rotor wake's tip-vortex filaments.
+def tip_vortex_figure(run):
+    """The tip vortex of every rotor against wake age (``tip_vortex.csv``): distance from the
+    axis, with the spread over the last revolution's samples shaded, and offset along the
+    axis; None if the run has no rotor wake."""
+    t = run.tip_vortex
+    if not len(t):
+        return None
+    fig = _figure(figsize=(7.0, 5.0), layout="constrained")
+    a1, a2 = fig.subplots(2, 1, sharex=True)
+    for body, part in t.groupby("body", sort=False):
+        part = part.sort_values("wake_age_deg")
+        age, r, spread = part["wake_age_deg"], part["r_over_R"], part["r_over_R_std"]
+        line, = a1.plot(age, r, label=str(body))
+        a1.fill_between(age, r - spread, r + spread, color=line.get_color(), alpha=0.2, linewidth=0)
+        a2.plot(age, part["axial_over_R"], label=str(body))
+    a1.set_ylabel("distance from the axis r/R [-]")
+    a2.set_ylabel("offset along the axis z/R [-]\n(axis: the thrust direction)")
+    a2.set_xlabel("wake age [deg]")
+    a1.set_title(f"{run.title}: tip vortex of blade 1, mean over the last revolution")
+    a1.legend()
+    return fig
 
-    After roll-up the tip and root vortices are the strongest filaments,
-    with opposite signs; those carrying at least half the largest |Γ| with
-    the sign of the group farther from the axis are the tip vortex.
+
+#: The figures of a run: file name -> builder (a function of a RunFolder returning a Figure or None).
+FIGURES = {"loads.png": loads_figure, "span_loading.png": span_loading_figure,
+           "radial_loading.png": radial_loading_figure, "wake_3d.png": wake_figure,
+           "tip_vortex.png": tip_vortex_figure}
+
+
+def figures(run) -> dict:
+    """Every figure of a finished run, built but not saved.
 
     Parameters
     ----------
-    segments : pandas.DataFrame
-        Wake segments of one rotor (columns ``x0_m`` ... ``z1_m``, ``gamma_m2_s``).
-    body : dict
-        The rotor's case table (``hub``, ``axis``).
+    run : wakes.io.runfolder.RunFolder or path-like
+        A run folder (or its path) written by ``wakes run``.
 
     Returns
     -------
-    axial, radial : ndarray (K,)
-        Distance of each filament's midpoint along the axis from the hub, and
-        from the axis [m].
+    dict
+        File name (e.g. ``"loads.png"``) -> :class:`matplotlib.figure.Figure`,
+        for the figures the run has data for, in :data:`FIGURES` order.
+
+    Examples
+    --------
+    >>> figs = figures("glider-run")
+    >>> list(figs)
+    ['loads.png', 'span_loading.png', 'wake_3d.png']
+    >>> figs["loads.png"].axes[0].get_ylabel()
+    'lift coefficient C_L [-]'
     """
-    gamma = segments["gamma_m2_s"].to_numpy()
-    mid = 0.5 * (segments[["x0_m", "y0_m", "z0_m"]].to_numpy()
-                 + segments[["x1_m", "y1_m", "z1_m"]].to_numpy())
-    axis = np.asarray(body["axis"], dtype=np.float64)
-    axis = axis / np.linalg.norm(axis)
-    rel = mid - np.asarray(body["hub"], dtype=np.float64)
-    axial = rel @ axis
-    radial = np.linalg.norm(rel - axial[:, None] * axis, axis=1)
-    strong = np.abs(gamma) >= 0.5 * np.abs(gamma).max()
-    mean_r = {sign: radial[strong & (np.sign(gamma) == sign)].mean()
-              for sign in (-1.0, 1.0) if np.any(strong & (np.sign(gamma) == sign))}
-    tip = strong & (np.sign(gamma) == max(mean_r, key=mean_r.get))
-    return axial[tip], radial[tip]
-
-
-def plot_tip_vortex(run, path) -> Path | None:
-    """Tip-vortex path of every rotor: radius and axial distance of the
-    filaments :func:`tip_vortex_points` picks. None if the run has no rotor wake."""
-    import matplotlib.pyplot as plt  # optional heavy library: loaded only when drawing
-
-    seg = run.wake_segments
-    rotors = {name: b for name, b in run.case.get("bodies", {}).items() if b.get("type") == "rotor"}
-    if not len(seg) or not rotors:
-        return None
-    drawn = False
+    if not hasattr(run, "loads"):
+        run = read_run(run)
+    out = {}
     with _look():
-        fig, ax = plt.subplots()
-        for name, body in rotors.items():
-            mine = seg[seg["surface"].astype(str).str.startswith(f"{name}/")]
-            if not len(mine):
-                continue
-            axial, radial = tip_vortex_points(mine, body)
-            big_r = float(body["radius"])
-            ax.scatter(-axial / big_r, radial / big_r, s=6, label=name)
-            drawn = True
-        if not drawn:
-            plt.close(fig)
-            return None
-        ax.set_xlabel("distance behind the rotor disc along -axis, z/R [-]")
-        ax.set_ylabel("radius r/R [-]")
-        ax.set_title(f"{run.title}: tip-vortex path")
-        ax.legend()
-        return _save(fig, Path(path))
+        for name, build in FIGURES.items():
+            fig = build(run)
+            if fig is not None:
+                out[name] = fig
+    return out
 
 
 def plot_run(run_dir: str | os.PathLike, *, out: str | os.PathLike | None = None,
              overwrite: bool = False) -> list[Path]:
-    """Draw every figure of a finished run.
+    """Draw every figure of a finished run (:func:`figures`) into PNG files.
 
     Parameters
     ----------
@@ -276,7 +355,94 @@ def plot_run(run_dir: str | os.PathLike, *, out: str | os.PathLike | None = None
                          f"{' and others' if len(existing) > 1 else ''}; pass --overwrite to redraw "
                          "or --out to draw elsewhere")
     folder.mkdir(parents=True, exist_ok=True)
-    paths = [plot_loads(run, folder / "loads.png")]
-    paths += plot_sections(run, folder)
-    paths += [plot_wake(run, folder / "wake_3d.png"), plot_tip_vortex(run, folder / "tip_vortex.png")]
-    return [p for p in paths if p is not None]
+    return [save_figure(fig, folder / name) for name, fig in figures(run).items()]
+
+
+def key_label(key: str, case: dict | None = None) -> str:
+    """Axis label of a dotted case key: words and the unit from the case schema.
+
+    Parameters
+    ----------
+    key : str
+        A dotted case key, e.g. ``"bodies.rotor.collective"``.
+    case : dict, optional
+        The case as data; gives a body's type (else every body type is tried).
+
+    Returns
+    -------
+    str
+        ``"CONTEXT: WORDS [UNIT]"``; ``[-]`` for a dimensionless key; the key's
+        words alone if the schema does not know it.
+
+    Examples
+    --------
+    >>> key_label("freestream.angle_of_attack")
+    'freestream: angle of attack [deg]'
+    >>> key_label("bodies.rotor.collective", {"bodies": {"rotor": {"type": "rotor"}}})
+    'rotor: collective [deg]'
+    >>> key_label("bodies.prop.airfoil.cd0")
+    'prop airfoil: cd0 [-]'
+    """
+    parts = key.split(".")
+    classes, context = [Case], []
+    i = 0
+    meta = None
+    while i < len(parts):
+        part = parts[i]
+        if part == "bodies" and i + 1 < len(parts) and Case in classes:
+            btype = ((case or {}).get("bodies", {}).get(parts[i + 1]) or {}).get("type")
+            classes = [BODY_TYPES[btype]] if btype in BODY_TYPES else list(BODY_TYPES.values())
+            context.append(parts[i + 1])
+            i += 2
+            continue
+        found = [f for cls in classes for f in public_fields(cls) if f.name == part]
+        if not found:
+            meta = None
+            break
+        if i < len(parts) - 1:
+            classes = [type(f.default) for f in found if f.metadata.get("kind") == "table"]
+            context.append(part)
+        else:
+            meta = found[0].metadata
+        i += 1
+    words = parts[-1].replace("_", " ")
+    if meta is None:
+        return " ".join(p.replace("_", " ") for p in parts)
+    prefix = f"{' '.join(context)}: " if context else ""
+    return f"{prefix}{words} [{meta.get('unit') or '-'}]"
+
+
+def sweep_figure(table, key: str, case: dict | None = None):
+    """A sweep's coefficients against its first varied key; None if there is nothing to draw.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The sweep table (``sweep.csv``): the varied keys, ``status`` and the
+        summary figures (prefixed ``BODY.`` when the case has several bodies).
+    key : str
+        The varied key on the x axis (numeric values only).
+    case : dict, optional
+        The swept case as data (for :func:`key_label`).
+
+    Returns
+    -------
+    matplotlib.figure.Figure or None
+        One panel per coefficient of :data:`SWEEP_PANELS` present, at most
+        four, over the points that ran or were reused (not those failed or stopped).
+    """
+    ok = table[table["status"].isin(("ran", "reused"))]
+    cols = [c for base in SWEEP_PANELS for c in table.columns if c == base or c.endswith("." + base)][:4]
+    if not cols or not len(ok) or not np.issubdtype(table[key].dtype, np.number):
+        return None
+    with _look():
+        fig = _figure(figsize=(6.5, 2.3 * len(cols) + 0.6), layout="constrained")
+        axes = fig.subplots(len(cols), 1, sharex=True, squeeze=False)[:, 0]
+        order = ok.sort_values(key)
+        for ax, c in zip(axes, cols):
+            body, _, base = c.rpartition(".")
+            ax.plot(order[key], order[c], "o-", label=body or base)
+            ax.set_ylabel((f"{body}: " if body else "") + QUANTITY_LABELS.get(base, base))
+        axes[-1].set_xlabel(key_label(key, case))
+        axes[0].set_title(f"sweep over {key_label(key, case)}")
+    return fig

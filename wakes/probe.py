@@ -10,6 +10,13 @@ surface the induced velocity lacks the surface's own contribution.
 Output columns: ``x_m, y_m, z_m`` (point), ``u_ind_m_s, v_ind_m_s,
 w_ind_m_s`` (wake-induced velocity), ``u_m_s, v_m_s, w_m_s`` (freestream
 plus induced) and ``speed_m_s``; planes add the in-plane indices ``i, j``.
+
+Memory is bounded: the points are summed in chunks of
+:data:`CHUNK_POINTS`, so the summation's own buffers do not grow with the
+grid, and a request whose tables would need more than
+:data:`MAX_PROBE_BYTES` (1 GiB, estimated at :data:`BYTES_PER_POINT` a
+point) is refused with an :class:`wakes.errors.InputError` naming its size
+and the limit, before anything is computed.
 """
 
 from __future__ import annotations
@@ -31,6 +38,11 @@ from .io.vtk_grid import write_structured_grid
 AXES = "xyz"
 DEFAULT_GRID = (41, 41)
 DEFAULT_MARGIN = 0.1     # default plane: the wake's extent plus 10 % on each side
+CHUNK_POINTS = 65_536       # points summed at once
+# A point's share of memory: the table's 13 float columns (104 B), its grid coordinates (24 B)
+# and the VTK arrays (56 B), 184 B, rounded up for pandas' and the writers' copies (our estimate).
+BYTES_PER_POINT = 256
+MAX_PROBE_BYTES = 2 ** 30   # 1 GiB: about 4.2 million points
 _PLANE = re.compile(r"^\s*([xyzXYZ])\s*=\s*([-+0-9.eE]+)\s*$")
 
 
@@ -39,6 +51,32 @@ def _freestream(case: dict) -> np.ndarray:
     if fs.get("velocity") is not None:
         fs["velocity"] = tuple(fs["velocity"])
     return FreestreamSpec(**fs).vector()
+
+
+def check_probe_size(points: int, what: str) -> None:
+    """Refuse a probe of ``points`` points whose tables would exceed :data:`MAX_PROBE_BYTES`.
+
+    Examples
+    --------
+    >>> check_probe_size(41 * 41, "grid 41x41")
+    >>> try:
+    ...     check_probe_size(5000 * 5000, "grid 5000x5000")
+    ... except InputError as exc:
+    ...     print(str(exc)[:70])
+    grid 5000x5000 (25,000,000 points) needs about 6104 MB, above the prob
+    """
+    need = points * BYTES_PER_POINT
+    if need > MAX_PROBE_BYTES:
+        raise InputError(f"{what} ({points:,} points) needs about {need / 2 ** 20:.0f} MB, above the probe's "
+                         f"limit of {MAX_PROBE_BYTES / 2 ** 20:.0f} MB ({MAX_PROBE_BYTES // BYTES_PER_POINT:,} "
+                         f"points at about {BYTES_PER_POINT} B each); probe a smaller grid or split the region")
+
+
+def _induce_in_chunks(sources, pts: np.ndarray) -> np.ndarray:
+    out = np.empty_like(pts)
+    for start in range(0, pts.shape[0], CHUNK_POINTS):
+        out[start:start + CHUNK_POINTS] = induce(sources, pts[start:start + CHUNK_POINTS])
+    return out
 
 
 def velocity_at(run, points) -> pd.DataFrame:
@@ -59,7 +97,8 @@ def velocity_at(run, points) -> pd.DataFrame:
     Raises
     ------
     wakes.errors.InputError
-        If the run saved no wake, or ``points`` is not (M, 3) finite numbers.
+        If the run saved no wake, ``points`` is not (M, 3) finite numbers,
+        or M points exceed the memory limit (:func:`check_probe_size`).
 
     Examples
     --------
@@ -73,6 +112,7 @@ def velocity_at(run, points) -> pd.DataFrame:
     pts = np.asarray(points, dtype=np.float64)
     if pts.ndim != 2 or pts.shape[1] != 3 or pts.shape[0] == 0:
         raise InputError(f"points must have shape (M, 3) with M >= 1; got shape {pts.shape}")
+    check_probe_size(pts.shape[0], "the points")
     if not np.isfinite(pts).all():
         bad = int(np.argwhere(~np.isfinite(pts))[0, 0])
         raise InputError(f"points must be finite; points[{bad}] = {pts[bad].tolist()}")
@@ -80,7 +120,7 @@ def velocity_at(run, points) -> pd.DataFrame:
     if not sources:
         raise InputError(f"run folder {run.path} holds no wake (wake_segments.csv, wake_particles.csv); "
                          "run the case with [output] wake = true")
-    u = induce(sources, pts)
+    u = _induce_in_chunks(sources, pts)
     total = u + _freestream(run.case)
     return pd.DataFrame({"x_m": pts[:, 0], "y_m": pts[:, 1], "z_m": pts[:, 2],
                          "u_ind_m_s": u[:, 0], "v_ind_m_s": u[:, 1], "w_ind_m_s": u[:, 2],
@@ -199,8 +239,8 @@ def probe_plane(run_dir: str | os.PathLike, plane: str, *, extent=None, grid=DEF
     Raises
     ------
     wakes.errors.InputError
-        For a malformed plane, a grid of fewer than 2 x 2 points, or a
-        plane of zero size.
+        For a malformed plane, a grid of fewer than 2 x 2 points or beyond
+        the memory limit (:func:`check_probe_size`), or a plane of zero size.
 
     Examples
     --------
@@ -213,6 +253,7 @@ def probe_plane(run_dir: str | os.PathLike, plane: str, *, extent=None, grid=DEF
     na, nb = (int(g) for g in grid)
     if na < 2 or nb < 2:
         raise InputError(f"--grid {na}x{nb}: at least 2 points along each in-plane axis are needed")
+    check_probe_size(na * nb, f"grid {na}x{nb}")
     inplane = [k for k in range(3) if k != normal]
     run = read_run(run_dir)
     if isinstance(extent, str):
@@ -251,4 +292,4 @@ def probe_plane(run_dir: str | os.PathLike, plane: str, *, extent=None, grid=DEF
     return table
 
 
-__all__ = ["velocity_at", "probe_points", "probe_plane", "parse_plane", "parse_extent"]
+__all__ = ["velocity_at", "probe_points", "probe_plane", "parse_plane", "parse_extent", "check_probe_size"]

@@ -16,13 +16,17 @@ A run folder holds (see the README for the columns)::
                          status, reason, last step and resume, and plausibility warnings
     loads.csv            one row per step and body
     sections.csv         span or radial distributions at the last step
+    radial_loading.csv, tip_vortex.csv    rotors: radial loading averaged over the last
+                         revolution and the blades; the tip vortex's path
     loads.parquet, sections.parquet    the same tables, when pyarrow is installed
     wake_segments.csv, wake_particles.csv   the final wake as tables
     wake/filaments_NNNNNN.vtp, wake/particles_NNNNNN.vtp   VTK PolyData wake snapshots,
+    wake/surfaces_NNNNNN.vtp  the wings' and blades' panels at the same times,
                          every [output] snapshot_every steps and at the end
-    wake/filaments.pvd, wake/particles.pvd                 ParaView collections over time
+    wake/filaments.pvd, wake/particles.pvd, wake/surfaces.pvd   ParaView collections over time
     checkpoints/         the state to resume from (while a run is unfinished)
     plots/*.png          figures (:mod:`wakes.plots`)
+    manifest.txt         every file the run wrote: what ``--overwrite`` removes before a new run
 
 :func:`wakes.io.runfolder.read_run` reads one back.
 """
@@ -43,7 +47,7 @@ from .errors import InputError
 from .io import atomic
 from .io import checkpoint as checkpoints
 from .io.checkpoint import LoopState
-from .io.runfolder import RUN_MARKERS, RunFolder, read_run  # noqa: F401  (re-exported)
+from .io.runfolder import RUN_MARKERS, RunFolder, clear_run, read_run, record_files  # noqa: F401
 from .io.snapshots import WakeSnapshots
 from .io.tables import write_json
 from .plots import plot_run
@@ -187,6 +191,7 @@ def run_guarded(case: Case, out, *, write, progress=None, max_memory: int | None
         write(run, out)
     else:   # stopped before a step was done: no tables, but the status and the checkpoint
         write_json(run.summary, out / "summary.json")
+        record_files(out, [out / "summary.json"])
     if run.status == "finished":
         checkpoints.remove_checkpoints(out)
     return run
@@ -203,7 +208,9 @@ def run_to_folder(case, out: str | os.PathLike, *, overwrite: bool = False, prog
     out : path-like
         The run folder; it must not hold files unless ``overwrite``.
     overwrite : bool
-        Replace the files of an earlier run in ``out``.
+        Remove the files an earlier run wrote in ``out`` (and only those:
+        :func:`wakes.io.runfolder.clear_run`) once the case is checked,
+        before the run starts.
     progress : callable, optional
         ``progress(step, steps)`` (e.g. :class:`wakes.progress.ProgressBar`).
     plots : bool
@@ -232,6 +239,9 @@ def run_to_folder(case, out: str | os.PathLike, *, overwrite: bool = False, prog
     out = check_new_folder(out, overwrite)
     if not isinstance(case, Case):
         case = load_case(case)
+    check_budget(case, max_memory)
+    if overwrite:
+        clear_run(out, keep=case_inputs(case))
     return run_guarded(case, out, progress=progress, max_memory=max_memory,
                        write=lambda r, o: write_run(r, o, plots=plots and r.status == "finished"))
 
@@ -279,10 +289,17 @@ def write_run(run, out: str | os.PathLike, *, plots: bool = True) -> list[Path]:
     paths = run.write(out)
     sources = [e for elements in run.wake.values() for e in elements]
     snapshots = WakeSnapshots(out, keep_before=run.wake_step)
-    paths += snapshots.write(run.wake_step, run.wake_time_s, sources) + write_parquet(run, out)
+    paths += (snapshots.write(run.wake_step, run.wake_time_s, sources, run.surfaces(run.wake_time_s))
+              + write_parquet(run, out))
     if plots:
         paths += plot_run(out, overwrite=True)
+    record_files(out, paths)
     return paths
+
+
+def case_inputs(case: Case) -> list[Path]:
+    """The files a case reads (its polar tables)."""
+    return [Path(b.airfoil.polar) for b in case.bodies if b.airfoil.polar is not None]
 
 
 def _unit(key: str) -> tuple[str, str]:

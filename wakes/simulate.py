@@ -120,6 +120,10 @@ class Run:
     wake_step: int = 0
     wake_time_s: float = 0.0
 
+    def surfaces(self, time: float) -> list:
+        """The lifting surfaces of every body at ``time`` [s] (built again from the case)."""
+        return [s for spec in self.case.bodies for s in BODY_MODELS[spec.type](spec, self.case).surfaces(time)]
+
     def write(self, out_dir) -> list[Path]:
         """Write the run folder: loads.csv, sections.csv, summary.json, case.toml and the wake.
 
@@ -263,7 +267,8 @@ class TimeLoop:
                 good, done_strips = start, start_strips
                 self.watch.check_memory(step, t, self.wakes)
                 if control.snapshot_due(step, steps):
-                    control.snapshot(step, t, [e for w in self.wakes for e in w.sources(t)])
+                    control.snapshot(step, t, [e for w in self.wakes for e in w.sources(t)],
+                                     [s for b in self.bodies for s in b.surfaces(t)])
                 self.induce = (induce if self.cluster is None
                                else self.cluster.inducer(_wake_size(self.rows)))
                 self.step(step, t)

@@ -6,45 +6,58 @@ grid or zipped. Every point becomes its own run folder under the sweep
 folder; the sweep table has one row per point with the varied values, the
 point's status and every summary coefficient.
 
-Points are checked before anything runs: an unknown key stops the sweep with
-a "did you mean"; a value the schema rejects marks that point failed and the
-others run. A point whose run fails is recorded with its message. A point
-whose folder already holds a finished run of the same resolved case (same
-SHA-256 of its resolved TOML) is reused, so an interrupted sweep resumes.
+Every value of every point is checked before the first point runs, by the
+same checks as ``wakes check``: an unknown key stops the sweep with a "did
+you mean", and a value the schema rejects at any point stops it with a list
+of every bad point; nothing runs and nothing is written. A point whose run
+fails is recorded with its message and the others run. A point whose folder
+already holds a finished run of the same resolved case (same SHA-256 of its
+resolved TOML) is reused, so an interrupted sweep resumes.
 
 Work is spread with Dask (``dask.distributed``): by default a local cluster
 of worker processes, one thread each, one per core; or any running cluster
-given by its scheduler address.
+given by its scheduler address. Dask's own log lines and warnings are kept
+off the terminal (a failed point is reported in the sweep table instead).
+Ctrl-C (SIGINT) stops the sweep: the local workers are stopped (they ignore
+the signal themselves, so a terminal's Ctrl-C reaches only this process),
+``sweep.csv`` is written with every point that finished and the others
+marked ``stopped``, and :class:`SweepStopped` says which.
 """
 
 from __future__ import annotations
 
+import contextlib
 import copy
 import difflib
 import hashlib
 import io
 import itertools
 import json
+import logging
 import math
 import os
+import signal
 import sys
+import threading
 import time
+import warnings
 from dataclasses import dataclass
 from pathlib import Path
 
 import numba
-import numpy as np
 import pandas as pd
 
 from .case import Case, parse_case, read_toml
 from .cluster import connect
 from .errors import CaseError, InputError, WakesError
 from .io import atomic
+from .plots import save_figure, sweep_figure
 from .run import run_guarded, write_run
 
 POINT_RECORD = "point.json"
-# Coefficients plotted against the first varied key, in this order, when present.
-PLOTTED = ("CT", "CP", "FM", "efficiency", "CQ", "CL", "CDi", "span_efficiency")
+LISTED_BAD_POINTS = 10     # bad points named one by one in the refusal before a sweep runs
+# the libraries whose log lines and warnings a sweep keeps off the terminal
+QUIET_LIBRARIES = ("distributed", "dask", "tornado", "asyncio", "bokeh")
 
 
 @dataclass(frozen=True)
@@ -53,10 +66,46 @@ class Point:
 
     index: int
     values: dict
-    data: dict | None
-    case_hash: str | None
+    data: dict
+    case_hash: str
     folder: Path
-    error: str | None = None
+
+
+class SweepStopped(KeyboardInterrupt):
+    """Ctrl-C stopped a sweep; its workers are stopped and its table is written.
+
+    Attributes
+    ----------
+    table : pandas.DataFrame
+        The sweep table as written to ``sweep.csv``: points that finished
+        (``ran`` or ``reused``), ``failed`` and ``stopped`` (not finished).
+    out : Path
+        The sweep folder.
+    remote : bool
+        Whether the points ran on a cluster given by its scheduler (points
+        already running on its workers run to their end there).
+    """
+
+    def __init__(self, table: pd.DataFrame, out: Path, remote: bool):
+        super().__init__("sweep stopped")
+        self.table, self.out, self.remote = table, Path(out), remote
+
+    @property
+    def message(self) -> str:
+        """What finished, what did not, and where the results are, in one paragraph."""
+        status = self.table["status"]
+        done = int(status.isin(["ran", "reused"]).sum())
+        failed = int((status == "failed").sum())
+        stopped = self.table.index[status == "stopped"]
+        text = (f"sweep stopped by Ctrl-C: {done} of {len(status)} points finished, "
+                f"{failed} failed, {len(stopped)} did not finish")
+        if len(stopped):
+            text += " (points " + ", ".join(map(str, stopped[:LISTED_BAD_POINTS]))
+            text += ", ...)" if len(stopped) > LISTED_BAD_POINTS else ")"
+        text += f"; the table so far is {self.out / 'sweep.csv'}"
+        if self.remote:
+            text += "; points already running on the cluster's workers run to their end there"
+        return text + "; run the same command again to go on (finished points are reused)"
 
 
 def parse_values(text: str) -> list:
@@ -183,33 +232,58 @@ def _folder_name(index: int, values: dict) -> str:
 
 def plan(raw: dict, vary: dict, out_dir, *, source: str = "<dict>", base_dir=".",
          zipped: bool = False) -> list[Point]:
-    """Check every point of the sweep before anything runs.
+    """Check every value of every point of the sweep before anything runs.
+
+    Each point's case goes through the checks of ``wakes check``
+    (:func:`wakes.case.parse_case`).
 
     Raises
     ------
     wakes.errors.CaseError
-        For a key the schema does not know (with a did-you-mean); the same
-        key would fail at every point.
+        For a key the schema does not know (with a did-you-mean; the same
+        key would fail at every point), or for values the schema rejects:
+        one line per bad point (the first ``LISTED_BAD_POINTS``) with its
+        values and the check's message.
+
+    Examples
+    --------
+    >>> raw = {"freestream": {"speed": 10.0},
+    ...        "bodies": {"wing": {"type": "wing", "span": 4.0, "chord": 0.5}}}
+    >>> plan(raw, {"bodies.wing.span": [4.0, -1.0]}, "out")
+    Traceback (most recent call last):
+    ...
+    wakes.errors.CaseError: 1 of 2 sweep points is not a valid case; nothing was run:
+      point 1 (bodies.wing.span=-1.0): <dict>: bodies.wing.span must be greater than 0 [m]; got -1.0 ...
     """
     if not vary:
         raise InputError("a sweep needs at least one varied key")
     for key in vary:
         _check_key(raw, key, source)
-    points = []
-    for index, values in enumerate(_grid(vary, zipped)):
+    points, bad = [], []
+    grid = _grid(vary, zipped)
+    for index, values in enumerate(grid):
         data = raw
         for k, v in values.items():
             data = _set(data, k, v)
-        folder = Path(out_dir) / _folder_name(index, values)
         try:
             case = parse_case(data, source=source, base_dir=base_dir)
         except CaseError as exc:
             if "did you mean" in str(exc) or "unknown key" in str(exc):
                 raise
-            points.append(Point(index, values, None, None, folder, str(exc)))
+            bad.append(f"  point {index} ({_label(values)}): {exc}")
             continue
-        points.append(Point(index, values, data, case_hash(case), folder))
+        points.append(Point(index, values, data, case_hash(case), Path(out_dir) / _folder_name(index, values)))
+    if bad:
+        more = len(bad) - LISTED_BAD_POINTS
+        lines = bad[:LISTED_BAD_POINTS] + ([f"  and {more} more"] if more > 0 else [])
+        verb = "is not a valid case" if len(bad) == 1 else "are not valid cases"
+        raise CaseError(f"{len(bad)} of {len(grid)} sweep points {verb}; nothing was run:\n"
+                        + "\n".join(lines))
     return points
+
+
+def _label(values: dict) -> str:
+    return ", ".join(f"{k}={v!r}" for k, v in values.items())
 
 
 def _finished(point: Point) -> dict | None:
@@ -223,25 +297,35 @@ def _finished(point: Point) -> dict | None:
 
 
 def run_point(data: dict, source: str, base_dir: str, folder: str, expected_hash: str) -> dict:
-    """Run one point in a worker and write its folder; returns the summary.
+    """Run one point in a worker and write its folder.
 
     The point runs its numba loops on one thread: the points fill the
     cores, and OpenMP threads of several points on the same cores stall
     each other. The point record (with the case hash) is written last, so
     a folder without it is an unfinished run and is run again on resume.
+
+    Returns
+    -------
+    dict
+        ``{"summary": summary, "error": ""}``, or ``{"summary": None,
+        "error": message}`` when the point failed: a failure is the point's
+        result, not a task error the scheduler would log.
     """
     numba.set_num_threads(1)
-    case = parse_case(data, source=source, base_dir=base_dir)
-    if case_hash(case) != expected_hash:   # a worker with another wakes version
-        raise WakesError(f"point resolved differently on the worker ({folder})")
-    # the one orchestrator, as `wakes run` uses it; the sweep's workers are the cluster
-    run = run_guarded(case, folder, write=lambda r, o: write_run(r, o, plots=False),
-                      use_cluster=False)
-    if run.status != "finished":
-        raise WakesError(f"point {folder}: {run.status}: {run.message}")
-    atomic.write_text(Path(folder) / POINT_RECORD,
-                      json.dumps({"case_sha256": expected_hash}, indent=2) + "\n")
-    return run.summary
+    try:
+        case = parse_case(data, source=source, base_dir=base_dir)
+        if case_hash(case) != expected_hash:   # a worker with another wakes version
+            raise WakesError(f"point resolved differently on the worker ({folder})")
+        # the one orchestrator, as `wakes run` uses it; the sweep's workers are the cluster
+        run = run_guarded(case, folder, write=lambda r, o: write_run(r, o, plots=False),
+                          use_cluster=False)
+        if run.status != "finished":
+            raise WakesError(f"{run.status}: {run.message}")
+        atomic.write_text(Path(folder) / POINT_RECORD,
+                          json.dumps({"case_sha256": expected_hash}, indent=2) + "\n")
+    except Exception as exc:   # any failure of one point is that point's result
+        return {"summary": None, "error": f"{type(exc).__name__}: {exc}"}
+    return {"summary": run.summary, "error": ""}
 
 
 def _flatten(summary: dict) -> dict:
@@ -286,9 +370,47 @@ def _connect(client, scheduler, workers):
     if scheduler:
         return connect(scheduler), None
     n = workers or os.cpu_count() or 1
-    cluster = distributed.LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
-                                       dashboard_address=None)
+    # The worker processes start with SIGINT ignored (an ignored signal stays ignored in a
+    # started program, and Python then installs no KeyboardInterrupt handler): a terminal's
+    # Ctrl-C reaches the whole process group, and only this process is to act on it.
+    with _sigint_ignored():
+        cluster = distributed.LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
+                                           dashboard_address=None, silence_logs=logging.CRITICAL)
     return distributed.Client(cluster), cluster
+
+
+@contextlib.contextmanager
+def _sigint_ignored():
+    """SIGINT ignored within the block (main thread only; elsewhere nothing changes)."""
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    old = signal.signal(signal.SIGINT, signal.SIG_IGN)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGINT, old)
+
+
+@contextlib.contextmanager
+def _libraries_quiet():
+    """Dask's (and its helpers') log lines and warnings kept off the terminal in the block.
+
+    Errors of a point are in the sweep table; a failure of Dask itself
+    still raises.
+    """
+    loggers = [logging.getLogger(name) for name in QUIET_LIBRARIES]
+    levels = [lg.level for lg in loggers]
+    with warnings.catch_warnings():
+        for name in QUIET_LIBRARIES:
+            warnings.filterwarnings("ignore", module=rf"{name}(\.|$)")
+        for lg in loggers:
+            lg.setLevel(logging.CRITICAL)
+        try:
+            yield
+        finally:
+            for lg, level in zip(loggers, levels):
+                lg.setLevel(level)
 
 
 def sweep(case, vary: dict, *, out="sweep", zipped: bool = False, client=None,
@@ -326,6 +448,16 @@ def sweep(case, vary: dict, *, out="sweep", zipped: bool = False, client=None,
         "failed"), ``error``, ``folder`` and every numeric summary figure
         (prefixed ``BODY.`` when the case has several bodies).
 
+    Raises
+    ------
+    wakes.errors.CaseError
+        Before anything runs, for an unknown key or for values the schema
+        rejects at any point (:func:`plan`).
+    SweepStopped
+        On Ctrl-C (a :class:`KeyboardInterrupt`): the workers are stopped
+        and ``sweep.csv`` is written, with ``status`` "stopped" for the
+        points that did not finish.
+
     Examples
     --------
     >>> import wakes
@@ -347,45 +479,96 @@ def sweep(case, vary: dict, *, out="sweep", zipped: bool = False, client=None,
     bar = _Progress(len(points), progress)
     todo = []
     for p in points:
-        if p.error is not None:
-            rows[p.index] = {"status": "failed", "error": p.error}
-            bar.update(False)
-        elif (summary := _finished(p)) is not None:
+        if (summary := _finished(p)) is not None:
             rows[p.index] = {"status": "reused", "error": "", **_flatten(summary)}
             bar.update(True)
         else:
             todo.append(p)
-    if todo:
-        _run_all(todo, rows, bar, client, scheduler, workers, source, base_dir)
-    table = pd.DataFrame([{**p.values, **rows[p.index], "folder": str(p.folder)}
-                          for p in points])
-    _write_outputs(table, list(vary), out)
+    try:
+        if todo:
+            with _libraries_quiet():
+                _run_all(todo, rows, bar, client, scheduler, workers, source, base_dir)
+    except KeyboardInterrupt:
+        with _sigint_ignored():   # the workers are stopped; the table is written whole
+            for p in todo:        # the folders say what finished, whatever the results said
+                if p.index not in rows:
+                    summary = _finished(p)
+                    rows[p.index] = ({"status": "ran", "error": "", **_flatten(summary)}
+                                     if summary is not None else
+                                     {"status": "stopped", "error": "stopped by Ctrl-C before it finished"})
+            table = _table(points, rows)
+            _write_outputs(table, list(vary), out, raw)
+        raise SweepStopped(table, out, remote=client is not None or bool(scheduler)) from None
+    table = _table(points, rows)
+    _write_outputs(table, list(vary), out, raw)
     return table
+
+
+def _table(points: list[Point], rows: dict[int, dict]) -> pd.DataFrame:
+    return pd.DataFrame([{**p.values, **rows[p.index], "folder": str(p.folder)} for p in points])
+
+
+def failure_lines(table: pd.DataFrame) -> list[str]:
+    """The failed points of a sweep table as lines for the terminal: which point and why.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> table = pd.DataFrame({"time.steps": [10, 20], "status": ["ran", "failed"],
+    ...                       "error": ["", "PolarRangeError: angle 20 deg met"],
+    ...                       "folder": ["s/0000_steps=10", "s/0001_steps=20"]})
+    >>> for line in failure_lines(table):
+    ...     print(line)
+    1 of 2 points failed:
+      point  time.steps  folder           why
+      1      20          s/0001_steps=20  PolarRangeError: angle 20 deg met
+    """
+    failed = table[table["status"] == "failed"]
+    if not len(failed):
+        return []
+    keys = list(table.columns[:list(table.columns).index("status")])
+    cells = [["point", *keys, "folder", "why"]]
+    cells += [[str(i), *(str(row[k]) for k in keys), str(row["folder"]), str(row["error"])]
+              for i, row in failed.iterrows()]
+    widths = [max(len(r[c]) for r in cells) for c in range(len(cells[0]))]
+    body = ["  " + "  ".join(v.ljust(w) for v, w in zip(r, widths)).rstrip() for r in cells]
+    return [f"{len(failed)} of {len(table)} points failed:"] + body
 
 
 def _run_all(todo, rows, bar, client, scheduler, workers, source, base_dir) -> None:
     from distributed import as_completed  # optional heavy library: only while a sweep runs
 
     client, cluster = _connect(client, scheduler, workers)
-    local = cluster is not None
+    futures = {}
     try:
         futures = {client.submit(run_point, p.data, source, base_dir, str(p.folder), p.case_hash,
                                  pure=False): p for p in todo}
         for fut in as_completed(futures):
             p = futures[fut]
             try:
-                rows[p.index] = {"status": "ran", "error": "", **_flatten(fut.result())}
-                bar.update(True)
-            except Exception as exc:   # any failure of one point is that point's result
-                rows[p.index] = {"status": "failed", "error": f"{type(exc).__name__}: {exc}"}
-                bar.update(False)
-    finally:
-        if local:
-            client.close()
-            cluster.close()
+                result = fut.result()
+            except Exception as exc:   # the task itself was lost (a worker died): the point failed
+                result = {"summary": None, "error": f"{type(exc).__name__}: {exc}"}
+            ok = not result["error"]
+            rows[p.index] = ({"status": "ran", "error": "", **_flatten(result["summary"])} if ok
+                             else {"status": "failed", "error": result["error"]})
+            bar.update(ok)
+    except KeyboardInterrupt:
+        with _sigint_ignored():   # stop the workers whole, even at a second Ctrl-C
+            client.cancel(list(futures))
+            _close(client, cluster)
+        raise
+    _close(client, cluster)
 
 
-def _write_outputs(table: pd.DataFrame, keys: list, out: Path) -> None:
+def _close(client, cluster) -> None:
+    """Close a local cluster this sweep started (its worker processes end with it)."""
+    if cluster is not None:
+        client.close()
+        cluster.close()
+
+
+def _write_outputs(table: pd.DataFrame, keys: list, out: Path, raw: dict) -> None:
     out.mkdir(parents=True, exist_ok=True)
     atomic.write_text(out / "sweep.csv", table.to_csv(index=False, float_format="%.10g"))
     try:
@@ -396,31 +579,6 @@ def _write_outputs(table: pd.DataFrame, keys: list, out: Path) -> None:
         atomic.write_bytes(out / "sweep.parquet", buf.getvalue())
     except ImportError:
         pass
-    _plot(table, keys[0], out / "sweep.png")
-
-
-def _plot(table: pd.DataFrame, key: str, path: Path) -> None:
-    import matplotlib  # optional heavy library: loaded only when drawing
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt  # after choosing the Agg backend
-
-    ok = table[table["status"] != "failed"]
-    cols = [c for c in table.columns for base in PLOTTED
-            if c == base or c.endswith("." + base)][:4]
-    if not cols or not len(ok) or not np.issubdtype(table[key].dtype, np.number):
-        return
-    fig, axes = plt.subplots(len(cols), 1, figsize=(6, 2.3 * len(cols)), sharex=True,
-                             squeeze=False)
-    order = ok.sort_values(key)
-    for ax, c in zip(axes[:, 0], cols):
-        ax.plot(order[key], order[c], "o-", color="#1f5f8b")
-        ax.set_ylabel(c)
-        ax.grid(alpha=0.3)
-    axes[-1, 0].set_xlabel(key)
-    axes[0, 0].set_title(f"sweep over {key}")
-    fig.tight_layout()
-    buf = io.BytesIO()
-    fig.savefig(buf, format="png", dpi=120)
-    plt.close(fig)
-    atomic.write_bytes(path, buf.getvalue())
+    fig = sweep_figure(table, keys[0], raw)
+    if fig is not None:
+        save_figure(fig, out / "sweep.png")

@@ -122,7 +122,7 @@ _ROTOR_KINDS = {
                       collective=18.0, rpm=4200.0,
                       axis="[-1.0, 0.0, 0.0]     # forward, against the relative wind",
                       revolutions=3.0, run_note="the flight speed carries the start-up wake away quickly",
-                      wake_revs=2.0, wake_note="about 2 R of wake (cost grows with it)",
+                      wake_revs=2.0, wake_note="about 1.6 R of wake, its faded end counted half (cost grows with it)",
                       core_radius=0.0035, core_note="            # m, 0.1 x mean chord"),
     "turbine": dict(what="wind turbine", scenario="a 5 m radius three-bladed farm turbine",
                     title="demo wind turbine, 8 m/s", name="turbine", kind="turbine",
@@ -138,7 +138,7 @@ _ROTOR_KINDS = {
                     axis="[1.0, 0.0, 0.0]      # downwind", revolutions=10.0,
                     run_note="the wind carries the start-up wake away",
                     wake_revs=8.0,
-                    wake_note=("about 7 R of wake; a shorter one\n"
+                    wake_note=("about 6 R of wake; a shorter one\n"
                                "                                # under-predicts the slowing of the wind "
                                "and over-predicts the power"),
                     core_radius=0.0375, core_note="           # m, 0.1 x mean chord"),

@@ -139,8 +139,9 @@ class RunControl:
         Hand the wake to ``snapshot`` at the start of every step that is a
         multiple of this (0: never; the final wake is the caller's).
     snapshot : callable, optional
-        ``snapshot(step, time, sources)`` with the wake's Filaments and
-        Particles at that step's time [s], e.g.
+        ``snapshot(step, time, sources, surfaces)`` with the wake's
+        Filaments and Particles and the bodies' lifting surfaces at that
+        step's time [s], e.g.
         :meth:`wakes.io.snapshots.WakeSnapshots.write`.
     """
 

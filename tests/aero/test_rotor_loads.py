@@ -4,12 +4,24 @@ import numpy as np
 import pytest
 from wakes import exact
 from wakes.aero.loads import StripLoads
-from wakes.aero.rotor_loads import KIND_COLUMNS, blade_forces, coefficients, last_revolution, radial_table
+from wakes.aero.rotor_loads import (
+    KIND_COLUMNS,
+    NEAR_HOVER_RATIO,
+    blade_forces,
+    coefficients,
+    freestream_ratios,
+    inflow_ratio,
+    last_revolution,
+    near_hover,
+    power_split,
+    radial_table,
+    shaft_torques,
+)
 
 RHO, OMEGA, R = 1.2, 100.0, 0.5
 
 
-def strips(points, f_pressure, f_profile=None, gamma=None):
+def strips(points, f_pressure, f_profile=None, gamma=None, flow=None):
     n = len(points)
     points = np.asarray(points, dtype=float)
     f_profile = np.zeros((n, 3)) if f_profile is None else np.asarray(f_profile, dtype=float)
@@ -17,7 +29,8 @@ def strips(points, f_pressure, f_profile=None, gamma=None):
     z = np.zeros(n)
     return StripLoads("b", z, points, np.full(n, 0.05), np.full(n, 0.1), gamma, z + 0.5, z + 0.01,
                       z, np.radians(np.full(n, 3.0)), z, z + 50.0,
-                      np.asarray(f_pressure, dtype=float), f_profile)
+                      np.asarray(f_pressure, dtype=float), f_profile,
+                      None if flow is None else np.asarray(flow, dtype=float))
 
 
 def test_thrust_and_shaft_torque_signs():
@@ -84,3 +97,43 @@ def test_last_revolution_takes_the_last_rows():
     frame = pd.DataFrame({"a": np.arange(10)})
     assert list(last_revolution(frame, 4)["a"]) == [6, 7, 8, 9]
     assert len(last_revolution(frame, 40)) == 10
+
+
+def test_turbine_power_torque_and_induced_power_are_positive_when_it_extracts():
+    """One sign convention per kind: a turbine gives torque and power, so they are positive."""
+    # the air drives the shaft: pressure-force torque -30 N m, profile drag costs 2 N m
+    c = coefficients("turbine", thrust=500.0, torque=-28.0, omega=OMEGA, radius=R, density=RHO, speed=8.0)
+    split = power_split("turbine", OMEGA, -30.0, 2.0)
+    assert c["power_W"] > 0 and c["torque_Nm"] > 0
+    assert split == {"induced_power_W": 3000.0, "profile_power_W": 200.0}
+    assert c["power_W"] == pytest.approx(split["induced_power_W"] - split["profile_power_W"])
+    assert shaft_torques("turbine", OMEGA, 3000.0, 200.0) == pytest.approx((-30.0, 2.0))
+    # a rotor takes power: both parts positive and they add up
+    rotor = power_split("rotor", OMEGA, 3.0, 1.0)
+    assert rotor == {"induced_power_W": 300.0, "profile_power_W": 100.0}
+
+
+def test_figure_of_merit_only_near_hover():
+    """FM is NaN once the freestream exceeds 5 % of the hover induced velocity, edgewise or axial."""
+    kw = dict(thrust=100.0, torque=4.0, omega=OMEGA, radius=R, density=RHO, speed=0.0)
+    ct = coefficients("rotor", **kw)["CT"]
+    limit = NEAR_HOVER_RATIO * np.sqrt(ct / 2)
+    assert np.isfinite(coefficients("rotor", **kw, mu=0.9 * limit)["FM"])
+    assert np.isnan(coefficients("rotor", **kw, mu=1.1 * limit)["FM"])
+    assert np.isnan(coefficients("rotor", **kw, climb_ratio=-1.1 * limit)["FM"])
+    assert np.isfinite(coefficients("rotor", **kw, mu=0.6 * limit, climb_ratio=0.6 * limit)["FM"])
+    assert not near_hover(0.0, 0.0, -0.001)                      # no thrust, no hover
+    mu, lam_c = freestream_ratios([0.0, 5.0, 2.0], [0.0, 0.0, 1.0], OMEGA, R)
+    assert (mu, lam_c) == pytest.approx((0.1, -0.04))            # descending: negative climb ratio
+
+
+def test_inflow_ratio_is_the_annulus_mean_through_the_disc():
+    """Air going down through a lift rotor (against the axis) is a positive inflow; a turbine's
+    air going downwind (along its axis) likewise; weights r dr."""
+    pts = [[0.2, 0, 0], [0.4, 0, 0]]
+    flow = [[0, -30.0, -2.0], [0, -60.0, -4.0]]
+    s = strips(pts, np.zeros((2, 3)), flow=flow)
+    r, dr = np.array([0.2, 0.4]), np.array([0.1, 0.1])
+    lam = inflow_ratio("rotor", [s, s], np.array([0, 0, 1.0]), r, dr, OMEGA, R)
+    assert lam == pytest.approx((2.0 * 0.02 + 4.0 * 0.04) / 0.06 / (OMEGA * R))
+    assert inflow_ratio("turbine", [s], np.array([0, 0, -1.0]), r, dr, OMEGA, R) == pytest.approx(lam)

@@ -63,6 +63,18 @@ def test_hover_run_reports_rotor_loads(hover):
         s["induced_power_W"] / (s["thrust_N"] ** 1.5 / np.sqrt(2 * 1.225 * np.pi * 0.25)))
 
 
+def test_hover_reports_advance_and_inflow_ratios(hover):
+    """mu = 0 in hover; lambda measured at the blades is near momentum theory's sqrt(C_T/2)
+    (uniform inflow; a real, short-wake rotor's annulus mean differs by tens of per cent: the
+    root cut-out and tip loss, and a 1.5-revolution wake, which lowers the inflow)."""
+    loads = hover.loads
+    assert {"advance_ratio_mu", "inflow_ratio_lambda"} <= set(loads.columns)
+    s = hover.summary["bodies"]["rotor"]
+    assert s["advance_ratio_mu"] == 0.0
+    assert s["inflow_ratio_lambda"] == pytest.approx(loads["inflow_ratio_lambda"].iloc[-18:].mean())
+    assert 0.6 < s["inflow_ratio_lambda"] / np.sqrt(s["CT"] / 2) < 1.4
+
+
 def test_hover_sections_and_tip_vortex_tables(hover, tmp_path):
     sec = hover.sections
     assert len(sec) == 2 * 6 and set(sec["blade"]) == {1, 2}
@@ -109,8 +121,14 @@ def test_propeller_and_turbine_report_their_coefficients():
     assert set(KIND_COLUMNS["turbine"]) <= set(turbine.loads.columns)
     assert t["tip_speed_ratio"] == pytest.approx(1200 * 2 * np.pi / 60 * 0.5 / 8.0)
     assert t["thrust_N"] > 0                                            # pushed downwind
+    # one sign convention: the turbine gives power and torque, positive; induced power too
+    assert t["power_W"] > 0 and t["torque_Nm"] > 0 and t["induced_power_W"] > 0 <= t["profile_power_W"]
+    assert t["power_W"] == pytest.approx(t["induced_power_W"] - t["profile_power_W"])
+    assert t["inflow_ratio_lambda"] > 0 and t["advance_ratio_mu"] == 0.0
 
 
 def test_edgewise_flight_runs_without_a_symmetric_wake():
     ff = run("", "[freestream]\nspeed = 8.0\n").summary["bodies"]["rotor"]
     assert ff["thrust_N"] > 0 and "induced_power_factor" not in ff
+    assert ff["advance_ratio_mu"] == pytest.approx(8.0 / (1200 * 2 * np.pi / 60 * 0.5))
+    assert np.isnan(ff["FM"])                                           # no figure of merit in forward flight

@@ -52,3 +52,46 @@ def test_particles_get_their_own_collection_and_an_empty_wake_writes_nothing(tmp
     p = wakes.Particles(np.zeros((4, 3)), np.ones((4, 3)), 0.1)
     names = sorted(x.name for x in snaps.write(3, 0.3, [p, _ring(5)]))
     assert names == ["filaments.pvd", "filaments_000003.vtp", "particles.pvd", "particles_000003.vtp"]
+
+
+ROTOR = """
+[bodies.rotor]
+type = "rotor"
+blades = 2
+radius = 1.0
+root_cutout = 0.2
+chord = 0.1
+rpm = 600.0
+panels = 4
+"""
+
+
+def test_lifting_surfaces_are_written_beside_the_wake_and_turn_with_the_blades(tmp_path):
+    import tomllib
+
+    from wakes.aero.bodies import BODY_MODELS
+    from wakes.case import parse_case
+    case = parse_case(tomllib.loads(ROTOR))
+    body = BODY_MODELS["rotor"](case.bodies[0], case)
+    snaps = WakeSnapshots(tmp_path)
+    quarter = 0.025                                      # a quarter revolution at 600 rpm [s]
+    for step, t in ((0, 0.0), (1, quarter)):
+        snaps.write(step, t, [_ring(4)], body.surfaces(t))
+    assert snaps.times("surfaces") == [0.0, quarter]
+    assert snaps.write(2, 0.05, [], body.surfaces(0.05)) == []   # no wake, no file (nothing before a wake)
+    reader = vtk.vtkXMLPolyDataReader()
+    corners = []
+    for step in (0, 1):
+        reader.SetFileName(str(tmp_path / "wake" / f"surfaces_{step:06d}.vtp"))
+        reader.Update()
+        poly = reader.GetOutput()
+        assert poly.GetNumberOfPolys() == 2 * 4            # two blades of 4 strips, one chordwise panel
+        blade = poly.GetCellData().GetArray("surface")
+        assert sorted({int(blade.GetValue(i)) for i in range(8)}) == [0, 1]
+        area = poly.GetCellData().GetArray("area")
+        surfaces = body.surfaces(0.0)
+        assert sum(area.GetValue(i) for i in range(8)) == pytest.approx(sum(s.areas.sum() for s in surfaces))
+        corners.append(np.array([poly.GetPoint(i) for i in range(poly.GetNumberOfPoints())]))
+    # a quarter turn later each corner is the first one turned 90 deg about the axis (+z, ccw)
+    turned = corners[0] @ np.array([[0.0, 1.0, 0.0], [-1.0, 0.0, 0.0], [0.0, 0.0, 1.0]])
+    np.testing.assert_allclose(corners[1], turned, atol=1e-12)

@@ -12,6 +12,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 from wakes import exact
+from wakes.aero.plausibility import rotor_wake_length
 from wakes.case import load_case
 from wakes.run import run_case
 
@@ -62,6 +63,17 @@ def _blade_thrust(run):
     loads = run.loads
     blades = [c for c in loads.columns if c.startswith("blade_") and c.endswith("_thrust_N")]
     return np.stack([loads[c].to_numpy() for c in sorted(blades)]), _rotor(run)["averaged_steps"]
+
+
+@pytest.mark.slow
+def test_hover_case_runs_without_a_warning_and_as_its_comments_say(hover):
+    """The bundled case as written: no plausibility warning, and its wake reaches "about 1.6 R
+    below the rotor" (the plausibility check's estimate at the run's thrust; within 10 %)."""
+    assert hover.summary["warnings"] == []
+    assert "about 1.6 R below the rotor" in (CASES / "hover-8deg.toml").read_text(encoding="utf-8")
+    case = load_case(CASES / "hover-8deg.toml")
+    r = case.bodies[0]
+    assert rotor_wake_length(r, case, _rotor(hover)["thrust_N"]) / r.radius == pytest.approx(1.6, rel=0.1)
 
 
 @pytest.mark.slow
@@ -241,7 +253,7 @@ def test_turbine_power_stays_below_betz(tsr):
     is the ideal extraction the limit bounds."""
     t = _turbine(tsr)
     assert t["tip_speed_ratio"] == pytest.approx(tsr)
-    ideal = -t["induced_power_W"] / (0.5 * 1.225 * np.pi * 25.0 * 8.0 ** 3)
+    ideal = t["induced_power_W"] / (0.5 * 1.225 * np.pi * 25.0 * 8.0 ** 3)
     assert t["CP"] < exact.BETZ_LIMIT
     assert ideal < exact.BETZ_LIMIT
     if tsr == 7.0:                                   # the design point extracts power

@@ -53,6 +53,13 @@ def test_rectangular_wing_span_efficiency(rectangular):
 
 
 @pytest.mark.parametrize("name", ["elliptic", "rectangular"])
+def test_bundled_wing_cases_run_without_a_plausibility_warning(name, request):
+    """Every bundled case runs as written with no warning (tests/test_bundled_cases.py lists
+    where each is checked; these two runs are shared with the checks here)."""
+    assert request.getfixturevalue(name).summary["warnings"] == []
+
+
+@pytest.mark.parametrize("name", ["elliptic", "rectangular"])
 def test_near_field_and_trefftz_drag_agree(name, request):
     """Kutta-Joukowski near-field induced drag against the Trefftz-plane integral
     D_i = -(rho/2) int Gamma w dy (Munk 1921, NACA Report 121): within 2 %."""

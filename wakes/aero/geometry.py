@@ -381,6 +381,41 @@ class WingPlanform:
         c = self.chord(eta, self.symmetric)
         return float(np.sum(0.5 * (c[1:] + c[:-1]) * np.diff(eta)) * 0.5 * self.span)
 
+    def mean_aerodynamic_chord(self) -> tuple[float, np.ndarray]:
+        """The mean aerodynamic chord and the pitching-moment reference point (body frame).
+
+        Returns
+        -------
+        mac : float
+            c_bar = (1/S) integral of c^2 over the span [m].
+        point : ndarray, shape (3,)
+            (1/S) integral of c r_qc over the span, r_qc the quarter-chord
+            line [m]: the chord-weighted mean of the quarter-chord line. On
+            a symmetric wing whose quarter-chord line is straight on each
+            side (linear sweep and dihedral laws of constant angle) it is the
+            quarter-chord point of the mean aerodynamic chord, moved to the
+            plane of symmetry.
+
+        Examples
+        --------
+        >>> p = WingPlanform(4.0, Distribution("linear", root=1.0, tip=0.5), sweep=Distribution.constant(45.0))
+        >>> mac, point = p.mean_aerodynamic_chord()
+        >>> round(mac, 4), [round(float(v), 4) for v in point]   # 2/3 c_r (1 + t + t^2)/(1 + t); y_mac 8/9 m
+        (0.7778, [0.8889, 0.0, 0.0])
+        """
+        eta = np.linspace(-1.0, 1.0, _AREA_SAMPLES)
+        c = self.chord(eta, self.symmetric)
+        dy = np.diff(eta) * 0.5 * self.span
+
+        def integral(f):
+            return np.sum(0.5 * (f[1:] + f[:-1]) * (dy if f.ndim == 1 else dy[:, None]), axis=0)
+
+        area = float(integral(c))
+        point = integral(c[:, None] * self.quarter_chord(eta)) / area
+        if self.symmetric:
+            point[1] = 0.0      # on the plane of symmetry (the sum leaves round-off)
+        return float(integral(c * c)) / area, point
+
 
 def wing_surface(name: str, planform: WingPlanform, *, n_span: int, spacing: str, n_chord: int,
                  lifting_line: bool, polars, position=(0.0, 0.0, 0.0),

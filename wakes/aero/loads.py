@@ -60,6 +60,16 @@ class StripLoads:
         Section-plane speed used for the coefficients [m/s].
     force_pressure, force_profile : ndarray, shape (n, 3)
         Forces on each strip [N], global frame.
+    flow : ndarray, shape (n, 3), or None
+        Velocity of the air relative to the strip in its section plane
+        [m/s], global frame: ``speed`` along the direction at the
+        effective angle of attack to the chord.
+    moment_pressure : ndarray, shape (n, 3), or None
+        Moment of each strip's pressure forces about its section point
+        [N m], global frame: zero on a lifting line (the force acts on the
+        quarter-chord line); on a vortex lattice, from the forces on every
+        chordwise panel (Kutta--Joukowski at the bound-segment load points,
+        the unsteady term at the ring centres).
     """
 
     surface: str
@@ -76,6 +86,8 @@ class StripLoads:
     speed: np.ndarray
     force_pressure: np.ndarray
     force_profile: np.ndarray
+    flow: np.ndarray | None = None
+    moment_pressure: np.ndarray | None = None
 
 
 def _in_plane(v, t, n):
@@ -113,10 +125,15 @@ def strip_loads(surface, gamma: np.ndarray, gamma_prev, dt: float, v_load: np.nd
     g = np.asarray(gamma, dtype=np.float64).reshape(nc, ns)
     g_net = np.diff(np.vstack([np.zeros((1, ns)), g]), axis=0)
     lvec = surface.bound_vectors()
-    f_press = density * np.sum(g_net[..., None] * np.cross(v_load, lvec), axis=0)
+    sp = surface.section_points[None]
+    f_panels = density * g_net[..., None] * np.cross(v_load, lvec)
+    f_press = np.sum(f_panels, axis=0)
+    m_press = np.sum(np.cross(surface.bound_midpoints() - sp, f_panels), axis=0)
     if not surface.lifting_line and gamma_prev is not None:
         dg = (g - np.asarray(gamma_prev).reshape(nc, ns)) / dt
-        f_press = f_press + density * np.sum((dg * surface.areas)[..., None] * surface.normals, axis=0)
+        f_panels = density * (dg * surface.areas)[..., None] * surface.normals
+        f_press = f_press + np.sum(f_panels, axis=0)
+        m_press = m_press + np.sum(np.cross(surface.collocation - sp, f_panels), axis=0)
     t, n = surface.chord_dir, surface.section_normal
     width = np.linalg.norm(np.cross(surface.span_vector, t), axis=1)
     strip_gamma = g[-1]
@@ -136,7 +153,7 @@ def strip_loads(surface, gamma: np.ndarray, gamma_prev, dt: float, v_load: np.nd
     return StripLoads(surface.name, surface.section_eta.copy(), surface.section_points.copy(),
                       surface.section_chord.copy(), width, strip_gamma.copy(), np.asarray(cl),
                       np.asarray(cd), alpha_geo, np.asarray(alpha_eff), alpha_geo - alpha_eff,
-                      speed, f_press, f_prof)
+                      speed, f_press, f_prof, speed[:, None] * flow_dir, m_press)
 
 
 def trefftz_induced_drag(groups, drag_dir: np.ndarray, density: float) -> list[float]:
@@ -192,7 +209,8 @@ def trefftz_induced_drag(groups, drag_dir: np.ndarray, density: float) -> list[f
 
 
 def wing_totals(strips: list[StripLoads], *, velocity: np.ndarray, span_axis: np.ndarray,
-                density: float, area: float, span: float, trefftz_drag: float) -> dict:
+                density: float, area: float, span: float, trefftz_drag: float,
+                moment_reference=None, reference_chord: float | None = None) -> dict:
     """Totals and coefficients of one wing from its strips.
 
     Parameters
@@ -208,15 +226,25 @@ def wing_totals(strips: list[StripLoads], *, velocity: np.ndarray, span_axis: np
         rho [kg/m^3], reference area S [m^2], span b [m].
     trefftz_drag : float
         Trefftz-plane induced drag [N].
+    moment_reference : array_like, shape (3,), optional
+        Point the pitching moment is taken about [m] (default: the origin).
+    reference_chord : float, optional
+        c_ref for the pitching-moment coefficient [m] (default: S/b).
 
     Returns
     -------
     dict
         ``lift_N``, ``induced_drag_N``, ``induced_drag_trefftz_N``,
         ``trefftz_difference`` ((near field - Trefftz)/Trefftz),
-        ``profile_drag_N``, ``side_force_N``, ``CL``, ``CDi``,
-        ``CDi_trefftz``, ``CD0``, ``span_efficiency`` (near field,
-        C_L^2/(pi AR C_Di)), ``span_efficiency_trefftz``.
+        ``profile_drag_N``, ``drag_N`` (induced, near field, plus profile),
+        ``side_force_N``, ``pitching_moment_Nm``, ``CL``, ``CDi``,
+        ``CDi_trefftz``, ``CD0``, ``CD`` = C_Di + C_D0, ``lift_to_drag``
+        L/D (NaN without drag), ``CM`` = M/(q S c_ref), ``span_efficiency``
+        (near field, C_L^2/(pi AR C_Di)), ``span_efficiency_trefftz``.
+        The pitching moment M is about the axis through
+        ``moment_reference`` along ``span_axis``, positive nose up (it
+        raises the leading edge); the sections' own moments about their
+        quarter chord (a cambered section's c_m0) are not modelled.
     """
     speed = float(np.linalg.norm(velocity))
     e_d = velocity / speed
@@ -226,6 +254,11 @@ def wing_totals(strips: list[StripLoads], *, velocity: np.ndarray, span_axis: np
     f_p = sum(s.force_pressure.sum(axis=0) for s in strips)
     f_v = sum(s.force_profile.sum(axis=0) for s in strips)
     total = f_p + f_v
+    ref = np.zeros(3) if moment_reference is None else np.asarray(moment_reference, dtype=np.float64)
+    c_ref = area / span if reference_chord is None else float(reference_chord)
+    moment = sum(np.cross(s.points - ref, s.force_pressure + s.force_profile).sum(axis=0)
+                 + (0.0 if s.moment_pressure is None else s.moment_pressure.sum(axis=0)) for s in strips)
+    pitching = float(moment @ span_axis)
     q = 0.5 * density * speed ** 2
     aspect = span ** 2 / area
     lift = float(total @ e_l)
@@ -237,17 +270,23 @@ def wing_totals(strips: list[StripLoads], *, velocity: np.ndarray, span_axis: np
     def efficiency(cd):
         return cl * cl / (np.pi * aspect * cd) if cd > 0 else float("nan")
 
+    drag = float(total @ e_d)
     return {
         "lift_N": lift,
         "induced_drag_N": d_i,
         "induced_drag_trefftz_N": float(trefftz_drag),
         "trefftz_difference": (d_i - trefftz_drag) / trefftz_drag if trefftz_drag != 0 else float("nan"),
         "profile_drag_N": float(f_v @ e_d),
+        "drag_N": drag,
         "side_force_N": float(total @ e_s),
+        "pitching_moment_Nm": pitching,
         "CL": cl,
         "CDi": cdi,
         "CDi_trefftz": cdi_t,
         "CD0": float(f_v @ e_d) / (q * area),
+        "CD": drag / (q * area),
+        "lift_to_drag": lift / drag if drag != 0 else float("nan"),
+        "CM": pitching / (q * area * c_ref),
         "span_efficiency": efficiency(cdi),
         "span_efficiency_trefftz": efficiency(cdi_t),
     }

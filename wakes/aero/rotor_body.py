@@ -18,7 +18,21 @@ import pandas as pd
 
 from .polars import SectionPolars
 from .rotor import blade_turn_deg, is_axial_flow
-from .rotor_loads import KIND_COLUMNS, blade_forces, coefficients, last_revolution, radial_table
+from .rotor_loads import (
+    FLOW_COLUMNS,
+    KIND_COLUMNS,
+    averaged_radial_table,
+    blade_forces,
+    coefficients,
+    freestream_ratios,
+    inflow_ratio,
+    last_revolution,
+    near_hover,
+    power_split,
+    radial_table,
+    shaft_torques,
+    strip_distributions,
+)
 from .rotor_wake import BladeSymmetry, RolledUpWake, StartupDrift, tip_vortex_table
 from .sections import make_polar
 from .wake import WakeSheet
@@ -55,7 +69,7 @@ class RotorBody:
         # propeller: flight speed along the axis; turbine: wind speed; rotor: unused
         self.speed = {"propeller": float(-(v_inf @ self.axis)), "turbine": float(np.linalg.norm(v_inf)),
                       "rotor": 0.0}[self.kind]
-        self.hover = not np.any(v_inf)
+        self.mu, self.climb_ratio = freestream_ratios(v_inf, self.axis, g.omega, g.radius)
         self.axial_flow = is_axial_flow(v_inf, self.axis)
         self.dt = case.time.dt
         self.end_time = (case.time.steps - 1) * case.time.dt
@@ -65,6 +79,9 @@ class RotorBody:
         self._symmetry = None
         self._wakes = []
         self._tip_samples = collections.deque(maxlen=self.steps_per_revolution)
+        # the section values of the last steps_per_revolution steps: the last full revolution's
+        self._radial_samples = collections.deque(maxlen=self.steps_per_revolution)
+        self._chord = g.chord((self.r - g.root_cutout) / (g.radius - g.root_cutout))
 
     def surfaces(self, time: float) -> list:
         """The blades at ``time`` [s], one lifting-line surface each, named ``NAME/blade K``."""
@@ -104,14 +121,21 @@ class RotorBody:
         return wake
 
     def loads_row(self, strips: list, trefftz_drag: float) -> dict:
-        """Thrust, torque, power and coefficients of the kind, power split, thrust per blade.
+        """Thrust, torque, power and coefficients of the kind, power split, flow ratios, thrust per blade.
 
-        Over the last revolution also samples blade 1's tip-vortex path
+        Keeps the section values of the last ``steps_per_revolution`` steps
+        and, over the last revolution, samples blade 1's tip-vortex path,
         for :meth:`tables`.
         """
         f = blade_forces(strips, self.hub, self.axis, self.geometry.spin)
+        self._radial_samples.append(strip_distributions(strips, dr=self.dr, hub=self.hub, axis=self.axis,
+                                                        spin=self.geometry.spin))
+        g = self.geometry
         row = self._totals(float(f["thrust"].sum()), float(f["torque_induced"].sum()),
                            float(f["torque_profile"].sum()))
+        row["advance_ratio_mu"] = self.mu
+        row["inflow_ratio_lambda"] = inflow_ratio(self.kind, strips, self.axis, self.r, self.dr, g.omega,
+                                                  g.radius)
         for k, t in enumerate(f["thrust"]):
             row[f"blade_{k + 1}_thrust_N"] = float(t)
         if self._wakes:
@@ -124,9 +148,9 @@ class RotorBody:
     def _totals(self, thrust: float, torque_induced: float, torque_profile: float) -> dict:
         g = self.geometry
         row = coefficients(self.kind, thrust=thrust, torque=torque_induced + torque_profile,
-                           omega=g.omega, radius=g.radius, density=self.density, speed=self.speed)
-        row["induced_power_W"] = g.omega * torque_induced
-        row["profile_power_W"] = g.omega * torque_profile
+                           omega=g.omega, radius=g.radius, density=self.density, speed=self.speed,
+                           mu=self.mu, climb_ratio=self.climb_ratio)
+        row.update(power_split(self.kind, g.omega, torque_induced, torque_profile))
         return row
 
     def section_table(self, strips: list) -> pd.DataFrame:
@@ -136,12 +160,24 @@ class RotorBody:
                             pitch_deg=self.pitch_deg, hub=self.hub, axis=self.axis, spin=g.spin)
 
     def tables(self) -> dict:
-        """Extra result tables: ``{"tip_vortex.csv": ...}`` (:func:`tip_vortex_table`), if any."""
-        if not self._tip_samples:
-            return {}
+        """Extra result tables, those there are data for.
+
+        ``radial_loading.csv``: the radial loading averaged over the last
+        full revolution (the last ``steps_per_revolution`` steps, or the
+        steps done since a resume if fewer) and over the blades
+        (:func:`averaged_radial_table`); ``tip_vortex.csv``: blade 1's
+        tip-vortex path (:func:`tip_vortex_table`).
+        """
         g = self.geometry
-        return {"tip_vortex.csv": tip_vortex_table(self.name, list(self._tip_samples), hub=self.hub,
-                                                   axis=self.axis, radius=g.radius, omega=g.omega)}
+        out = {}
+        if self._radial_samples:
+            out["radial_loading.csv"] = averaged_radial_table(
+                self.name, list(self._radial_samples), radius=g.radius, r=self.r, chord=self._chord,
+                pitch_deg=self.pitch_deg)
+        if self._tip_samples:
+            out["tip_vortex.csv"] = tip_vortex_table(self.name, list(self._tip_samples), hub=self.hub,
+                                                     axis=self.axis, radius=g.radius, omega=g.omega)
+        return out
 
     def summary(self, loads: pd.DataFrame) -> dict:
         """Loads averaged over the last full revolution, and how much they still change.
@@ -150,9 +186,16 @@ class RotorBody:
         ``steps_per_revolution`` steps; the coefficients are those of the
         averages. ``thrust_change_last_revolution`` compares the mean
         thrust of the last two revolutions (relative), a convergence
-        indicator (NaN with fewer than two revolutions). In hover (no
-        freestream) a lift rotor also reports the induced-power factor
+        indicator (NaN with fewer than two revolutions). The flow ratios
+        mu and lambda are the last revolution's means
+        (:mod:`wakes.aero.rotor_loads`). Near hover
+        (:func:`wakes.aero.rotor_loads.near_hover`, the figure of merit's
+        rule) a lift rotor also reports the induced-power factor
         kappa = P_induced / (T^(3/2)/sqrt(2 rho A)) of momentum theory.
+        ``collective_deg`` is the case's collective (the pitch where the
+        twist is zero) and ``pitch_075R_deg`` the blade pitch, collective
+        plus twist, at r = 0.75 R, where the collective of a twisted blade is
+        commonly quoted [deg] (NaN when 0.75 R lies inside the root cut-out).
         """
         mine = loads[loads["body"] == self.name]
         n = self.steps_per_revolution
@@ -161,17 +204,22 @@ class RotorBody:
         thrust = float(last["thrust_N"].mean())
         p_ind = float(last["induced_power_W"].mean())
         p_pro = float(last["profile_power_W"].mean())
-        out = self._totals(thrust, p_ind / g.omega, p_pro / g.omega)
+        out = self._totals(thrust, *shaft_torques(self.kind, g.omega, p_ind, p_pro))
         out = {k: float(out[k]) for k in KIND_COLUMNS[self.kind] + _EXTRA_SUMMARY}
+        out.update({k: float(last[k].mean()) for k in FLOW_COLUMNS})
         if len(mine) >= 2 * n:
             before = float(mine["thrust_N"].iloc[-2 * n:-n].mean())
             out["thrust_change_last_revolution"] = (thrust - before) / abs(before) if before else float("nan")
         else:
             out["thrust_change_last_revolution"] = float("nan")
-        if self.kind == "rotor" and self.hover:
+        ct = out["CT"] if self.kind == "rotor" else float("nan")
+        if self.kind == "rotor" and near_hover(self.mu, self.climb_ratio, ct):
             ideal = max(thrust, 0.0) ** 1.5 / np.sqrt(2.0 * self.density * g.disc_area)
             out["induced_power_factor"] = float(p_ind / ideal) if ideal > 0 else float("nan")
         out["revolutions"] = float((len(mine) - 1) * self.dt / g.period)
         out["averaged_steps"] = int(len(last))
         out["solidity"] = float(g.solidity())
+        out["collective_deg"] = float(g.collective)
+        eta_075 = (0.75 * g.radius - g.root_cutout) / (g.radius - g.root_cutout)
+        out["pitch_075R_deg"] = float(g.pitch(eta_075)) if eta_075 >= 0.0 else float("nan")
         return out

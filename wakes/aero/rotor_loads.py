@@ -21,6 +21,38 @@ turbines), with A = pi R^2, n = Omega/(2 pi) and D = 2R:
   with V the flight speed along the axis, efficiency = T V/P;
 * ``turbine``: power extracted P_w = -P, C_P = P_w/(1/2 rho A V^3),
   C_T = T/(1/2 rho A V^2), tip-speed ratio Omega R/V with V the wind speed.
+
+Signs: one convention per kind, so that every reported power and torque is
+positive in the kind's normal working (:data:`POWER_SENSE`). A rotor or
+propeller reports the shaft torque and power it takes, a turbine the
+torque and power it gives. The power splits into induced power (the
+pressure forces' part: taken by a rotor or propeller, given by a turbine)
+and profile power (lost to profile drag, positive for every kind), so
+``power_W`` = induced + profile for a rotor or propeller and induced -
+profile for a turbine.
+
+Flow ratios, for every kind (Leishman 2006, ch. 2 and 5), with V the
+freestream (the air's velocity relative to the hub) and a the axis:
+
+* advance ratio mu = |V - (V . a) a|/(Omega R), the freestream across the
+  axis over the tip speed (edgewise flight; 0 in hover and axial flight; a
+  propeller's J = V/(n D) is a different ratio, of the speed along the axis);
+* inflow ratio lambda = the mean flow through the blades' annulus over the
+  tip speed, freestream and induced velocity together, in the direction the
+  air crosses the disc in the kind's normal working (against the axis for a
+  rotor or propeller, along it for a turbine). It is measured at the
+  blades: each strip's section-plane air velocity along the axis, averaged
+  over the blades with weights r dr (annulus area). In hover momentum
+  theory gives lambda = sqrt(C_T/2) for a uniform inflow.
+
+Figure of merit is a hover quantity (Leishman 2006, ch. 2): it is reported
+only near hover, where the freestream is at most :data:`NEAR_HOVER_RATIO`
+of momentum theory's hover induced velocity, sqrt(mu^2 + lambda_c^2) <=
+0.05 sqrt(C_T/2), with lambda_c = -(V . a)/(Omega R) the climb ratio
+(:func:`near_hover`; our rule: in axial climb at that speed momentum
+theory's ideal power is 2.5 % above hover's, V/(2 v_h) + sqrt((V/(2
+v_h))^2 + 1) = 1.025, and less in edgewise flight). Elsewhere ``FM`` is
+NaN, and so is the induced-power factor.
 """
 
 from __future__ import annotations
@@ -29,6 +61,15 @@ import numpy as np
 import pandas as pd
 
 ROTOR_KINDS = ("rotor", "propeller", "turbine")
+
+#: +1 where the shaft drives the rotor (rotor, propeller), -1 where the air drives it (turbine).
+POWER_SENSE = {"rotor": 1.0, "propeller": 1.0, "turbine": -1.0}
+
+#: Near hover: the freestream at most this fraction of the hover induced velocity (module notes).
+NEAR_HOVER_RATIO = 0.05
+
+#: Flow-ratio columns every rotor reports in loads.csv and summary.json (module notes).
+FLOW_COLUMNS = ("advance_ratio_mu", "inflow_ratio_lambda")
 
 KIND_COLUMNS = {
     "rotor": ("thrust_N", "torque_Nm", "power_W", "CT", "CQ", "CP", "FM"),
@@ -71,8 +112,105 @@ def blade_forces(strips, hub: np.ndarray, axis: np.ndarray, spin: int) -> dict:
     return {k: np.asarray(v) for k, v in out.items()}
 
 
+def near_hover(mu: float, climb_ratio: float, ct: float) -> bool:
+    """Whether a lift rotor's flow is close enough to hover for a figure of merit (module notes).
+
+    Parameters
+    ----------
+    mu : float
+        Advance ratio (freestream across the axis over the tip speed).
+    climb_ratio : float
+        lambda_c, the freestream along the axis over the tip speed (either sign).
+    ct : float
+        Thrust coefficient T/(rho A (Omega R)^2).
+
+    Returns
+    -------
+    bool
+        sqrt(mu^2 + lambda_c^2) <= NEAR_HOVER_RATIO sqrt(C_T/2), with C_T > 0.
+
+    Examples
+    --------
+    >>> near_hover(0.0, 0.0, 0.005), near_hover(0.002, 0.0, 0.005), near_hover(0.1, 0.0, 0.005)
+    (True, True, False)
+    """
+    return bool(ct > 0.0 and np.hypot(mu, climb_ratio) <= NEAR_HOVER_RATIO * np.sqrt(0.5 * ct))
+
+
+def freestream_ratios(v_inf, axis, omega: float, radius: float) -> tuple[float, float]:
+    """Advance ratio mu and climb ratio lambda_c of a freestream ``v_inf`` [m/s] (module notes).
+
+    Examples
+    --------
+    >>> freestream_ratios([3.0, 0.0, -4.0], [0.0, 0.0, 1.0], 10.0, 1.0)
+    (0.3, 0.4)
+    """
+    v = np.asarray(v_inf, dtype=np.float64)
+    a = np.asarray(axis, dtype=np.float64)
+    a = a / np.linalg.norm(a)
+    along = float(v @ a)
+    tip = omega * radius
+    return float(np.linalg.norm(v - along * a)) / tip, -along / tip
+
+
+def inflow_ratio(kind: str, strips, axis: np.ndarray, r: np.ndarray, dr: np.ndarray, omega: float,
+                 radius: float) -> float:
+    """Inflow ratio lambda measured at the blades (module notes).
+
+    Parameters
+    ----------
+    kind : {"rotor", "propeller", "turbine"}
+        Sets the sense of lambda.
+    strips : list of StripLoads
+        One per blade, with the section-plane air velocity ``flow``.
+    axis : ndarray, shape (3,)
+        Unit thrust axis (downwind for a turbine).
+    r, dr : ndarray, shape (n,)
+        Blade coordinate of each strip's section and the strip width [m],
+        in the strips' order.
+    omega, radius : float
+        Rotation rate [rad/s] and R [m].
+
+    Returns
+    -------
+    float
+        The r dr weighted mean over all blades' strips of the air velocity
+        along the axis, times -1 for a rotor or propeller, over Omega R.
+    """
+    w = r * dr
+    along = np.mean([float(np.sum((s.flow @ axis) * w)) for s in strips]) / float(np.sum(w))
+    return -POWER_SENSE[kind] * along / (omega * radius)
+
+
+def power_split(kind: str, omega: float, torque_induced: float, torque_profile: float) -> dict:
+    """``induced_power_W`` and ``profile_power_W`` from the shaft torque's two parts (module notes).
+
+    Parameters
+    ----------
+    kind : {"rotor", "propeller", "turbine"}
+        Sets the sign of the induced power (:data:`POWER_SENSE`).
+    omega : float
+        Rotation rate [rad/s].
+    torque_induced, torque_profile : float
+        Shaft torque of the pressure and the profile forces [N m] (positive
+        when the shaft must supply it).
+
+    Examples
+    --------
+    >>> power_split("turbine", 10.0, -3.0, 0.5)
+    {'induced_power_W': 30.0, 'profile_power_W': 5.0}
+    """
+    return {"induced_power_W": POWER_SENSE[kind] * omega * torque_induced,
+            "profile_power_W": omega * torque_profile}
+
+
+def shaft_torques(kind: str, omega: float, induced_power: float, profile_power: float) -> tuple[float, float]:
+    """The inverse of :func:`power_split`: the shaft torque's pressure and profile parts [N m]."""
+    return POWER_SENSE[kind] * induced_power / omega, profile_power / omega
+
+
 def coefficients(kind: str, *, thrust: float, torque: float, omega: float, radius: float,
-                 density: float, speed: float) -> dict:
+                 density: float, speed: float, mu: float = 0.0, climb_ratio: float = 0.0) -> dict:
     """Dimensional loads and coefficients of one rotor in the convention of ``kind``.
 
     Parameters
@@ -92,6 +230,9 @@ def coefficients(kind: str, *, thrust: float, torque: float, omega: float, radiu
     speed : float
         Propeller: flight speed along the axis [m/s]; turbine: wind speed
         [m/s]; unused for a rotor.
+    mu, climb_ratio : float
+        Advance and climb ratios (:func:`freestream_ratios`); a rotor's
+        figure of merit is NaN unless :func:`near_hover`.
 
     Returns
     -------
@@ -105,7 +246,7 @@ def coefficients(kind: str, *, thrust: float, torque: float, omega: float, radiu
         tip = omega * radius
         ct = thrust / (density * area * tip ** 2)
         cp = power / (density * area * tip ** 3)
-        fm = ct ** 1.5 / (np.sqrt(2.0) * cp) if ct > 0 and cp > 0 else float("nan")
+        fm = ct ** 1.5 / (np.sqrt(2.0) * cp) if cp > 0 and near_hover(mu, climb_ratio, ct) else float("nan")
         return {"thrust_N": thrust, "torque_Nm": torque, "power_W": power, "CT": ct,
                 "CQ": torque / (density * area * tip ** 2 * radius), "CP": cp, "FM": fm}
     if kind == "propeller":
@@ -116,12 +257,47 @@ def coefficients(kind: str, *, thrust: float, torque: float, omega: float, radiu
                 "J": speed / (n * d),
                 "efficiency": _nan_div(thrust * speed, power) if power > 0 else float("nan")}
     if kind == "turbine":
-        extracted = -power
+        extracted = POWER_SENSE[kind] * power
         q = 0.5 * density * area * speed ** 2
-        return {"power_W": extracted, "thrust_N": thrust, "torque_Nm": -torque,
+        return {"power_W": extracted, "thrust_N": thrust, "torque_Nm": POWER_SENSE[kind] * torque,
                 "CP": _nan_div(extracted, q * speed), "CT": _nan_div(thrust, q),
                 "tip_speed_ratio": _nan_div(omega * radius, speed)}
     raise ValueError(kind)
+
+
+def strip_distributions(strips, *, dr: np.ndarray, hub: np.ndarray, axis: np.ndarray,
+                        spin: int) -> dict:
+    """Section values of every blade and strip at one step, as arrays.
+
+    Parameters
+    ----------
+    strips : list of StripLoads
+        One per blade, B of them, n strips each.
+    dr : ndarray, shape (n,)
+        Strip width [m], in the strips' order.
+    hub, axis : ndarray, shape (3,)
+        Hub centre [m] and unit thrust axis.
+    spin : int
+        +1 or -1.
+
+    Returns
+    -------
+    dict of ndarray, each shape (B, n)
+        ``gamma_m2_s`` (bound circulation), ``cl``, ``cd``, ``alpha_deg``
+        (effective angle of attack), ``dT_dr_N_per_m`` (thrust per unit
+        radius, the force along the axis) and ``dQ_dr_N`` (shaft torque per
+        unit radius), in the strips' order.
+    """
+    out = {k: [] for k in ("gamma_m2_s", "cl", "cd", "alpha_deg", "dT_dr_N_per_m", "dQ_dr_N")}
+    for s in strips:
+        f = s.force_pressure + s.force_profile
+        out["gamma_m2_s"].append(s.gamma)
+        out["cl"].append(s.cl)
+        out["cd"].append(s.cd)
+        out["alpha_deg"].append(np.degrees(s.alpha_effective))
+        out["dT_dr_N_per_m"].append((f @ axis) / dr)
+        out["dQ_dr_N"].append(-spin * (np.cross(s.points - hub, f) @ axis) / dr)
+    return {k: np.asarray(v, dtype=np.float64).reshape(len(strips), -1) for k, v in out.items()}
 
 
 def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndarray,
@@ -157,19 +333,64 @@ def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndar
         blade's plane of rotation), ``dT_dr_N_per_m``, ``dQ_dr_N`` (shaft
         torque per unit radius).
     """
+    d = strip_distributions(strips, dr=dr, hub=hub, axis=axis, spin=spin)
     frames = []
     for k, s in enumerate(strips):
-        arm = s.points - hub
-        f = s.force_pressure + s.force_profile
         frames.append(pd.DataFrame({
             "body": name, "blade": k + 1, "strip": np.arange(r.shape[0]), "r_m": r,
-            "r_over_R": r / radius, "chord_m": s.chord, "gamma_m2_s": s.gamma, "cl": s.cl, "cd": s.cd,
-            "pitch_deg": pitch_deg, "alpha_deg": np.degrees(s.alpha_effective),
-            "inflow_angle_deg": pitch_deg - np.degrees(s.alpha_effective),
-            "dT_dr_N_per_m": (f @ axis) / dr,
-            "dQ_dr_N": -spin * (np.cross(arm, f) @ axis) / dr,
+            "r_over_R": r / radius, "chord_m": s.chord, "gamma_m2_s": d["gamma_m2_s"][k], "cl": d["cl"][k],
+            "cd": d["cd"][k], "pitch_deg": pitch_deg, "alpha_deg": d["alpha_deg"][k],
+            "inflow_angle_deg": pitch_deg - d["alpha_deg"][k],
+            "dT_dr_N_per_m": d["dT_dr_N_per_m"][k], "dQ_dr_N": d["dQ_dr_N"][k],
         }).sort_values("r_m"))
     return pd.concat(frames, ignore_index=True)
+
+
+def averaged_radial_table(name: str, samples: list, *, radius: float, r: np.ndarray, chord: np.ndarray,
+                          pitch_deg: np.ndarray) -> pd.DataFrame:
+    """Radial loading averaged over steps and blades: a rotor's revolution-averaged loading.
+
+    Parameters
+    ----------
+    name : str
+        Body name.
+    samples : list of dict
+        :func:`strip_distributions` of successive steps (those of the last
+        full revolution), each array shape (B, n).
+    radius : float
+        R [m].
+    r, chord, pitch_deg : ndarray, shape (n,)
+        Section radius [m], chord [m] and pitch (collective + twist) [deg],
+        in the strips' order.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per strip, root to tip: ``body``, ``r_over_R``, ``r_m``,
+        ``chord_m``, ``pitch_deg``, then the means over every sample and
+        blade of ``gamma_m2_s``, ``cl``, ``cd``, ``alpha_deg``,
+        ``dT_dr_N_per_m`` and ``dQ_dr_N``; ``inflow_angle_deg`` = pitch
+        minus the mean ``alpha_deg``; ``steps_averaged`` (samples) and
+        ``blades_averaged``.
+
+    Examples
+    --------
+    >>> step = {"gamma_m2_s": np.array([[1.0, 2.0], [3.0, 4.0]])}
+    >>> t = averaged_radial_table("rotor", [step], radius=1.0, r=np.array([0.4, 0.8]),
+    ...                           chord=np.array([0.1, 0.1]), pitch_deg=np.array([8.0, 4.0]))
+    >>> t["gamma_m2_s"].tolist(), int(t["blades_averaged"].iloc[0])
+    ([2.0, 3.0], 2)
+    """
+    order = np.argsort(r)
+    table = pd.DataFrame({"body": name, "r_over_R": r[order] / radius, "r_m": r[order],
+                          "chord_m": chord[order], "pitch_deg": pitch_deg[order]})
+    for key in samples[0]:
+        table[key] = np.mean([s[key] for s in samples], axis=(0, 1))[order]
+    if "alpha_deg" in table:
+        table["inflow_angle_deg"] = table["pitch_deg"] - table["alpha_deg"]
+    table["steps_averaged"] = len(samples)
+    table["blades_averaged"] = samples[0][next(iter(samples[0]))].shape[0]
+    return table
 
 
 def last_revolution(frame: pd.DataFrame, steps_per_revolution: int) -> pd.DataFrame:

@@ -13,7 +13,8 @@ from .wake import WakeSheet
 
 WING_SUMMARY_KEYS = ("CL", "CDi", "span_efficiency", "lift_N", "induced_drag_N",
                      "induced_drag_trefftz_N", "CDi_trefftz", "span_efficiency_trefftz",
-                     "trefftz_difference", "profile_drag_N", "CD0", "side_force_N")
+                     "trefftz_difference", "profile_drag_N", "CD0", "side_force_N",
+                     "drag_N", "CD", "lift_to_drag", "pitching_moment_Nm", "CM")
 
 
 class WingBody:
@@ -43,6 +44,8 @@ class WingBody:
         self.span_axis = rotation_matrix(spec.orientation) @ np.array([0.0, 1.0, 0.0])
         self.area = spec.reference_area
         self.span = spec.span
+        self.moment_reference = np.asarray(spec.moment_reference, dtype=np.float64)
+        self.reference_chord = spec.reference_chord
 
     def surfaces(self, time: float) -> list:
         """The wing's one surface; a wing does not move."""
@@ -56,7 +59,8 @@ class WingBody:
         """Totals and coefficients (see :func:`wakes.aero.loads.wing_totals`)."""
         return wing_totals(strips, velocity=self.velocity, span_axis=self.span_axis,
                            density=self.density, area=self.area, span=self.span,
-                           trefftz_drag=trefftz_drag)
+                           trefftz_drag=trefftz_drag, moment_reference=self.moment_reference,
+                           reference_chord=self.reference_chord)
 
     def section_table(self, strips: list) -> pd.DataFrame:
         """Spanwise distribution: one row per strip, per-unit-span loads along lift and drag."""

@@ -36,7 +36,7 @@ from pathlib import Path
 import numpy as np
 
 from ..aero.clearance import contact_point, disc_triangles, wing_triangles
-from ..aero.geometry import SPACINGS, Distribution, WingPlanform
+from ..aero.geometry import SPACINGS, Distribution, WingPlanform, rotation_matrix
 from ..aero.ground import GroundPlane
 from ..aero.polars import OUT_OF_RANGE_MODES, has_mach_column
 from ..aero.rotor import (
@@ -366,6 +366,13 @@ class WingSpec:
                              "deg", kind="vec3", minimum=-MAX_ANGLE, maximum=MAX_ANGLE)
     reference_area: float | None = key(None, "area for coefficients (default: planform area)", "m^2",
                                        above=0.0, minimum=1e-9, maximum=MAX_LENGTH ** 2, resolved=True)
+    reference_chord: float | None = key(None, "chord for the pitching-moment coefficient (default: "
+                                        "mean aerodynamic chord)", "m", above=0.0, minimum=MIN_LENGTH,
+                                        maximum=MAX_LENGTH, resolved=True)
+    moment_reference: tuple | None = key(None, "point the pitching moment is taken about, global frame "
+                                         "(default: quarter chord of the mean aerodynamic chord)", "m",
+                                         kind="vec3", minimum=-MAX_COORDINATE, maximum=MAX_COORDINATE,
+                                         resolved=True)
     airfoil: AirfoilSpec = key(AirfoilSpec(), "section polar", kind="table")
     name: str = field(default="wing", metadata=dict(internal=True))
 
@@ -410,7 +417,14 @@ class WingSpec:
     def resolve(self, case: Case) -> WingSpec:
         n_c = self.chordwise_panels or (1 if self.model == "lifting-line" else 4)
         area = self.reference_area or self.planform().area()
-        return dataclasses.replace(self, chordwise_panels=n_c, reference_area=area)
+        mac, point = self.planform().mean_aerodynamic_chord()
+        if self.moment_reference is None:
+            point = rotation_matrix(self.orientation) @ point + np.asarray(self.position, dtype=np.float64)
+            moment_reference = tuple(float(v) for v in point)
+        else:
+            moment_reference = self.moment_reference
+        return dataclasses.replace(self, chordwise_panels=n_c, reference_area=area,
+                                   reference_chord=self.reference_chord or mac, moment_reference=moment_reference)
 
     def suggest_dt(self, case: Case) -> float:
         speed = float(np.linalg.norm(case.freestream.vector()))

@@ -1,13 +1,18 @@
-"""Reading a run folder back: the tables and summary a finished run wrote.
+"""A run folder: reading it back, and the files it owns.
 
-What ``wakes plot`` and ``wakes probe`` start from; the folder's layout is
-described in :mod:`wakes.run`.
+:func:`read_run` reads the tables and summary a finished run wrote (what
+``wakes plot`` and ``wakes probe`` start from); the folder's layout is
+described in :mod:`wakes.run`. Every run lists the files it wrote in
+``manifest.txt`` (:func:`record_files`); :func:`clear_run` removes those
+and the files of the format's known names before ``wakes run --overwrite``
+starts, and nothing else, so a user's own files in the folder stay.
 """
 
 from __future__ import annotations
 
 import json
 import os
+import re
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -16,8 +21,21 @@ import pandas as pd
 
 from ..errors import InputError
 from ..induction.elements import Filaments, Particles
+from .atomic import write_text
 
 RUN_MARKERS = ("summary.json", "case.toml", "loads.csv")
+MANIFEST = "manifest.txt"
+# The format's known names, for a folder whose manifest is missing (a run killed before writing
+# it, or one written by an earlier version): the run's tables and figures.
+RUN_FILES = RUN_MARKERS + ("sections.csv", "loads.parquet", "sections.parquet", "wake_segments.csv",
+                           "wake_particles.csv", "tip_vortex.csv", "radial_loading.csv", MANIFEST)
+PLOT_FILES = ("loads.png", "span_loading.png", "radial_loading.png", "wake_3d.png", "tip_vortex.png")
+RUN_SUBFOLDERS = ("wake", "checkpoints", "plots", "polars")   # made by a run; removed when left empty
+# Known patterns: snapshots, checkpoints, the default outputs of 'wakes probe' (of the run's wake)
+# and the temporary file of a write killed half way (.NAME.RANDOM.part).
+_OWNED = re.compile(r"^(?:wake/(?:filaments|particles)(?:_\d{6,}\.vtp|\.pvd)|checkpoints/step-\d{7,}\.npz"
+                    r"|probe_points\.csv|probe_plane_[xyz][^/]*\.(?:csv|vts)"
+                    r"|(?:(?:wake|checkpoints|plots|polars)/)?\.[^/]+\.part)$")
 
 
 @dataclass
@@ -33,6 +51,9 @@ class RunFolder:
     loads, sections : pandas.DataFrame
     wake_segments, wake_particles : pandas.DataFrame
         The final wake tables (empty when the run wrote no wake).
+    radial_loading, tip_vortex : pandas.DataFrame
+        Rotors' revolution-averaged radial loading and tip-vortex path
+        (empty when the run has no rotor).
     """
 
     path: Path
@@ -42,6 +63,8 @@ class RunFolder:
     sections: pd.DataFrame
     wake_segments: pd.DataFrame
     wake_particles: pd.DataFrame
+    radial_loading: pd.DataFrame
+    tip_vortex: pd.DataFrame
 
     @property
     def title(self) -> str:
@@ -121,9 +144,89 @@ def read_run(path: str | os.PathLike) -> RunFolder:
         raise InputError(f"run folder file {path / 'summary.json'}: has no 'bodies' entry; "
                          "not written by 'wakes run'")
     empty = pd.DataFrame()
-    tables = {name: (_read_csv(path / name) if (path / name).is_file() else empty)
-              for name in ("sections.csv", "wake_segments.csv", "wake_particles.csv")}
+    tables = {name: (_read_csv(path / f"{name}.csv") if (path / f"{name}.csv").is_file() else empty)
+              for name in ("sections", "wake_segments", "wake_particles", "radial_loading", "tip_vortex")}
     return RunFolder(path=path, case=summary.get("case", {}), summary=summary,
-                     loads=_read_csv(path / "loads.csv"), sections=tables["sections.csv"],
-                     wake_segments=tables["wake_segments.csv"],
-                     wake_particles=tables["wake_particles.csv"])
+                     loads=_read_csv(path / "loads.csv"), **tables)
+
+
+def _inside(out: Path, rel: str) -> Path | None:
+    """``out / rel`` when ``rel`` is a plain relative path that stays inside ``out``, else None."""
+    p = Path(rel)
+    if not rel or p.is_absolute() or ".." in p.parts:
+        return None
+    return out / p
+
+
+def listed_files(out: str | os.PathLike) -> list[str]:
+    """The files ``manifest.txt`` of a run folder lists (relative, POSIX ``/``); [] without one."""
+    path = Path(out) / MANIFEST
+    try:
+        lines = path.read_text(encoding="utf-8").splitlines()
+    except (FileNotFoundError, UnicodeDecodeError):
+        return []
+    return [line for line in lines if line and not line.startswith("#")]
+
+
+def record_files(out: str | os.PathLike, paths) -> Path:
+    """Add ``paths`` (files written into the run folder ``out``) to its ``manifest.txt``.
+
+    Entries of files no longer there are dropped; paths outside ``out`` are
+    not listed.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> out = pathlib.Path(tempfile.mkdtemp())
+    >>> _ = (out / "loads.csv").write_text("step\\n")
+    >>> _ = record_files(out, [out / "loads.csv"])
+    >>> listed_files(out)
+    ['loads.csv', 'manifest.txt']
+    """
+    out = Path(out)
+    names = set(listed_files(out)) | {MANIFEST}
+    root = out.resolve()
+    for p in map(Path, paths):
+        full = (p if p.is_absolute() else Path.cwd() / p).resolve()
+        if full.is_relative_to(root) and full != root:
+            names.add(full.relative_to(root).as_posix())
+    names = sorted(n for n in names if n == MANIFEST or ((q := _inside(out, n)) and q.is_file()))
+    header = ("# Files written by wakes into this run folder ('wakes run --overwrite' removes them "
+              "and nothing else).\n")
+    return write_text(out / MANIFEST, header + "".join(f"{n}\n" for n in names))
+
+
+def run_files(out: str | os.PathLike) -> list[Path]:
+    """The files of ``out`` that a run wrote: listed in its manifest or of the format's known names.
+
+    Examples
+    --------
+    >>> [p.name for p in run_files("glider-run") if p.suffix == ".csv"]
+    ['loads.csv', 'sections.csv', 'wake_segments.csv']
+    """
+    out = Path(out)
+    found = {q for n in listed_files(out) if (q := _inside(out, n)) is not None}
+    found |= {out / n for n in RUN_FILES} | {out / "plots" / n for n in PLOT_FILES}
+    for folder in ("", *RUN_SUBFOLDERS):
+        if (out / folder).is_dir():
+            found |= {p for p in (out / folder).iterdir()
+                      if _OWNED.match(p.relative_to(out).as_posix())}
+    return sorted(p for p in found if p.is_file() or p.is_symlink())
+
+
+def clear_run(out: str | os.PathLike, keep=()) -> list[Path]:
+    """Remove what an earlier run wrote into ``out`` (:func:`run_files`); return the files removed.
+
+    Files named in ``keep`` stay (the inputs of the run about to start, if
+    a case was put inside the folder), as do all files the run did not
+    write; the run's subfolders go when left empty.
+    """
+    out = Path(out)
+    kept = {Path(k).resolve() for k in keep}
+    removed = [p for p in run_files(out) if p.resolve() not in kept]
+    for p in removed:
+        p.unlink(missing_ok=True)
+    for folder in RUN_SUBFOLDERS:
+        if (out / folder).is_dir() and not any((out / folder).iterdir()):
+            (out / folder).rmdir()
+    return removed

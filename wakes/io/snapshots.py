@@ -4,6 +4,11 @@ A run folder's ``wake/`` holds ``filaments_NNNNNN.vtp`` and
 ``particles_NNNNNN.vtp`` (NNNNNN: the step whose starting wake they show)
 and the collections ``filaments.pvd`` and ``particles.pvd`` listing them
 with their simulated times, so ParaView plays the wake as an animation.
+Beside them ``surfaces_NNNNNN.vtp`` and ``surfaces.pvd`` hold the lifting
+surfaces (wings, blades) at the same times, as the panels of their ring
+lattices (:func:`wakes.io.vtk.write_surfaces`: the leading row on the
+quarter-chord line, the last on the shedding line), so the blades turn
+with their wake.
 
 Every file is written atomically and a collection is rewritten after each
 snapshot, so a run killed at any moment leaves a collection that lists
@@ -24,9 +29,9 @@ import numpy as np
 from ..induction.elements import Filaments, Particles
 from . import vtk as vtk_io
 
-KINDS = ("filaments", "particles")
+KINDS = ("filaments", "particles", "surfaces")
 WAKE_FOLDER = "wake"
-_FILE = re.compile(r"^(filaments|particles)_(\d{6,})\.vtp$")
+_FILE = re.compile(r"^(filaments|particles|surfaces)_(\d{6,})\.vtp$")
 
 
 def merge_wake(sources) -> tuple[Filaments | None, Particles | None]:
@@ -107,19 +112,24 @@ class WakeSnapshots:
         """Simulated times [s] of the ``kind`` ("filaments" or "particles") snapshots so far."""
         return [t for _, t, _ in self.entries[kind]]
 
-    def write(self, step: int, time: float, sources) -> list[Path]:
-        """Write the wake ``sources`` (Filaments and Particles) at ``step`` and ``time`` [s].
+    def write(self, step: int, time: float, sources, surfaces=()) -> list[Path]:
+        """Write the wake ``sources`` (Filaments and Particles) and ``surfaces`` at ``step`` and ``time`` [s].
 
-        Returns the files written: a ``.vtp`` and its rewritten ``.pvd`` per
-        kind of element present (none for an empty wake).
+        ``surfaces`` are :class:`wakes.aero.geometry.LiftingSurface` objects
+        at ``time``, written only beside a wake. Returns the files written:
+        a ``.vtp`` and its rewritten ``.pvd`` per kind present (none for an
+        empty wake, so a run that fails in its first step leaves no file).
         """
         written = []
-        for kind, elements in zip(KINDS, merge_wake(sources)):
+        writers = {"filaments": vtk_io.write_filaments, "particles": vtk_io.write_particles,
+                   "surfaces": vtk_io.write_surfaces}
+        wake = merge_wake(sources)
+        bodies = list(surfaces) if any(e is not None for e in wake) and len(surfaces) else None
+        for kind, elements in zip(KINDS, wake + (bodies,)):
             if elements is None:
                 continue
             name = f"{kind}_{step:06d}.vtp"
-            writer = vtk_io.write_filaments if kind == "filaments" else vtk_io.write_particles
-            written.append(writer(self.folder / name, elements))
+            written.append(writers[kind](self.folder / name, elements))
             kept = [e for e in self.entries[kind] if e[0] != step]
             self.entries[kind] = sorted(kept + [(step, float(time), name)])
             written.append(vtk_io.write_collection(

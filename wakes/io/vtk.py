@@ -3,7 +3,10 @@
 Particles are written as points (one vertex cell each) with point arrays
 ``strength`` (3 components, m^3/s), ``strength_magnitude`` and ``radius`` (m);
 filaments as two-point lines over their nodes with cell arrays
-``circulation`` (m^2/s) and ``core_radius`` (m). Arrays are stored inline,
+``circulation`` (m^2/s) and ``core_radius`` (m); lifting surfaces (wings,
+blades) as quadrilateral panels over their ring corners with cell arrays
+``surface`` (index of the surface in the list written), ``normal`` and
+``area`` (m^2). Arrays are stored inline,
 base64-encoded little-endian binary with a UInt64 byte-count header, as the
 VTK XML format specifies; ParaView and the ``vtk`` package read them.
 """
@@ -36,7 +39,7 @@ def _data_array(name: str | None, values: np.ndarray, components: int = 1) -> st
 def _polydata(points: np.ndarray, cell_kind: str, connectivity: np.ndarray,
               offsets: np.ndarray, point_arrays: dict, cell_arrays: dict) -> str:
     n_cells = offsets.shape[0]
-    counts = {"Verts": 0, "Lines": 0}
+    counts = {"Verts": 0, "Lines": 0, "Polys": 0}
     counts[cell_kind] = n_cells
 
     def arrays(table):
@@ -46,7 +49,7 @@ def _polydata(points: np.ndarray, cell_kind: str, connectivity: np.ndarray,
             '<VTKFile type="PolyData" version="1.0" byte_order="LittleEndian" '
             'header_type="UInt64">\n<PolyData>\n'
             f'<Piece NumberOfPoints="{points.shape[0]}" NumberOfVerts="{counts["Verts"]}" '
-            f'NumberOfLines="{counts["Lines"]}" NumberOfStrips="0" NumberOfPolys="0">\n'
+            f'NumberOfLines="{counts["Lines"]}" NumberOfStrips="0" NumberOfPolys="{counts["Polys"]}">\n'
             f"<PointData>{arrays(point_arrays)}</PointData>\n"
             f"<CellData>{arrays(cell_arrays)}</CellData>\n"
             f"<Points>{_data_array(None, points, 3)}</Points>\n"
@@ -90,6 +93,40 @@ def write_filaments(path: str | os.PathLike, filaments: Filaments) -> Path:
                      2 * np.arange(1, k + 1, dtype=np.int64),
                      {}, {"circulation": filaments.circulation,
                           "core_radius": filaments.core_radius})
+    return atomic.write_text(path, text)
+
+
+def write_surfaces(path: str | os.PathLike, surfaces) -> Path:
+    """Write lifting surfaces to a ``.vtp`` file (atomically) as quadrilateral panels.
+
+    Parameters
+    ----------
+    path : path-like
+        Output file, conventionally ending in ``.vtp``.
+    surfaces : list of wakes.aero.geometry.LiftingSurface
+        Each surface's ring corners (n_chord + 1, n_span + 1, 3) [m] become
+        n_chord x n_span panels, with cell arrays ``surface`` (its index in
+        ``surfaces``), ``normal`` and ``area`` [m^2].
+    """
+    points, quads, index, normals, areas = [], [], [], [], []
+    offset = 0
+    for k, s in enumerate(surfaces):
+        nc, ns = s.n_chord, s.n_span
+        points.append(s.corners.reshape(-1, 3))
+        i, j = np.meshgrid(np.arange(nc), np.arange(ns), indexing="ij")
+        node = offset + i * (ns + 1) + j                   # corner (i, j) of every panel
+        quads.append(np.stack([node, node + 1, node + ns + 2, node + ns + 1], axis=-1).reshape(-1, 4))
+        index.append(np.full(nc * ns, k, dtype=np.int64))
+        normals.append(s.normals.reshape(-1, 3))
+        areas.append(s.areas.reshape(-1))
+        offset += (nc + 1) * (ns + 1)
+    n = sum(q.shape[0] for q in quads)
+    text = _polydata(np.vstack(points) if points else np.zeros((0, 3)), "Polys",
+                     np.concatenate(quads).reshape(-1).astype(np.int64) if quads else np.zeros(0, np.int64),
+                     4 * np.arange(1, n + 1, dtype=np.int64), {},
+                     {"surface": np.concatenate(index) if index else np.zeros(0, np.int64),
+                      "normal": np.vstack(normals) if normals else np.zeros((0, 3)),
+                      "area": np.concatenate(areas).astype(np.float64) if areas else np.zeros(0)})
     return atomic.write_text(path, text)
 
 
