@@ -50,7 +50,7 @@ from ._version import __version__
 from .budget import check_budget, parse_size
 from .case import MAX_DT, MIN_DT, SCHEDULER_ADDRESS, load_case
 from .errors import MemoryBudgetError, WakesError
-from .estimate import estimate_case
+from .estimate import estimate_case, step_costs
 from .io.atomic import write_text
 from .io.checkpoint import prepare_resume
 from .io.runfolder import record_files
@@ -185,11 +185,12 @@ def _run(args) -> int:
         out = check_new_folder(writable_path("--out", args.out, folder=True), args.overwrite)
         case, state = load_case(args.case), None
     check_budget(case, max_memory)       # a refusal leaves nothing behind
+    costs = step_costs(case)             # the progress bar's time left is scaled from these
     if args.resume is None and args.overwrite:   # the earlier run's files go now, the user's stay
         clear_run(out, keep=case_inputs(case))
     made = _make_folder("--out" if args.resume is None else "--resume", out)
     bar = ProgressBar(case.time.dt, origin=(0, 0.0) if state is None else state.origin,
-                      quiet=args.quiet)
+                      quiet=args.quiet, step_costs=costs)
     try:
         run = run_guarded(case, out, progress=bar, max_memory=max_memory, resume=state,
                           write=lambda r, o: write_run(r, o, plots=r.status == "finished"

@@ -2,7 +2,11 @@
 
 The bar shows the steps done, the simulated time, the live size of the
 wake (filament segments and particles), the rate in steps per second and
-the time left. tqdm draws it in place on a terminal and as a widget in a
+the time left. A rotor's wake grows, so its later steps cost more: the time
+left is the cost of the steps left (:func:`wakes.estimate.step_costs`)
+at the speed measured over the steps done
+(:func:`wakes.estimate.remaining_time`), not a straight line through the
+steps done. tqdm draws it in place on a terminal and as a widget in a
 notebook (``tqdm.auto``), and stays silent when the stream is not a
 terminal (a log file, a pipe, a batch job) or when the user asked for
 quiet, so logs hold no control characters.
@@ -11,14 +15,17 @@ quiet, so logs hold no control characters.
 from __future__ import annotations
 
 import sys
+import time
 from typing import TextIO
 
+import numpy as np
 from tqdm.auto import tqdm
+
+from .estimate import remaining_time
 
 BAR_WIDTH = 24          # characters of the bar itself
 MIN_REDRAW_S = 0.1      # at most ten redraws a second: a terminal is slow at hundreds
-BAR_FORMAT = ("[{bar:" + str(BAR_WIDTH) + "}] {n_fmt}/{total_fmt}  {postfix}  "
-              "{rate_fmt}  {remaining} left")
+BAR_FORMAT = "[{bar:" + str(BAR_WIDTH) + "}] {n_fmt}/{total_fmt}  {postfix}  {rate_fmt}"
 
 
 def wake_text(sim_time_s: float, wake: tuple[int, int] | None) -> str:
@@ -54,6 +61,12 @@ class ProgressBar:
         Where to draw (default: standard error).
     quiet : bool
         Draw nothing.
+    step_costs : array_like, shape (steps,), optional
+        Cost of every step (:func:`wakes.estimate.step_costs`) to scale the
+        time left from; without it (or for another number of steps) the
+        time left assumes steps of equal cost.
+    clock : callable, optional
+        Returns the time [s] (default :func:`time.perf_counter`).
 
     Examples
     --------
@@ -64,8 +77,12 @@ class ProgressBar:
     """
 
     def __init__(self, dt: float, *, origin: tuple[int, float] = (0, 0.0),
-                 stream: TextIO | None = None, quiet: bool = False):
+                 stream: TextIO | None = None, quiet: bool = False, step_costs=None,
+                 clock=time.perf_counter):
         self.dt = dt
+        self.step_costs = None if step_costs is None else np.asarray(step_costs, dtype=np.float64)
+        self.clock = clock
+        self._first = self._start = None
         self.origin = (int(origin[0]), float(origin[1]))
         self.stream = sys.stderr if stream is None else stream
         isatty = getattr(self.stream, "isatty", None)
@@ -80,8 +97,37 @@ class ProgressBar:
             self._bar = tqdm(total=steps, initial=step - 1, file=self.stream, unit=" steps",
                              bar_format=BAR_FORMAT, mininterval=MIN_REDRAW_S, dynamic_ncols=False,
                              leave=True)
+            self._first, self._start = step, self.clock()   # the time is measured from here
         sim_time = self.origin[1] + (step - self.origin[0]) * self.dt
-        self._bar.set_postfix_str(wake_text(sim_time, wake), refresh=False)
+        text = wake_text(sim_time, wake)
+        left = 0.0 if step >= steps else self.time_left(step, steps)
+        text += f"  {'?' if left != left else tqdm.format_interval(left)} left"   # NaN: nothing timed yet
+        self._bar.set_postfix_str(text, refresh=False)
         self._bar.update(step - self._bar.n)
         if step >= steps:
             self._bar.close()
+
+    def time_left(self, step: int, steps: int) -> float:
+        """Time [s] left after ``step`` of ``steps`` steps, from the steps this bar has timed.
+
+        Examples
+        --------
+        Steps that cost 1, 1, 2, 4 (a growing wake): the bar starts after
+        step 1 and step 2 (cost 1) takes 1 s, so the last two (cost 6)
+        take 6 s; a straight line would say 2 s.
+
+        >>> import io
+        >>> now = iter([0.0, 1.0])
+        >>> bar = ProgressBar(0.01, step_costs=[1, 1, 2, 4], clock=lambda: next(now))
+        >>> bar._first, bar._start = 1, bar.clock()     # as the first call after step 1 sets them
+        >>> bar.time_left(2, 4)
+        6.0
+        """
+        done = step - self._first
+        if done <= 0:
+            return float("nan")
+        elapsed = self.clock() - self._start
+        costs = self.step_costs
+        if costs is None or len(costs) != steps:
+            costs = np.ones(steps)
+        return remaining_time(costs[self._first:], done, elapsed)
