@@ -20,7 +20,9 @@ PACKAGE = Path(__file__).resolve().parent.parent / "wakes"
 # The layer order, written once: the longest matching prefix gives a module's rank.
 LAYERS = (
     ("base", ("wakes._version", "wakes._system", "wakes._validate", "wakes.errors",
-              "wakes.io", "wakes.io.atomic", "wakes.io.tables")),
+              "wakes.io", "wakes.io.atomic", "wakes.io.tables",
+              # pure arithmetic on a quantity's values at refinement levels: any layer may use it
+              "wakes.uncertainty")),
     ("engine", ("wakes.induction",)),
     ("vortex physics", ("wakes.vortex", "wakes.exact")),
     ("lifting bodies", ("wakes.aero",)),
