@@ -205,3 +205,76 @@ def test_set_applies_to_every_point_of_a_sweep(tmp_path):
 def test_the_run_folders_known_figure_names_are_the_figures_a_run_draws():
     # the names --overwrite removes in a folder without manifest.txt
     assert set(PLOT_FILES) == set(FIGURES)
+
+
+# ----------------------------------------------------------------- a portable run folder
+
+POLAR = Path(__file__).parents[1] / "cases" / "polars" / "survey-glider-section.csv"
+# a wing whose worked-out defaults come out with float noise when computed plainly:
+# mean chord 0.2 m gives core radius 0.1 x 0.2 = 0.020000000000000004, and the
+# tapered planform's area integrates to 0.8999999999999998 m^2
+NOISY = """
+[freestream]
+speed = 10.0
+angle_of_attack = 3.0
+[bodies.wing]
+type = "wing"
+span = 4.5
+chord = {law = "linear", root = 0.3, tip = 0.1}
+spanwise_panels = 6
+[bodies.wing.airfoil]
+polar = "polars/section.csv"
+[wake]
+motion = "frozen"
+[time]
+steps = 4
+dt = 0.3
+[output]
+checkpoint_every = 1
+"""
+
+
+def _noisy_case(folder: Path) -> Path:
+    (folder / "polars").mkdir(parents=True)
+    (folder / "polars" / "section.csv").write_bytes(POLAR.read_bytes())
+    (folder / "noisy.toml").write_text(NOISY)
+    return folder / "noisy.toml"
+
+
+def test_case_toml_holds_worked_out_defaults_without_float_noise_and_reruns_bit_for_bit(tmp_path):
+    case = _noisy_case(tmp_path / "src")
+    assert _main(["run", case, "--out", tmp_path / "a", "--quiet", "--no-plots"])[0] == 0
+    text = (tmp_path / "a" / "case.toml").read_text()
+    written = tomllib.loads(text)
+    assert written["wake"]["core_radius"] == 0.02 and "core_radius = 0.02\n" in text
+    assert written["bodies"]["wing"]["reference_area"] == 0.9 and "reference_area = 0.9\n" in text
+    assert written["bodies"]["wing"]["airfoil"]["polar"] == "polars/section.csv"
+    # the written case, run again, gives the very same numbers
+    assert _main(["run", tmp_path / "a" / "case.toml", "--out", tmp_path / "b", "--quiet", "--no-plots"])[0] == 0
+    for name in ("loads.csv", "sections.csv", "wake_segments.csv"):
+        assert (tmp_path / "a" / name).read_bytes() == (tmp_path / "b" / name).read_bytes(), name
+
+
+def test_a_moved_run_folder_checks_and_resumes_without_the_original_files(tmp_path, monkeypatch):
+    import shutil
+
+    import wakes.run
+
+    case = _noisy_case(tmp_path / "src")
+    assert _main(["run", case, "--out", tmp_path / "whole", "--quiet", "--no-plots"])[0] == 0
+    # a run that stopped after step 2: its checkpoints stay (as after Ctrl-C)
+    monkeypatch.setattr(wakes.run.checkpoints, "remove_checkpoints", lambda out: None)
+    assert _main(["run", case, "--out", tmp_path / "part", "--quiet", "--no-plots"])[0] == 0
+    monkeypatch.undo()
+    for p in sorted((tmp_path / "part" / "checkpoints").glob("step-*.npz"))[1:]:
+        p.unlink()                                      # go on from the oldest one kept
+    shutil.rmtree(tmp_path / "src")                     # the case file and its polar are gone
+    moved = tmp_path / "elsewhere" / "run"
+    shutil.move(tmp_path / "part", moved)
+    assert (moved / "polars" / "section.csv").read_bytes() == POLAR.read_bytes()
+    status, _, err = _main(["check", moved / "case.toml", "--quiet"])
+    assert status == 0, err
+    status, _, err = _main(["run", "--resume", moved, "--quiet", "--no-plots"])
+    assert status == 0, err
+    for name in ("loads.csv", "sections.csv"):
+        assert (moved / name).read_bytes() == (tmp_path / "whole" / name).read_bytes(), name

@@ -204,6 +204,8 @@ def _run(args) -> int:
                           write=lambda r, o: write_run(r, o, plots=r.status == "finished"
                                                        and not args.no_plots))
     except BaseException:
+        if made and not any(out.glob("*.csv")):   # a folder made for a run that wrote no table:
+            clear_run(out)                        # its copied inputs go, and then the folder
         for folder in reversed(made):    # folders made for this run and still empty go again
             with contextlib.suppress(OSError):
                 folder.rmdir()

@@ -142,7 +142,7 @@ class Run:
                   + (f" (revision {revision})" if revision else "")
                   + f"; every default filled in.\nSource: {self.case.source}"
                   + "".join(f"\nSet on the command line: {t}" for t in self.case.settings))
-        write_text(paths[3], self.case.to_toml(header))
+        write_text(paths[3], self.case.to_toml(header, relative_to=out))   # file paths: relative
         seg, par = wake_tables(self.wake) if self.case.output.wake else (pd.DataFrame(), pd.DataFrame())
         for name, table in (("wake_segments.csv", seg), ("wake_particles.csv", par)):
             if len(table):
