@@ -7,8 +7,9 @@ One step at time t (:meth:`TimeLoop.step`, driven by :func:`wakes.run.run_case`)
 3. the bound circulation is solved (:mod:`wakes.aero.lifting_line`);
 4. loads and coefficients of every body make a row of the loads table;
 5. the wake nodes and particles move (free: local velocity; frozen:
-   freestream), particles stretch, and each surface sheds a new row at its
-   trailing edge carrying the circulation it had at t;
+   freestream) by one step of Heun's second-order method
+   (:mod:`wakes.aero.wake_motion`), particles stretch, and each surface
+   sheds a new row at its trailing edge carrying the circulation it had at t;
 6. old wake is converted to particles or removed.
 
 Every velocity comes from :func:`wakes.induce`.
@@ -34,6 +35,7 @@ from .aero.loads import strip_loads, trefftz_induced_drag
 from .aero.plausibility import body_polar_limits, check_run
 from .aero.vortex_lattice import surface_filaments
 from .aero.wake import WakeSettings
+from .aero.wake_motion import march
 from .budget import MemoryBudgetError
 from .case import Case
 from .errors import NumericalError, WakesError
@@ -353,9 +355,12 @@ class TimeLoop:
             self.rows.append(row)
             k += len(ss)
         if step < self.steps - 1:
-            _advance_wakes(wakes, surfaces, sol.gamma, self.settings, v_inf, self.dt, t,
-                           self.method, self.watch, step, ground, self.induce)
-            new_surfaces = [s for b in bodies for s in b.surfaces(t + self.dt)]
+            prev = None
+            if self.gamma_prev is not None:
+                ends = np.cumsum([0] + [g.size for g in sol.gamma])
+                prev = [self.gamma_prev[a:b].reshape(g.shape) for g, a, b in zip(sol.gamma, ends[:-1], ends[1:])]
+            new_surfaces = _advance_wakes(wakes, bodies, surfaces, sol.gamma, prev, self.settings, v_inf,
+                                          self.dt, t, self.method, self.watch, step, ground, self.induce)
             for w, s, g in zip(wakes, new_surfaces, sol.gamma):
                 w.shed(s.te_nodes, g[-1], t + self.dt)
                 w.age_out(t + self.dt)
@@ -479,47 +484,66 @@ def _trefftz(layout, strips, v_inf, rho):
     return drags
 
 
-def _advance_wakes(wakes, surfaces, gammas, settings, v_inf, dt, t, method, watch=None, step=0,
-                   ground=None, induce=induce):
+def _advance_wakes(wakes, bodies, surfaces, gammas, gammas_prev, settings, v_inf, dt, t, method, watch=None,
+                   step=0, ground=None, induce=induce) -> list:
     """Move every wake node and particle one step (free or frozen), stretching particles.
 
-    ``method`` holds the keyword arguments ``method`` and ``tolerance`` of
-    :func:`wakes.induce`. ``watch`` (:class:`wakes.watchdog.Watchdog`)
-    checks the velocities before anything moves. A ``ground``
+    One step of :func:`wakes.aero.wake_motion.march` (Heun's method): the
+    second stage places the ``bodies`` at t + dt with their circulation
+    ``gammas`` (per surface) extrapolated linearly through ``gammas_prev``
+    (the previous step's, or None: held). ``method`` holds the keyword
+    arguments ``method`` and ``tolerance`` of :func:`wakes.induce`.
+    ``watch`` (:class:`wakes.watchdog.Watchdog`) checks every stage's
+    velocities before anything moves. A ``ground``
     (:class:`wakes.aero.ground.GroundPlane`) adds the images of every
     element. ``induce`` is the function that sums the velocities (the
-    engine's, or a cluster's for a large wake).
+    engine's, or a cluster's for a large wake). Returns the surfaces at
+    t + dt.
     """
-    nodes = np.vstack([w.rows.reshape(-1, 3) for w in wakes])
-    parts = [w.positions for w in wakes]
-    n_par = sum(p.shape[0] for p in parts)
-    u_nodes = np.broadcast_to(v_inf, nodes.shape).copy()
-    u_par = np.broadcast_to(v_inf, (n_par, 3)).copy()
-    stretch = None
-    if settings.motion == "free":
-        src = [surface_filaments(s, g, core=settings.core, core_radius=settings.core_radius,
-                                 te_core_radius=settings.attached_core_radius)
-               for s, g in zip(surfaces, gammas)]
-        src = with_ground(src + [e for w in wakes for e in w.sources(t)], ground)
-        u_nodes += induce(src, nodes, **method)
-        if n_par:
-            vel, grad = induce(src, np.vstack(parts), gradient=True, **method)
-            u_par += vel
-            alpha = np.vstack([w.strengths for w in wakes])
-            stretch = stretching_rate(settings.stretching, alpha, grad)
-    if stretch is not None and not np.isfinite(stretch).all():
-        u_par = np.where(np.isfinite(stretch), u_par, np.nan)   # reported as a non-finite particle
-    if watch is not None:
-        watch.check_velocities(step, t, wakes, [s.name for s in surfaces], u_nodes, u_par)
-    elif not (np.isfinite(u_nodes).all() and np.isfinite(u_par).all()):
-        raise NumericalError(f"the wake velocity is not finite at t = {t:.6g} s; likely cause: a time "
-                             "step too large for the wake spacing or a core radius too small "
-                             "([time] dt, [wake] core_radius)")
-    k = 0
-    p = 0
-    for w in wakes:
-        m = w.node_count
-        q = w.particle_count
-        w.move(u_nodes[k:k + m], dt, u_par[p:p + q], None if stretch is None else stretch[p:p + q])
-        k += m
-        p += q
+    placed = {t: surfaces}
+
+    def surfaces_at(time):
+        if time not in placed:
+            placed[time] = [s for b in bodies for s in b.surfaces(time)]
+        return placed[time]
+
+    def gammas_at(time):
+        if gammas_prev is None or time == t:
+            return gammas
+        return [g + (time - t) / dt * (g - g0) for g, g0 in zip(gammas, gammas_prev)]
+
+    def velocities(time, trial):
+        nodes = np.vstack([w.rows.reshape(-1, 3) for w in trial])
+        parts = [w.positions for w in trial]
+        n_par = sum(p.shape[0] for p in parts)
+        u_nodes = np.broadcast_to(v_inf, nodes.shape).copy()
+        u_par = np.broadcast_to(v_inf, (n_par, 3)).copy()
+        stretch = None
+        if settings.motion == "free":
+            src = [surface_filaments(s, g, core=settings.core, core_radius=settings.core_radius,
+                                     te_core_radius=settings.attached_core_radius)
+                   for s, g in zip(surfaces_at(time), gammas_at(time))]
+            src = with_ground(src + [e for w in trial for e in w.sources(time)], ground)
+            u_nodes += induce(src, nodes, **method)
+            if n_par:
+                vel, grad = induce(src, np.vstack(parts), gradient=True, **method)
+                u_par += vel
+                alpha = np.vstack([w.strengths for w in trial])
+                stretch = stretching_rate(settings.stretching, alpha, grad)
+        if stretch is not None and not np.isfinite(stretch).all():
+            u_par = np.where(np.isfinite(stretch), u_par, np.nan)   # reported as a non-finite particle
+        return u_nodes, u_par, stretch
+
+    def shedding(time):
+        return [(s.te_nodes, g[-1]) for s, g in zip(surfaces_at(time), gammas)]
+
+    def check(time, u_nodes, u_par):
+        if watch is not None:
+            watch.check_velocities(step, time, wakes, [s.name for s in surfaces], u_nodes, u_par)
+        elif not (np.isfinite(u_nodes).all() and np.isfinite(u_par).all()):
+            raise NumericalError(f"the wake velocity is not finite at t = {time:.6g} s; likely cause: a "
+                                 "time step too large for the wake spacing or a core radius too small "
+                                 "([time] dt, [wake] core_radius)")
+
+    march(wakes, t, dt, velocities, shedding=shedding, check=check)
+    return surfaces_at(t + dt)

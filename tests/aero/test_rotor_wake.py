@@ -63,7 +63,7 @@ def wake_after(steps, rollup=3, trailers=2, max_age=np.inf, dt=0.01, axial=True,
     w = RolledUpWake(row(), 0.0, settings, rollup_steps=rollup, inboard_trailers=trailers,
                      tip_last=True, hub=np.zeros(3), axis=AXIS, axial_flow=axial, fade_age=fade_age)
     for k in range(steps):
-        w.move(np.tile([0.0, 0.0, -1.0], (w.node_count, 1)), dt)
+        w.settle(w.state() + dt * w.rates(np.tile([0.0, 0.0, -1.0], (w.node_count, 1))))
         w.shed(row(angle=0.1 * (k + 1)), loading(), (k + 1) * dt)
         w.age_out((k + 1) * dt)
     return w
@@ -101,7 +101,7 @@ def test_old_far_wake_fades_linearly_before_it_is_removed():
 def test_uniform_axial_motion_translates_every_node():
     w = wake_after(6)
     before = w.rows.copy()
-    w.move(np.tile([0.0, 0.0, -2.0], (w.node_count, 1)), 0.01)
+    w.settle(w.state() + 0.01 * w.rates(np.tile([0.0, 0.0, -2.0], (w.node_count, 1))))
     assert np.allclose(w.rows - before, [0.0, 0.0, -0.02])
 
 
@@ -112,7 +112,7 @@ def test_inboard_trailers_keep_their_radius_relative_to_the_tip_vortex():
     u = np.zeros((w.node_count, 3))
     k = w.near.size // 3
     u[k:] = (-0.5 * w.far.reshape(-1, 3)) * [1.0, 1.0, 0.0]          # everything contracts
-    w.move(u, 0.1)
+    w.settle(w.state() + 0.1 * w.rates(u))
     r_new = np.hypot(w.far[..., 0], w.far[..., 1])
     assert np.allclose(r_new[:, -1], 0.95 * r[:, -1])
     assert np.allclose(r_new[:, :-1] / r_new[:, -1:], ratio)
@@ -137,7 +137,7 @@ def test_symmetry_removes_what_breaks_the_blades_symmetry():
          for k in range(2)]
     rng = np.random.default_rng(7)
     for wake in w:
-        wake.move(rng.normal(scale=0.01, size=(wake.node_count, 3)), 1.0)
+        wake.settle(wake.state() + wake.rates(rng.normal(scale=0.01, size=(wake.node_count, 3))))
     assert np.allclose(w[1].near, w[0].near * [-1.0, -1.0, 1.0])        # turned by half a turn
 
 

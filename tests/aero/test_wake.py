@@ -12,8 +12,8 @@ def _te(n=4):
 def _march(sheet, steps, dt=0.1, u=(1.0, 0.0, 0.0), seed=0):
     rng = np.random.default_rng(seed)
     for k in range(steps):
-        sheet.move(np.tile(u, (sheet.node_count, 1)), dt,
-                   np.tile(u, (sheet.particle_count, 1)), None)
+        sheet.settle(sheet.state() + dt * sheet.rates(np.tile(u, (sheet.node_count, 1)),
+                                                      np.tile(u, (sheet.particle_count, 1)), None))
         sheet.shed(_te(sheet.n_span), rng.normal(size=sheet.n_span), (k + 1) * dt)
         sheet.age_out((k + 1) * dt)
 
@@ -50,8 +50,8 @@ def test_particle_conversion_keeps_linear_impulse_and_opens_the_lattice():
     w = WakeSheet(_te(), 0.0, WakeSettings(model="particles", near_wake_steps=3))
     rng = np.random.default_rng(3)
     for k in range(8):
-        w.move(np.tile([1.0, 0.0, 0.2], (w.node_count, 1)), 0.1,
-               np.tile([1.0, 0.0, 0.2], (w.particle_count, 1)), None)
+        w.settle(w.state() + 0.1 * w.rates(np.tile([1.0, 0.0, 0.2], (w.node_count, 1)),
+                                           np.tile([1.0, 0.0, 0.2], (w.particle_count, 1)), None))
         w.shed(_te(), rng.normal(size=4), (k + 1) * 0.1)
         before = _impulse(w, (k + 1) * 0.1)
         w.age_out((k + 1) * 0.1)

@@ -26,7 +26,7 @@ the tip vortex and both wander off (a spread sheet does not). In any other
 flow every node is free.
 
 Every node moves with the local velocity (the time loop's
-:func:`wakes.run.run_case`, forward Euler); core radii grow with age
+:mod:`wakes.aero.wake_motion`, Heun's second-order method); core radii grow with age
 (Squire's law, :meth:`WakeSettings.core_at_age`). Far wake older than
 ``settings.max_age`` is removed: the wake below is then missing, which in
 hover lowers the inflow at the disc by about 1 - L/sqrt(L^2 + R_w^2) for a
@@ -60,6 +60,7 @@ two :class:`wakes.Filaments`.
 
 from __future__ import annotations
 
+import copy
 from dataclasses import dataclass
 
 import numpy as np
@@ -347,24 +348,44 @@ class RolledUpWake:
         return self.filaments(time, singular=at_surfaces and not self.settings.cores_at_surfaces)
 
     # ---------------------------------------------------------------- updates
-    def move(self, node_velocity: np.ndarray, dt: float, particle_velocity=None,
-             particle_stretching=None) -> None:
-        """Advance every node (K, 3) by one forward-Euler step of ``dt`` [s], plus any drift."""
+    def state(self) -> np.ndarray:
+        """What the wake's motion changes: every node, near rows then far rows, shape (K, 3) [m]."""
+        return self.rows
+
+    def placed(self, state: np.ndarray) -> RolledUpWake:
+        """A copy of this wake with its nodes at ``state`` (K, 3), for a stage of a time step."""
+        other = copy.copy(self)
+        other._put(state)
+        return other
+
+    def rates(self, node_velocity: np.ndarray, particle_velocity=None, particle_stretching=None) -> np.ndarray:
+        """Node velocities (K, 3) [m/s] from the local flow at the nodes (K, 3): plus the start-up
+        drift; in axial flow the inboard trailers keep only the axial part (module notes)."""
         k = self.near.shape[0] * self.near.shape[1]
         drift = np.zeros(3)
         if self.startup is not None and self.near_gamma.shape[0]:
             drift = self.startup.velocity(self.near_time[0], self.near[0], self.near_gamma[0])
-        self.near = self.near + dt * (node_velocity[:k].reshape(self.near.shape) + drift)
         u_far = node_velocity[k:].reshape(self.far.shape).copy()
         if self.axial_flow:  # inboard trailers: axial motion only, radius follows the tip vortex
             u_far[:, :-1] = np.multiply.outer(u_far[:, :-1] @ self.axis, self.axis)
-        self.far = self.far + dt * (u_far + drift)
+        return np.vstack([node_velocity[:k], u_far.reshape(-1, 3)]) + drift
+
+    def settle(self, state: np.ndarray) -> None:
+        """Take the nodes ``state`` (K, 3) at the end of a time step; then in axial flow put the
+        inboard trailers back at their radius relative to the tip vortex, and let the blade
+        symmetry group average the blades' wakes."""
+        self._put(np.array(state, dtype=np.float64))
         if self.axial_flow and self.inboard_trailers and self.far.shape[0]:
             radial, r = self._radial(self.far)
             scale = self.far_ratio * r[:, -1:] / np.maximum(r[:, :-1], 1e-300)
             self.far[:, :-1] += (scale - 1.0)[..., None] * radial[:, :-1]
         if self.symmetry is not None:
             self.symmetry.moved()
+
+    def _put(self, state: np.ndarray) -> None:
+        k = self.near.shape[0] * self.near.shape[1]
+        self.near = state[:k].reshape(self.near.shape)
+        self.far = state[k:].reshape(self.far.shape)
 
     def shed(self, te_nodes: np.ndarray, strip_gamma: np.ndarray, time: float) -> None:
         """Attach a new row at the trailing edge; its ring carries ``strip_gamma`` (n,)."""

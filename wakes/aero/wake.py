@@ -27,6 +27,7 @@ is released.
 
 from __future__ import annotations
 
+import copy
 from dataclasses import dataclass
 
 import numpy as np
@@ -169,17 +170,32 @@ class WakeSheet:
         return out
 
     # ---------------------------------------------------------------- updates
-    def move(self, node_velocity: np.ndarray, dt: float, particle_velocity=None,
-             particle_stretching=None) -> None:
-        """Advance nodes (R (n + 1), 3) and particles (P, 3) by one forward-Euler step of ``dt`` [s].
+    def state(self) -> np.ndarray:
+        """What the wake's motion changes, stacked: nodes (R (n + 1)), particle positions (P)
+        and particle strengths (P), shape (R (n + 1) + 2 P, 3) [m], [m], [m^3/s]."""
+        return np.vstack([self.rows.reshape(-1, 3), self.positions, self.strengths])
 
-        ``particle_stretching`` is d alpha/dt (P, 3) [m^3/s^2], or None.
-        """
-        self.rows = self.rows + dt * node_velocity.reshape(self.rows.shape)
-        if self.particle_count:
-            self.positions = self.positions + dt * particle_velocity
-            if particle_stretching is not None:
-                self.strengths = self.strengths + dt * particle_stretching
+    def placed(self, state: np.ndarray) -> WakeSheet:
+        """A copy of this wake at ``state`` (as :meth:`state`), for a stage of a time step."""
+        other = copy.copy(self)
+        other._put(state)
+        return other
+
+    def rates(self, node_velocity: np.ndarray, particle_velocity: np.ndarray,
+              particle_stretching: np.ndarray | None) -> np.ndarray:
+        """d(state)/dt from the velocity at the nodes (R (n + 1), 3) and particles (P, 3) [m/s] and
+        d alpha/dt (P, 3) [m^3/s^2] (None: no stretching)."""
+        stretch = np.zeros_like(self.strengths) if particle_stretching is None else particle_stretching
+        return np.vstack([node_velocity, particle_velocity, stretch])
+
+    def settle(self, state: np.ndarray) -> None:
+        """Take ``state`` (as :meth:`state`) at the end of a time step."""
+        self._put(np.array(state, dtype=np.float64))
+
+    def _put(self, state: np.ndarray) -> None:
+        k, p = self.rows.shape[0] * self.rows.shape[1], self.particle_count
+        self.rows = state[:k].reshape(self.rows.shape)
+        self.positions, self.strengths = state[k:k + p], state[k + p:k + 2 * p]
 
     def shed(self, te_nodes: np.ndarray, strip_gamma: np.ndarray, time: float) -> None:
         """Attach a new row at the shedding row ``te_nodes`` (n + 1, 3) at ``time`` [s].
