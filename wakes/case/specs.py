@@ -599,6 +599,9 @@ class Case:
         Body specs (e.g. :class:`WingSpec`), each with its ``name``.
     source : str
         Where the case came from (file path or ``"<dict>"``).
+    settings : tuple of str
+        The ``--set KEY=VALUE`` texts applied over the case file
+        (:func:`wakes.case.settings.load_case_with`).
     """
 
     title: str = key("", "free text naming the case", kind="str")
@@ -612,6 +615,7 @@ class Case:
     cluster: ClusterSpec = key(ClusterSpec(), kind="table")
     bodies: tuple = field(default=(), metadata=dict(kind="bodies"))
     source: str = field(default="<dict>", metadata=dict(internal=True))
+    settings: tuple = field(default=(), metadata=dict(internal=True))
 
     def body(self, name: str):
         """The body spec called ``name``."""

@@ -22,6 +22,7 @@ import pandas as pd
 from ..errors import InputError
 from ..induction.elements import Filaments, Particles
 from .atomic import write_text
+from .snapshots import KINDS as SNAPSHOT_KINDS
 
 RUN_MARKERS = ("summary.json", "case.toml", "loads.csv")
 MANIFEST = "manifest.txt"
@@ -33,7 +34,7 @@ PLOT_FILES = ("loads.png", "span_loading.png", "radial_loading.png", "wake_3d.pn
 RUN_SUBFOLDERS = ("wake", "checkpoints", "plots", "polars")   # made by a run; removed when left empty
 # Known patterns: snapshots, checkpoints, the default outputs of 'wakes probe' (of the run's wake)
 # and the temporary file of a write killed half way (.NAME.RANDOM.part).
-_OWNED = re.compile(r"^(?:wake/(?:filaments|particles)(?:_\d{6,}\.vtp|\.pvd)|checkpoints/step-\d{7,}\.npz"
+_OWNED = re.compile(rf"^(?:wake/(?:{'|'.join(SNAPSHOT_KINDS)})(?:_\d{{6,}}\.vtp|\.pvd)|checkpoints/step-\d{{7,}}\.npz"
                     r"|probe_points\.csv|probe_plane_[xyz][^/]*\.(?:csv|vts)"
                     r"|(?:(?:wake|checkpoints|plots|polars)/)?\.[^/]+\.part)$")
 
