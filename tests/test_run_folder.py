@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import contextlib
 import io
+import json
 import os
 import stat
 import tomllib
@@ -249,6 +250,8 @@ def test_case_toml_holds_worked_out_defaults_without_float_noise_and_reruns_bit_
     assert written["wake"]["core_radius"] == 0.02 and "core_radius = 0.02\n" in text
     assert written["bodies"]["wing"]["reference_area"] == 0.9 and "reference_area = 0.9\n" in text
     assert written["bodies"]["wing"]["airfoil"]["polar"] == "polars/section.csv"
+    summary = json.loads((tmp_path / "a" / "summary.json").read_text())
+    assert summary["case"]["bodies"]["wing"]["airfoil"]["polar"] == "polars/section.csv"
     # the written case, run again, gives the very same numbers
     assert _main(["run", tmp_path / "a" / "case.toml", "--out", tmp_path / "b", "--quiet", "--no-plots"])[0] == 0
     for name in ("loads.csv", "sections.csv", "wake_segments.csv"):

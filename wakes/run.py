@@ -182,6 +182,7 @@ def run_guarded(case: Case, out, *, write, progress=None, max_memory: int | None
         run = run_case(case, progress=progress, control=control, resume=resume,
                        use_cluster=use_cluster)
     run.stop_signal = control.stop_signal
+    run.summary["case"] = case.to_dict(relative_to=out)   # as case.toml: paths relative to the folder
     if run.status not in ("finished", "interrupted") and run.resume_state is not None:
         save(run.resume_state)
     if run.status == "interrupted" and run.stop_signal is not None:
