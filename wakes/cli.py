@@ -48,7 +48,7 @@ import pandas as pd
 from ._validate import readable_file, writable_path
 from ._version import __version__
 from .budget import check_budget, parse_size
-from .case import MAX_DT, MIN_DT, SCHEDULER_ADDRESS, load_case
+from .case import MAX_DT, MIN_DT, SCHEDULER_ADDRESS, load_case_with
 from .errors import MemoryBudgetError, WakesError
 from .estimate import estimate_case, step_costs
 from .io.atomic import write_text
@@ -69,6 +69,10 @@ MAX_GRID_SIDE = 10_000         # most probe plane points along one axis
 MAX_GRID_POINTS = 4_000_000    # most probe plane points in all (about 100 MB a (N, 3) array)
 MAX_PROBE_COORDINATE = 1e5     # largest probe plane coordinate [m], as the case's positions
 
+SET_HELP = ("set a case key over the case file's value, e.g. time.steps=40 or bodies.NAME.collective=9: "
+            "a dotted key and a TOML value (a bare word is a string); repeatable, checked like the "
+            "case file, recorded in the run folder's case.toml")
+
 
 class _Parser(argparse.ArgumentParser):
     """Argument errors in one line (no usage block), exit status 2."""
@@ -87,6 +91,7 @@ def _parser() -> argparse.ArgumentParser:
                                      "summary.json and the resolved case.toml to DIR.")
     run.add_argument("case", metavar="CASE", nargs="?", help="case file (TOML)")
     run.add_argument("--out", metavar="DIR", help="results folder (created)")
+    run.add_argument("--set", action="append", default=[], metavar="KEY=VALUE", help=SET_HELP)
     run.add_argument("--resume", metavar="RUN_DIR",
                      help="go on from the newest checkpoint in RUN_DIR (no CASE or --out)")
     run.add_argument("--dt", type=float, metavar="SECONDS",
@@ -106,6 +111,7 @@ def _parser() -> argparse.ArgumentParser:
                            description="Check CASE, print the resolved case and estimate the "
                                        "wake size, memory and run time.")
     check.add_argument("case", metavar="CASE", help="case file (TOML)")
+    check.add_argument("--set", action="append", default=[], metavar="KEY=VALUE", help=SET_HELP)
     check.add_argument("--quiet", action="store_true", help="print only the estimate")
 
     new = sub.add_parser("new", help="write a commented template case that runs as written",
@@ -156,6 +162,8 @@ def _parser() -> argparse.ArgumentParser:
     sweep.add_argument("--vary", action="append", required=True, metavar="KEY=VALUES",
                        help="dotted case key and its values: a list 4,6,8 or an inclusive "
                             "range 4:14:2; repeat for a grid")
+    sweep.add_argument("--set", action="append", default=[], metavar="KEY=VALUE",
+                       help="set a case key for every point, as for 'wakes run' (--vary wins for its keys)")
     sweep.add_argument("--zip", action="store_true",
                        help="pair the --vary lists element by element instead of a full grid")
     sweep.add_argument("--scheduler", metavar="ADDRESS",
@@ -170,9 +178,9 @@ def _parser() -> argparse.ArgumentParser:
 def _run(args) -> int:
     max_memory = parse_size(args.max_memory) if args.max_memory is not None else None
     if args.resume is not None:
-        if args.case is not None or args.out is not None:
+        if args.case is not None or args.out is not None or args.set:
             raise WakesError(f"--resume {args.resume} goes on in that folder with its own case; "
-                             "give neither CASE nor --out")
+                             "give neither CASE, --out nor --set")
         if args.dt is not None and not MIN_DT <= args.dt <= MAX_DT:
             raise WakesError(f"--dt must be a time step from {MIN_DT:g} to {MAX_DT:g} s; got {args.dt!r}")
         out = writable_path("--resume", args.resume, folder=True)
@@ -183,7 +191,7 @@ def _run(args) -> int:
         if args.dt is not None:
             raise WakesError("--dt applies with --resume only; set [time] dt in the case file")
         out = check_new_folder(writable_path("--out", args.out, folder=True), args.overwrite)
-        case, state = load_case(args.case), None
+        case, state = load_case_with(args.case, args.set), None
     check_budget(case, max_memory)       # a refusal leaves nothing behind
     costs = step_costs(case)             # the progress bar's time left is scaled from these
     if args.resume is None and args.overwrite:   # the earlier run's files go now, the user's stay
@@ -196,6 +204,8 @@ def _run(args) -> int:
                           write=lambda r, o: write_run(r, o, plots=r.status == "finished"
                                                        and not args.no_plots))
     except BaseException:
+        if made and not any(out.glob("*.csv")):   # a folder made for a run that wrote no table:
+            clear_run(out)                        # its copied inputs go, and then the folder
         for folder in reversed(made):    # folders made for this run and still empty go again
             with contextlib.suppress(OSError):
                 folder.rmdir()
@@ -221,9 +231,10 @@ def _run(args) -> int:
 
 
 def _check(args) -> int:
-    case = load_case(args.case)
+    case = load_case_with(args.case, args.set)
     if not args.quiet:
-        print(case.to_toml(f"Resolved case of {args.case}: every default filled in."))
+        given = "".join(f"\nSet on the command line: {t}" for t in args.set)
+        print(case.to_toml(f"Resolved case of {args.case}: every default filled in.{given}"))
     est = estimate_case(case)
     width = max(len(q) for q, _ in est.table())
     print(f"{case.title or args.case}: case is valid; estimate (no run):")
@@ -336,8 +347,9 @@ def _sweep(args) -> int:
                          f"tcp://10.0.0.5:8786, port 1 to 65535; got {args.scheduler!r}")
     writable_path("--out", args.out, folder=True)
     try:
-        table = sweep(args.case, vary, out=args.out, zipped=args.zip, scheduler=args.scheduler,
-                      workers=args.workers, progress=not args.quiet and sys.stderr.isatty())
+        table = sweep(args.case, vary, out=args.out, settings=args.set, zipped=args.zip,
+                      scheduler=args.scheduler, workers=args.workers,
+                      progress=not args.quiet and sys.stderr.isatty())
     except SweepStopped as stop:
         print(f"wakes: {stop.message}", file=sys.stderr)
         return 130

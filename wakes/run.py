@@ -11,7 +11,8 @@ writes the run folder.
 
 A run folder holds (see the README for the columns)::
 
-    case.toml            the resolved case, every default filled in
+    case.toml            the resolved case, every default filled in; paths relative to the folder
+    polars/              copies of the polar tables the case reads (the folder may be moved)
     summary.json         figures of every body, the case, version and revision; the run's
                          status, reason, last step and resume, and plausibility warnings
     loads.csv            one row per step and body
@@ -47,7 +48,7 @@ from .errors import InputError
 from .io import atomic
 from .io import checkpoint as checkpoints
 from .io.checkpoint import LoopState
-from .io.runfolder import RUN_MARKERS, RunFolder, clear_run, read_run, record_files  # noqa: F401
+from .io.runfolder import RUN_MARKERS, RunFolder, clear_run, copy_inputs, read_run, record_files  # noqa: F401
 from .io.snapshots import WakeSnapshots
 from .io.tables import write_json
 from .plots import plot_run
@@ -162,7 +163,8 @@ def run_guarded(case: Case, out, *, write, progress=None, max_memory: int | None
     """
     check_budget(case, max_memory)
     out = Path(out)
-    case_toml = case.to_toml()
+    case = copy_inputs(case, out)          # the folder runs and resumes wherever it is moved
+    case_toml = case.to_toml(relative_to=out)
 
     def save(state):
         checkpoints.write_checkpoint(out, state, case_toml, case.source)

@@ -140,8 +140,9 @@ class Run:
         revision = self.summary["run"].get("revision")
         header = (f"Resolved case written by wakes {__version__}"
                   + (f" (revision {revision})" if revision else "")
-                  + f"; every default filled in.\nSource: {self.case.source}")
-        write_text(paths[3], self.case.to_toml(header))
+                  + f"; every default filled in.\nSource: {self.case.source}"
+                  + "".join(f"\nSet on the command line: {t}" for t in self.case.settings))
+        write_text(paths[3], self.case.to_toml(header, relative_to=out))   # file paths: relative
         seg, par = wake_tables(self.wake) if self.case.output.wake else (pd.DataFrame(), pd.DataFrame())
         for name, table in (("wake_segments.csv", seg), ("wake_particles.csv", par)):
             if len(table):

@@ -47,7 +47,7 @@ from pathlib import Path
 import numba
 import pandas as pd
 
-from .case import Case, parse_case, read_toml
+from .case import Case, apply_settings, parse_case, read_toml
 from .cluster import connect
 from .errors import CaseError, InputError, WakesError
 from .io import atomic
@@ -413,7 +413,7 @@ def _libraries_quiet():
                 lg.setLevel(level)
 
 
-def sweep(case, vary: dict, *, out="sweep", zipped: bool = False, client=None,
+def sweep(case, vary: dict, *, out="sweep", settings=(), zipped: bool = False, client=None,
           scheduler: str | None = None, workers: int | None = None,
           progress: bool = False) -> pd.DataFrame:
     """Run a case over a grid of values and tabulate every point's coefficients.
@@ -429,6 +429,9 @@ def sweep(case, vary: dict, *, out="sweep", zipped: bool = False, client=None,
     out : str or Path
         Sweep folder: one run folder per point, plus ``sweep.csv`` and
         ``sweep.png``.
+    settings : sequence of str
+        ``KEY=VALUE`` case keys set for every point before ``vary``
+        (:func:`wakes.case.apply_settings`, as ``--set``).
     zipped : bool
         Pair the lists element by element instead of forming the full grid.
     client : dask.distributed.Client, optional
@@ -473,6 +476,7 @@ def sweep(case, vary: dict, *, out="sweep", zipped: bool = False, client=None,
         source, base_dir, raw = "<dict>", str(Path.cwd()), case
     else:
         raise InputError(f"case must be a case file path or a dict; got {type(case).__name__}")
+    raw = apply_settings(raw, settings)
     out = Path(out)
     points = plan(raw, vary, out, source=source, base_dir=base_dir, zipped=zipped)
     rows: dict[int, dict] = {}

@@ -1,10 +1,12 @@
-"""Case files: the schema machinery (:mod:`.schema`) and the case's sections (:mod:`.specs`).
+"""Case files: the schema machinery (:mod:`.schema`), the case's sections (:mod:`.specs`) and
+``--set KEY=VALUE`` over a case file (:mod:`.settings`).
 
 ``wakes.case.load_case`` reads, checks and resolves a case file; the names
 below are the ones other modules and users reach for.
 """
 
 from .schema import dump_toml, key, merge, read_toml
+from .settings import apply_settings, load_case_with, parse_setting
 from .specs import (
     BODY_TYPES,
     MAX_AZIMUTH_STEP,
@@ -32,6 +34,6 @@ __all__ = [
     "BODY_TYPES", "MAX_AZIMUTH_STEP", "MAX_DT", "MIN_DT", "SCHEDULER_ADDRESS", "AirfoilSpec",
     "Case", "ClusterSpec", "FluidSpec",
     "FreestreamSpec", "GroundSpec", "OutputSpec", "RotorSpec", "SolverSpec", "TimeSpec",
-    "WakeSpec", "WingSpec", "case_reference", "dump_toml", "key", "load_case", "merge",
-    "parse_case", "read_toml",
+    "WakeSpec", "WingSpec", "apply_settings", "case_reference", "dump_toml", "key", "load_case",
+    "load_case_with", "merge", "parse_case", "parse_setting", "read_toml",
 ]

@@ -311,7 +311,7 @@ def parse_section(cls, table, where: str, ctx, extra=None):
     return hook(table, where, ctx) if hook else obj
 
 
-def plain_value(v):
+def plain_value(v, relative_to=None):
     if isinstance(v, Distribution):
         if v.law == "constant":
             return v.value
@@ -320,13 +320,15 @@ def plain_value(v):
         keys = {"linear": ("root", "tip"), "elliptic": ("root",)}[v.law]
         return {"law": v.law, **{k: getattr(v, k) for k in keys}}
     if dataclasses.is_dataclass(v):
-        return to_plain(v)
+        return to_plain(v, relative_to)
     if isinstance(v, tuple):
         return list(v)
     return v
 
 
-def to_plain(obj) -> dict:
+def to_plain(obj, relative_to=None) -> dict:
+    """A section (or the case) as nested plain values; file paths inside the folder
+    ``relative_to`` are written relative to it (POSIX ``/``), others as they are."""
     out = {}
     omit = obj.omitted() if hasattr(obj, "omitted") else set()
     for f in fields(obj):
@@ -334,10 +336,28 @@ def to_plain(obj) -> dict:
             continue
         v = getattr(obj, f.name)
         if f.metadata.get("kind") == "bodies":
-            out["bodies"] = {b.name: to_plain(b) for b in v}
+            out["bodies"] = {b.name: to_plain(b, relative_to) for b in v}
+        elif f.metadata.get("kind") == "path" and v is not None and relative_to is not None:
+            root, full = Path(relative_to).resolve(), Path(v).resolve()
+            out[f.name] = full.relative_to(root).as_posix() if full.is_relative_to(root) else v
         elif v is not None:
-            out[f.name] = plain_value(v)
+            out[f.name] = plain_value(v, relative_to)
     return out
+
+
+def tidy(value: float) -> float:
+    """A worked-out default without float noise: the nearest number of at most 10 significant
+    digits when it lies within 1e-12 (relative) of ``value``, else ``value`` itself.
+
+    The resolved case holds the tidied value, so the run uses exactly what its case.toml says.
+
+    Examples
+    --------
+    >>> tidy(0.1 * 0.2), tidy(0.8999999999999998), tidy(10.0 / 7200.0)
+    (0.02, 0.9, 0.001388888888888889)
+    """
+    near = float(f"{value:.10g}")
+    return near if abs(near - value) <= 1e-12 * abs(value) else value
 
 
 def dump_toml(data: dict, header: str = "") -> str:

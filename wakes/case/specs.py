@@ -73,6 +73,7 @@ from .schema import (
     range_words,
     read_toml,
     short,
+    tidy,
     to_plain,
 )
 
@@ -416,7 +417,7 @@ class WingSpec:
 
     def resolve(self, case: Case) -> WingSpec:
         n_c = self.chordwise_panels or (1 if self.model == "lifting-line" else 4)
-        area = self.reference_area or self.planform().area()
+        area = self.reference_area or tidy(self.planform().area())
         mac, point = self.planform().mean_aerodynamic_chord()
         if self.moment_reference is None:
             point = rotation_matrix(self.orientation) @ point + np.asarray(self.position, dtype=np.float64)
@@ -599,6 +600,9 @@ class Case:
         Body specs (e.g. :class:`WingSpec`), each with its ``name``.
     source : str
         Where the case came from (file path or ``"<dict>"``).
+    settings : tuple of str
+        The ``--set KEY=VALUE`` texts applied over the case file
+        (:func:`wakes.case.settings.load_case_with`).
     """
 
     title: str = key("", "free text naming the case", kind="str")
@@ -612,6 +616,7 @@ class Case:
     cluster: ClusterSpec = key(ClusterSpec(), kind="table")
     bodies: tuple = field(default=(), metadata=dict(kind="bodies"))
     source: str = field(default="<dict>", metadata=dict(internal=True))
+    settings: tuple = field(default=(), metadata=dict(internal=True))
 
     def body(self, name: str):
         """The body spec called ``name``."""
@@ -620,13 +625,15 @@ class Case:
                 return b
         raise KeyError(name)
 
-    def to_dict(self) -> dict:
-        """The case as nested plain data (what :meth:`to_toml` writes)."""
-        return to_plain(self)
+    def to_dict(self, relative_to=None) -> dict:
+        """The case as nested plain data (what :meth:`to_toml` writes); file paths inside the
+        folder ``relative_to`` relative to it."""
+        return to_plain(self, relative_to)
 
-    def to_toml(self, header: str = "") -> str:
-        """The resolved case as TOML text that :func:`load_case` reads back."""
-        return dump_toml(self.to_dict(), header)
+    def to_toml(self, header: str = "", relative_to=None) -> str:
+        """The resolved case as TOML text that :func:`load_case` reads back (from the folder
+        ``relative_to``, when given, which then may be moved with the files it holds)."""
+        return dump_toml(self.to_dict(relative_to), header)
 
 
 # ----------------------------------------------------------------- parsing
@@ -732,9 +739,9 @@ def _resolve(case: Case) -> Case:
     wake = case.wake
     if wake.core_radius is None:
         chord = min(b.mean_chord() for b in bodies)
-        wake = dataclasses.replace(wake, core_radius=DEFAULT_CORE_CHORDS * chord)
+        wake = dataclasses.replace(wake, core_radius=tidy(DEFAULT_CORE_CHORDS * chord))
     time = case.time
-    dt = time.dt if time.dt is not None else min(b.suggest_dt(case) for b in bodies)
+    dt = time.dt if time.dt is not None else tidy(min(b.suggest_dt(case) for b in bodies))
     if not (math.isfinite(dt) and MIN_DT <= dt <= MAX_DT):
         raise CaseError(f"{case.source}: [time] dt: the default step from the case's sizes and speeds is "
                         f"{dt:g} s, outside the accepted {MIN_DT:g} to {MAX_DT:g} s; give [time] dt, a "

@@ -252,11 +252,13 @@ def newest_checkpoint(run_dir) -> tuple[LoopState, str, str, Path]:
     return state, text, source, found[-1]
 
 
-def case_from_checkpoint(case_toml: str, source: str, overrides: dict | None = None):
+def case_from_checkpoint(case_toml: str, source: str, overrides: dict | None = None, base_dir=None):
     """The resolved case stored in a checkpoint, re-checked (``overrides`` merged first).
 
     ``source`` is the case file the run was started from (kept for messages
-    and the run folder's case.toml); paths in the stored case are absolute.
+    and the run folder's case.toml); relative paths in the stored case are
+    taken from ``base_dir``, the run folder (checkpoints of earlier
+    versions hold absolute ones).
     """
 
     try:
@@ -265,7 +267,8 @@ def case_from_checkpoint(case_toml: str, source: str, overrides: dict | None = N
         raise CheckpointError(f"{source}: the stored case is not valid TOML ({exc})") from None
     if overrides:
         data = merge(data, overrides)
-    return parse_case(data, source=source, base_dir=Path(source).resolve().parent)
+    base = Path(base_dir) if base_dir is not None else Path(source).resolve().parent
+    return parse_case(data, source=source, base_dir=base)
 
 
 def prepare_resume(run_dir, dt: float | None = None):
@@ -298,7 +301,7 @@ def prepare_resume(run_dir, dt: float | None = None):
         remaining = max(int(np.ceil((t_end - state.time) / dt - 1e-9)), 0)
         overrides = {"time": {"dt": float(dt), "steps": state.step + remaining + 1}}
         state.origin = (state.step, state.time)
-    case = case_from_checkpoint(text, source, overrides)
+    case = case_from_checkpoint(text, source, overrides, base_dir=run_dir)
     if state.step >= case.time.steps:
         raise CheckpointError(f"--resume {run_dir}: the checkpoint is at step {state.step} of "
                               f"{case.time.steps}; nothing is left to run")

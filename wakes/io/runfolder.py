@@ -10,6 +10,7 @@ starts, and nothing else, so a user's own files in the folder stay.
 
 from __future__ import annotations
 
+import dataclasses
 import json
 import os
 import re
@@ -21,7 +22,8 @@ import pandas as pd
 
 from ..errors import InputError
 from ..induction.elements import Filaments, Particles
-from .atomic import write_text
+from .atomic import write_bytes, write_text
+from .snapshots import KINDS as SNAPSHOT_KINDS
 
 RUN_MARKERS = ("summary.json", "case.toml", "loads.csv")
 MANIFEST = "manifest.txt"
@@ -33,7 +35,7 @@ PLOT_FILES = ("loads.png", "span_loading.png", "radial_loading.png", "wake_3d.pn
 RUN_SUBFOLDERS = ("wake", "checkpoints", "plots", "polars")   # made by a run; removed when left empty
 # Known patterns: snapshots, checkpoints, the default outputs of 'wakes probe' (of the run's wake)
 # and the temporary file of a write killed half way (.NAME.RANDOM.part).
-_OWNED = re.compile(r"^(?:wake/(?:filaments|particles)(?:_\d{6,}\.vtp|\.pvd)|checkpoints/step-\d{7,}\.npz"
+_OWNED = re.compile(rf"^(?:wake/(?:{'|'.join(SNAPSHOT_KINDS)})(?:_\d{{6,}}\.vtp|\.pvd)|checkpoints/step-\d{{7,}}\.npz"
                     r"|probe_points\.csv|probe_plane_[xyz][^/]*\.(?:csv|vts)"
                     r"|(?:(?:wake|checkpoints|plots|polars)/)?\.[^/]+\.part)$")
 
@@ -201,8 +203,8 @@ def run_files(out: str | os.PathLike) -> list[Path]:
 
     Examples
     --------
-    >>> [p.name for p in run_files("glider-run") if p.suffix == ".csv"]
-    ['loads.csv', 'sections.csv', 'wake_segments.csv']
+    >>> [p.relative_to("glider-run").as_posix() for p in run_files("glider-run") if p.suffix == ".csv"]
+    ['loads.csv', 'polars/survey-glider-section.csv', 'sections.csv', 'wake_segments.csv']
     """
     out = Path(out)
     found = {q for n in listed_files(out) if (q := _inside(out, n)) is not None}
@@ -230,3 +232,49 @@ def clear_run(out: str | os.PathLike, keep=()) -> list[Path]:
         if (out / folder).is_dir() and not any((out / folder).iterdir()):
             (out / folder).rmdir()
     return removed
+
+
+POLAR_FOLDER = "polars"
+
+
+def copy_inputs(case, out: str | os.PathLike):
+    """Copy the polar tables ``case`` reads into ``out/polars`` and return the case reading them there.
+
+    With them, the folder's ``case.toml`` (written relative to the folder)
+    runs and resumes wherever the folder is moved. A table already inside
+    ``out`` stays where it is; two tables of one name get ``-2``, ``-3``...
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> from wakes.case import load_case
+    >>> out = pathlib.Path(tempfile.mkdtemp())
+    >>> case = copy_inputs(load_case("cases/survey-glider.toml"), out)
+    >>> case.to_dict(relative_to=out)["bodies"]["wing"]["airfoil"]["polar"]
+    'polars/survey-glider-section.csv'
+    """
+    out = Path(out)
+    root = out.resolve()
+    copied: dict[Path, Path] = {}
+    bodies = []
+    for body in case.bodies:
+        polar = body.airfoil.polar
+        if polar is None or Path(polar).resolve().is_relative_to(root):
+            bodies.append(body)
+            continue
+        source = Path(polar).resolve()
+        if source not in copied:
+            data = source.read_bytes()
+            target = out / POLAR_FOLDER / source.name
+            n = 1
+            while target.exists() and target.read_bytes() != data:
+                n += 1
+                target = out / POLAR_FOLDER / f"{source.stem}-{n}{source.suffix}"
+            if not target.exists():
+                write_bytes(target, data)
+            copied[source] = target.resolve()
+        airfoil = dataclasses.replace(body.airfoil, polar=str(copied[source]))
+        bodies.append(dataclasses.replace(body, airfoil=airfoil))
+    if copied:
+        record_files(out, list(copied.values()))
+    return dataclasses.replace(case, bodies=tuple(bodies))
