@@ -3,7 +3,14 @@
 import numpy as np
 import pytest
 import wakes
-from wakes.aero.rotor_wake import BladeSymmetry, RolledUpWake, StartupDrift, condense_row, tip_vortex_table
+from wakes.aero.rotor_wake import (
+    BladeSymmetry,
+    RolledUpWake,
+    StartupDrift,
+    condense_row,
+    tip_peak,
+    tip_vortex_table,
+)
 from wakes.aero.vortex_lattice import lattice_filaments
 from wakes.aero.wake import WakeSettings
 
@@ -150,3 +157,25 @@ def test_startup_drift_is_the_momentum_inflow_and_fades():
     assert drift.velocity(0.0, te, gamma) == pytest.approx([0, 0, -v])
     assert drift.velocity(0.5, te, gamma) == pytest.approx([0, 0, -0.5 * v])
     assert not np.any(drift.velocity(1.0, te, gamma))
+
+
+def windmill(n=10):
+    """Loading that changes sign along the blade: a larger positive hump inboard, negative outboard
+    (the row's sum is positive, the tip part negative), as on a windmilling propeller."""
+    x = np.linspace(0.05, 0.95, n)
+    return np.where(x < 0.5, 1.5, 1.0) * np.sin(2.0 * np.pi * x)
+
+
+def test_loading_that_changes_sign_rolls_up_with_the_tip_parts_sign():
+    """Signs per side of the loading peak: the tip vortex carries the outboard (negative) peak,
+    not the inboard one the row's sum would pick, from the nodes outboard of it; every trailed
+    line is still followed."""
+    g = windmill()
+    points, strengths, _ = condense_row(row(), g, 2, True)
+    peak = int(np.argmin(g))
+    assert tip_peak(g) == peak
+    assert strengths[-1] == pytest.approx(g[peak]) and strengths[-1] < 0.0
+    assert strengths.sum() == pytest.approx(0.0, abs=1e-12)
+    assert np.hypot(*points[-1, :2]) > 0.2 + 0.08 * (peak + 1)
+    p2, s2, _ = condense_row(row()[::-1], -g[::-1], 2, False)
+    assert np.allclose(p2, points) and np.allclose(s2, strengths)

@@ -10,14 +10,17 @@ Helicopter Aerodynamics*, 2nd ed., ch. 10). This wake keeps
   default), every trailed and shed filament free and resolved, so the
   sheet rolls up by itself; open at its old end;
 * a far wake: each older row gathered into a tip vortex -- at the
-  circulation centroid of the row's nodes outboard of the peak bound
-  circulation (Betz's roll-up rule), carrying the peak circulation -- and
+  circulation centroid of the row's nodes outboard of the loading peak
+  (Betz's roll-up rule), carrying the peak circulation with its sign -- and
   ``inboard_trailers`` trailers, each gathering the inboard nodes of an
   equal length of the row at their centroid, with a core at least that
-  length (the spread sheet it stands for). Each trailer is an open
-  polyline; the far wake carries no shed vorticity between its rows, so a
-  change of loading in time leaves it without its spanwise counterpart
-  (exact in steady flight).
+  length (the spread sheet it stands for). The peak is taken on the tip's
+  side of the loading (:func:`tip_peak`), so a loading that changes sign
+  along the blade (a windmilling propeller, a turbine root) rolls up with
+  the tip part's sign, and each trailer's sign is that of what it gathers.
+  Each trailer is an open polyline; the far wake carries no shed vorticity
+  between its rows, so a change of loading in time leaves it without its
+  spanwise counterpart (exact in steady flight).
 
 In axial flow (hover, climb, axial wind) the inboard trailers move along
 the axis with the local flow and keep their radius relative to their row's
@@ -72,6 +75,62 @@ from .vortex_lattice import carries_circulation, lattice_segments
 from .wake import WakeSettings
 
 
+def tip_peak(strips: np.ndarray) -> int:
+    """The strip (index, root to tip) of the loading peak the tip vortex rolls up from.
+
+    It is the extremum of the tip's own sign over the run of strips next to
+    the tip that keep that sign (Betz's roll-up per side of the peak): with
+    loading of one sign it is the largest; where the loading changes sign
+    along the blade (a windmilling propeller, a turbine root) the tip vortex
+    takes the outboard part's sign, whatever the sum of the row.
+
+    Examples
+    --------
+    >>> tip_peak(np.array([0.5, 1.0, 0.2, -0.4, -0.7, -0.3]))
+    4
+    """
+    g = np.asarray(strips, dtype=np.float64)
+    live = np.flatnonzero(carries_circulation(g, np.max(np.abs(g), initial=0.0)))
+    if not live.size:
+        return g.size - 1
+    last = int(live[-1])
+    sign = 1.0 if g[last] > 0.0 else -1.0
+    first = last
+    while first > 0 and sign * g[first - 1] > 0.0:
+        first -= 1
+    return first + int(np.argmax(sign * g[first:last + 1]))
+
+
+def rollup_labels(nodes: np.ndarray, strips: np.ndarray, inboard_trailers: int,
+                  tip_last: bool) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Which trailer each node of a wake row rolls up into, and the circulation it trails.
+
+    Parameters are those of :func:`condense_row`. Returns ``label`` (n + 1,)
+    int, the trailer of each node (tip vortex ``inboard_trailers``; -1: not
+    followed, the inboard nodes when ``inboard_trailers`` is 0), ``trailed``
+    (n + 1,) [m^2/s], the net circulation of each node's streamwise line,
+    G_{j-1} - G_j in the row's own node order (positive along the wake from
+    younger to older rows), and ``spread`` (b,) [m], the length of row each
+    inboard trailer gathers (zero for the tip vortex).
+    """
+    g = np.asarray(strips, dtype=np.float64)
+    trailed = np.concatenate([[0.0], g]) - np.concatenate([g, [0.0]])
+    if not tip_last:  # label the mirror row (root to tip), then turn the labels back
+        label, _, spread = rollup_labels(nodes[::-1], -g[::-1], inboard_trailers, True)
+        return label[::-1].copy(), trailed, spread
+    peak = tip_peak(g)
+    length = np.concatenate([[0.0], np.cumsum(np.linalg.norm(np.diff(nodes, axis=0), axis=1))])
+    label = np.full(nodes.shape[0], inboard_trailers)
+    spread = np.zeros(inboard_trailers + 1)
+    if inboard_trailers:
+        piece = max(length[peak], 1e-300) / inboard_trailers
+        label[:peak + 1] = np.minimum((length[:peak + 1] / piece).astype(np.int64), inboard_trailers - 1)
+        spread[:-1] = piece
+    else:
+        label[:peak + 1] = -1  # inboard vorticity is not followed
+    return label, trailed, spread
+
+
 def condense_row(nodes: np.ndarray, strips: np.ndarray, inboard_trailers: int,
                  tip_last: bool) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Gather one wake row's trailed vorticity into a tip vortex and inboard trailers.
@@ -83,7 +142,8 @@ def condense_row(nodes: np.ndarray, strips: np.ndarray, inboard_trailers: int,
     strips : ndarray, shape (n,)
         Circulation of the rings beside the row [m^2/s].
     inboard_trailers : int
-        Trailers the part inboard of the peak is cut into (0: none).
+        Trailers the part inboard of the peak (:func:`tip_peak`) is cut
+        into (0: none).
     tip_last : bool
         True when the last node is at the tip (root-to-tip node order).
 
@@ -91,39 +151,27 @@ def condense_row(nodes: np.ndarray, strips: np.ndarray, inboard_trailers: int,
     -------
     points : ndarray, shape (b, 3)
         Trailer positions [m], b = inboard_trailers + 1, tip vortex last:
-        the centroid of each group's trailed circulation (Betz's roll-up
-        rule).
+        the centroid of each group's trailed circulation of the group's own
+        sign (Betz's roll-up rule).
     strengths : ndarray, shape (b,)
         Trailed circulation each gathers, positive along the wake from
         younger to older rows [m^2/s]; the tip vortex carries the peak
-        strip circulation.
+        strip circulation, with its sign. With inboard trailers they sum
+        to zero: every trailed line is followed.
     spread : ndarray, shape (b,)
         Length of row each inboard trailer gathers [m] (zero for the tip
         vortex): the sheet it stands for was that wide, and it becomes the
         trailer's smallest core radius.
     """
-    g = np.asarray(strips, dtype=np.float64)
-    if not tip_last:  # reversing the node order flips the rings' sense
-        return condense_row(nodes[::-1], -g[::-1], inboard_trailers, True)
-    trailed = np.concatenate([[0.0], g]) - np.concatenate([g, [0.0]])  # G_{j-1} - G_j, (n + 1,)
-    sign = 1.0 if g.sum() >= 0.0 else -1.0
-    peak = int(np.argmax(sign * g))
-    length = np.concatenate([[0.0], np.cumsum(np.linalg.norm(np.diff(nodes, axis=0), axis=1))])
+    label, trailed, spread = rollup_labels(nodes, strips, inboard_trailers, tip_last)
     b = inboard_trailers + 1
-    label = np.full(nodes.shape[0], inboard_trailers)
-    spread = np.zeros(b)
-    if inboard_trailers:
-        piece = max(length[peak], 1e-300) / inboard_trailers
-        label[:peak + 1] = np.minimum((length[:peak + 1] / piece).astype(np.int64), inboard_trailers - 1)
-        spread[:-1] = piece
-    else:
-        label[:peak + 1] = -1  # inboard vorticity is not followed
     points = np.empty((b, 3))
     strengths = np.zeros(b)
+    root_first = nodes if tip_last else nodes[::-1]
     for k in range(b):
         sel = np.flatnonzero(label == k)
         if not sel.size:  # fewer nodes than trailers: an empty trailer sits on its neighbour
-            points[k] = points[k - 1] if k else nodes[0]
+            points[k] = points[k - 1] if k else root_first[0]
             continue
         t = trailed[sel]
         strengths[k] = t.sum()
