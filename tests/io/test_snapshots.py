@@ -46,6 +46,19 @@ def test_snapshots_accumulate_and_a_resume_keeps_only_earlier_ones(tmp_path):
     assert list(folder.iterdir()) == []
 
 
+def test_a_resume_that_rewrites_a_stale_step_keeps_the_new_file(tmp_path):
+    """A stopped run writes its final wake at the step it stopped before; the resumed run
+    (stale files removed at its first write, not before) writes that step again and keeps it."""
+    snaps = WakeSnapshots(tmp_path)
+    for step in (2, 4):
+        snaps.write(step, 0.05 * step, [_ring(5)])
+    resumed = WakeSnapshots(tmp_path, keep_before=4, remove_now=False)
+    resumed.write(4, 0.2, [_ring(6)])
+    folder = tmp_path / "wake"
+    assert [f for _, f in _listed(folder)] == ["filaments_000002.vtp", "filaments_000004.vtp"]
+    assert all((folder / f).is_file() for _, f in _listed(folder))
+
+
 def test_particles_get_their_own_collection_and_an_empty_wake_writes_nothing(tmp_path):
     snaps = WakeSnapshots(tmp_path)
     assert snaps.write(0, 0.0, []) == []

@@ -136,6 +136,7 @@ class WakeSnapshots:
                 self.folder / f"{kind}.pvd",
                 [(t, self.folder / n) for _, t, n in self.entries[kind]]))
         if written:
+            self._stale = [p for p in self._stale if p not in written]  # rewritten, not stale
             self.remove_stale()
         return written
 
