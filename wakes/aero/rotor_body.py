@@ -58,7 +58,7 @@ class RotorBody:
         self.name = spec.name
         self.spec = spec
         self.kind = spec.kind
-        self.geometry = g = spec.geometry()
+        self.geometry = g = spec.geometry(case.freestream.vector())
         # Viterna-Corrigan post-stall drag from the blade aspect ratio R/c unless the case gives it
         self.polars = SectionPolars.uniform(make_polar(spec.airfoil, aspect_ratio=g.radius / g.mean_chord()),
                                             spec.panels, speed_of_sound=case.fluid.speed_of_sound)
@@ -81,6 +81,7 @@ class RotorBody:
         self._tip_samples = collections.deque(maxlen=self.steps_per_revolution)
         # the section values of the last steps_per_revolution steps: the last full revolution's
         self._radial_samples = collections.deque(maxlen=self.steps_per_revolution)
+        self._azimuth_samples = collections.deque(maxlen=self.steps_per_revolution)
         self._chord = g.chord((self.r - g.root_cutout) / (g.radius - g.root_cutout))
 
     def surfaces(self, time: float) -> list:
@@ -120,16 +121,30 @@ class RotorBody:
         self._wakes.append(wake)
         return wake
 
+    def blade_azimuths(self, strips: list) -> np.ndarray:
+        """Azimuth psi [rad] of each blade, from where its strips are (shape (B,)).
+
+        psi is measured from the azimuth origin in the sense of rotation
+        (:meth:`wakes.aero.rotor.RotorGeometry.azimuth_of`).
+        """
+        return self.geometry.azimuth_of(np.array([np.mean(s.points - self.hub, axis=0) for s in strips]))
+
+    def section_pitch(self, strips: list) -> np.ndarray:
+        """Pitch [deg] of every blade's sections, collective, twist and cyclic, shape (B, n)."""
+        cyclic = self.geometry.cyclic_at(self.blade_azimuths(strips))
+        return self.pitch_deg[None, :] + np.asarray(cyclic)[:, None]
+
     def loads_row(self, strips: list, trefftz_drag: float) -> dict:
         """Thrust, torque, power and coefficients of the kind, power split, flow ratios, thrust per blade.
 
-        Keeps the section values of the last ``steps_per_revolution`` steps
-        and, over the last revolution, samples blade 1's tip-vortex path,
-        for :meth:`tables`.
+        Keeps the section values and blade azimuths of the last
+        ``steps_per_revolution`` steps and, over the last revolution,
+        samples blade 1's tip-vortex path, for :meth:`tables`.
         """
         f = blade_forces(strips, self.hub, self.axis, self.geometry.spin)
         self._radial_samples.append(strip_distributions(strips, dr=self.dr, hub=self.hub, axis=self.axis,
                                                         spin=self.geometry.spin))
+        self._azimuth_samples.append(self.blade_azimuths(strips))
         g = self.geometry
         row = self._totals(float(f["thrust"].sum()), float(f["torque_induced"].sum()),
                            float(f["torque_profile"].sum()))
@@ -154,10 +169,15 @@ class RotorBody:
         return row
 
     def section_table(self, strips: list) -> pd.DataFrame:
-        """Radial distributions of every blade at the last step (:func:`radial_table`)."""
+        """Radial distributions of every blade at the last step (:func:`radial_table`).
+
+        Each blade's ``pitch_deg`` includes its cyclic pitch at that step and
+        ``azimuth_deg`` is its azimuth psi.
+        """
         g = self.geometry
         return radial_table(self.name, strips, radius=g.radius, r=self.r, dr=self.dr,
-                            pitch_deg=self.pitch_deg, hub=self.hub, axis=self.axis, spin=g.spin)
+                            pitch_deg=self.section_pitch(strips), hub=self.hub, axis=self.axis, spin=g.spin,
+                            azimuth_deg=np.degrees(self.blade_azimuths(strips)))
 
     def tables(self) -> dict:
         """Extra result tables, those there are data for.
@@ -171,9 +191,11 @@ class RotorBody:
         g = self.geometry
         out = {}
         if self._radial_samples:
+            # the pitch averaged as the loads are (the cyclic part averages to zero over a revolution)
+            cyclic = float(np.mean(g.cyclic_at(np.asarray(self._azimuth_samples))))
             out["radial_loading.csv"] = averaged_radial_table(
                 self.name, list(self._radial_samples), radius=g.radius, r=self.r, chord=self._chord,
-                pitch_deg=self.pitch_deg)
+                pitch_deg=self.pitch_deg + cyclic)
         if self._tip_samples:
             out["tip_vortex.csv"] = tip_vortex_table(self.name, list(self._tip_samples), hub=self.hub,
                                                      axis=self.axis, radius=g.radius, omega=g.omega)

@@ -301,7 +301,8 @@ def strip_distributions(strips, *, dr: np.ndarray, hub: np.ndarray, axis: np.nda
 
 
 def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndarray,
-                 pitch_deg: np.ndarray, hub: np.ndarray, axis: np.ndarray, spin: int) -> pd.DataFrame:
+                 pitch_deg: np.ndarray, hub: np.ndarray, axis: np.ndarray, spin: int,
+                 azimuth_deg: np.ndarray | None = None) -> pd.DataFrame:
     """Radial distributions of every blade: circulation, cl, angles, dT/dr and dQ/dr.
 
     Parameters
@@ -315,18 +316,21 @@ def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndar
     r, dr : ndarray, shape (n,)
         Blade coordinate of each strip's section and the strip width [m],
         in the strips' order.
-    pitch_deg : ndarray, shape (n,)
-        Section pitch (collective + twist) [deg], in the strips' order.
+    pitch_deg : ndarray, shape (n,) or (B, n)
+        Section pitch (collective + twist, and cyclic) [deg], in the
+        strips' order; one row for every blade or one per blade.
     hub, axis : ndarray, shape (3,)
         Hub centre [m] and unit thrust axis.
     spin : int
         +1 or -1.
+    azimuth_deg : ndarray, shape (B,), optional
+        Each blade's azimuth psi [deg], written as ``azimuth_deg``.
 
     Returns
     -------
     pandas.DataFrame
         One row per blade and strip: ``body``, ``blade`` (1-based),
-        ``strip``, ``r_m``, ``r_over_R``, ``chord_m``, ``gamma_m2_s``,
+        (``azimuth_deg``), ``strip``, ``r_m``, ``r_over_R``, ``chord_m``, ``gamma_m2_s``,
         ``cl``, ``cd``, ``pitch_deg``, ``alpha_deg`` (effective),
         ``inflow_angle_deg`` (pitch minus effective angle of attack: the
         angle of the local flow, induced velocity included, below the
@@ -334,13 +338,17 @@ def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndar
         torque per unit radius).
     """
     d = strip_distributions(strips, dr=dr, hub=hub, axis=axis, spin=spin)
+    pitch = np.broadcast_to(np.asarray(pitch_deg, dtype=np.float64), (len(strips), r.shape[0]))
     frames = []
     for k, s in enumerate(strips):
+        where = {"body": name, "blade": k + 1}
+        if azimuth_deg is not None:
+            where["azimuth_deg"] = float(azimuth_deg[k])
         frames.append(pd.DataFrame({
-            "body": name, "blade": k + 1, "strip": np.arange(r.shape[0]), "r_m": r,
+            **where, "strip": np.arange(r.shape[0]), "r_m": r,
             "r_over_R": r / radius, "chord_m": s.chord, "gamma_m2_s": d["gamma_m2_s"][k], "cl": d["cl"][k],
-            "cd": d["cd"][k], "pitch_deg": pitch_deg, "alpha_deg": d["alpha_deg"][k],
-            "inflow_angle_deg": pitch_deg - d["alpha_deg"][k],
+            "cd": d["cd"][k], "pitch_deg": pitch[k], "alpha_deg": d["alpha_deg"][k],
+            "inflow_angle_deg": pitch[k] - d["alpha_deg"][k],
             "dT_dr_N_per_m": d["dT_dr_N_per_m"][k], "dQ_dr_N": d["dQ_dr_N"][k],
         }).sort_values("r_m"))
     return pd.concat(frames, ignore_index=True)
