@@ -20,11 +20,14 @@ from .polars import SectionPolars
 from .rotor import blade_turn_deg, is_axial_flow
 from .rotor_loads import (
     FLOW_COLUMNS,
+    HUB_COLUMNS,
     KIND_COLUMNS,
     averaged_radial_table,
     blade_forces,
     coefficients,
     freestream_ratios,
+    hub_coefficients,
+    hub_loads,
     inflow_ratio,
     last_revolution,
     near_hover,
@@ -64,6 +67,7 @@ class RotorBody:
                                             spec.panels, speed_of_sound=case.fluid.speed_of_sound)
         self.density = case.fluid.density
         self.axis = g.frame()[0]
+        self.frame = g.rotor_frame()
         self.hub = np.asarray(g.hub, dtype=np.float64)
         v_inf = case.freestream.vector()
         # propeller: flight speed along the axis; turbine: wind speed; rotor: unused
@@ -135,7 +139,7 @@ class RotorBody:
         return self.pitch_deg[None, :] + np.asarray(cyclic)[:, None]
 
     def loads_row(self, strips: list, trefftz_drag: float) -> dict:
-        """Thrust, torque, power and coefficients of the kind, power split, flow ratios, thrust per blade.
+        """Thrust, torque, power, coefficients of the kind, power split, flow ratios, hub loads, blade thrusts.
 
         Keeps the section values and blade azimuths of the last
         ``steps_per_revolution`` steps and, over the last revolution,
@@ -151,6 +155,8 @@ class RotorBody:
         row["advance_ratio_mu"] = self.mu
         row["inflow_ratio_lambda"] = inflow_ratio(self.kind, strips, self.axis, self.r, self.dr, g.omega,
                                                   g.radius)
+        row.update(hub_coefficients(hub_loads(strips, self.hub, self.frame), omega=g.omega, radius=g.radius,
+                                    density=self.density))
         for k, t in enumerate(f["thrust"]):
             row[f"blade_{k + 1}_thrust_N"] = float(t)
         if self._wakes:
@@ -210,7 +216,9 @@ class RotorBody:
         thrust of the last two revolutions (relative), a convergence
         indicator (NaN with fewer than two revolutions). The flow ratios
         mu and lambda are the last revolution's means
-        (:mod:`wakes.aero.rotor_loads`). Near hover
+        (:mod:`wakes.aero.rotor_loads`), and so are the hub forces and
+        moments H, Y, M_x, M_y (in the rotor frame), with the coefficients
+        of the means. Near hover
         (:func:`wakes.aero.rotor_loads.near_hover`, the figure of merit's
         rule) a lift rotor also reports the induced-power factor
         kappa = P_induced / (T^(3/2)/sqrt(2 rho A)) of momentum theory.
@@ -229,6 +237,8 @@ class RotorBody:
         out = self._totals(thrust, *shaft_torques(self.kind, g.omega, p_ind, p_pro))
         out = {k: float(out[k]) for k in KIND_COLUMNS[self.kind] + _EXTRA_SUMMARY}
         out.update({k: float(last[k].mean()) for k in FLOW_COLUMNS})
+        out.update(hub_coefficients({k: float(last[k].mean()) for k in HUB_COLUMNS[:4]}, omega=g.omega,
+                                    radius=g.radius, density=self.density))
         if len(mine) >= 2 * n:
             before = float(mine["thrust_N"].iloc[-2 * n:-n].mean())
             out["thrust_change_last_revolution"] = (thrust - before) / abs(before) if before else float("nan")
