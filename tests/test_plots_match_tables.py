@@ -9,7 +9,16 @@ import pandas as pd
 import pytest
 from wakes.case import parse_case
 from wakes.io.runfolder import read_run
-from wakes.plots import QUANTITY_LABELS, figures, key_label, load_panels, plot_run, sweep_figure
+from wakes.plots import (
+    QUANTITY_LABELS,
+    figures,
+    key_label,
+    load_panels,
+    plot_run,
+    sweep_figure,
+    uncertainty_figure,
+)
+from wakes.refinement import estimate_loads, uncertainty_table
 from wakes.run import run_case
 
 # A wing with a propeller ahead of it (the shape of cases/propeller-wing.toml, coarser:
@@ -270,3 +279,28 @@ def test_sweep_figure_names_the_body_of_a_prefixed_coefficient():
 ])
 def test_key_label_takes_words_and_unit_from_the_schema(key, label):
     assert key_label(key) == label
+
+
+def test_uncertainty_figure_draws_uncertainty_csv(tmp_path):
+    """A table of the shape wakes.refinement writes (synthetic values, ours): C_T converges at
+    second order, FM oscillates. The drawn levels, extrapolation and band equal the CSV read back."""
+    h = [1.0, 1.5, 2.25]
+    summaries = [{"bodies": {"lift": {"CT": 0.0046 + 1e-4 * hk ** 2, "FM": 0.6 + 0.01 * (-1) ** k}}}
+                 for k, hk in enumerate(h)]
+    est = estimate_loads(summaries, h)
+    values = {"lift": {k: [s["bodies"]["lift"][k] for s in summaries] for k in ("CT", "FM")}}
+    uncertainty_table(est, values, h).to_csv(tmp_path / "uncertainty.csv", index=False, float_format="%.10g")
+    table = pd.read_csv(tmp_path / "uncertainty.csv").set_index("quantity")
+    fig = uncertainty_figure(table.reset_index())
+    ct, fm = fig.axes
+    assert ct.get_ylabel() == "lift: " + QUANTITY_LABELS["CT"]
+    assert fm.get_ylabel() == "lift: " + QUANTITY_LABELS["FM"]
+    lines = {line.get_label(): line for line in ct.get_lines()}
+    np.testing.assert_allclose(lines["levels"].get_xdata(), table.loc["CT", ["spacing_1", "spacing_2", "spacing_3"]])
+    np.testing.assert_allclose(lines["levels"].get_ydata(), table.loc["CT", ["level_1", "level_2", "level_3"]])
+    np.testing.assert_allclose(lines["extrapolated"].get_ydata(), [table.loc["CT", "extrapolated"]])
+    assert lines["extrapolated"].get_ydata()[0] == pytest.approx(0.0046, rel=1e-9)
+    u, v = table.loc["CT", "uncertainty"], table.loc["CT", "value"]
+    np.testing.assert_allclose(lines["band"].get_ydata(), [v - u, v + u])
+    assert [line.get_label() for line in fm.get_lines()] == ["levels"]   # no band, no extrapolation
+    np.testing.assert_allclose(fm.get_lines()[0].get_ydata(), table.loc["FM", ["level_1", "level_2", "level_3"]])

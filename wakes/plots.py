@@ -80,6 +80,8 @@ LOAD_PANELS = {
 FALLBACK_PANELS = ("lift_N", "thrust_N", "power_W", "torque_Nm")
 #: Coefficients a sweep figure draws against the first varied key, in this order, at most four.
 SWEEP_PANELS = ("CT", "CP", "FM", "efficiency", "CL", "CD", "CDi", "span_efficiency")
+#: Loads an uncertainty figure draws against refinement, in this order, at most four.
+UNCERTAINTY_PANELS = ("CT", "CP", "FM", "efficiency", "CL", "CDi", "CD", "CM")
 
 
 def _look():
@@ -445,4 +447,51 @@ def sweep_figure(table, key: str, case: dict | None = None):
             ax.set_ylabel((f"{body}: " if body else "") + QUANTITY_LABELS.get(base, base))
         axes[-1].set_xlabel(key_label(key, case))
         axes[0].set_title(f"sweep over {key_label(key, case)}")
+    return fig
+
+
+def uncertainty_figure(table):
+    """Each main load of a refinement study against the levels' spacing, with its extrapolation.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The study's table (``uncertainty.csv``, :func:`wakes.refinement.uncertainty_table`):
+        one row per body and load with ``value``, ``extrapolated``,
+        ``uncertainty``, ``convergence``, and ``spacing_K``, ``level_K`` for
+        each level K (1 the finest, its spacing 1).
+
+    Returns
+    -------
+    matplotlib.figure.Figure or None
+        One panel per load of :data:`UNCERTAINTY_PANELS` present, at most
+        four (None when none is): the levels' values against their spacing
+        h / h_finest (line ``"levels"``); when the band is trusted, the
+        Richardson-extrapolated value at h = 0 (``"extrapolated"``) and the
+        band on the finest value (``"band"``, a vertical line at h = 1).
+    """
+    rows = [r for base in UNCERTAINTY_PANELS for _, r in table.iterrows() if r["quantity"] == base][:4]
+    if not rows:
+        return None
+    n = sum(1 for c in table.columns if c.startswith("level_"))
+    with _look():
+        fig = _figure(figsize=(6.5, 2.3 * len(rows) + 0.6), layout="constrained")
+        axes = fig.subplots(len(rows), 1, sharex=True, squeeze=False)[:, 0]
+        for ax, r in zip(axes, rows):
+            h = [float(r[f"spacing_{k}"]) for k in range(1, n + 1)]
+            v = [float(r[f"level_{k}"]) for k in range(1, n + 1)]
+            ax.plot(h, v, "o-", label="levels")
+            if r["convergence"] == "monotonic" and np.isfinite(r["uncertainty"]):
+                ax.plot([0.0], [float(r["extrapolated"])], marker="*", markersize=10, linestyle="none",
+                        label="extrapolated")
+                u = float(r["uncertainty"])
+                ax.plot([1.0, 1.0], [float(r["value"]) - u, float(r["value"]) + u], linewidth=4, alpha=0.5,
+                        label="band")
+            else:
+                ax.text(0.02, 0.9, f"no band: {r['convergence']}", transform=ax.transAxes, va="top")
+            ax.set_ylabel(f"{r['body']}: " + QUANTITY_LABELS.get(r["quantity"], r["quantity"]))
+            ax.set_xlim(left=-0.05 * max(h))
+            ax.legend(loc="best")
+        axes[-1].set_xlabel("spacing of the level / spacing of the finest level [-]")
+        axes[0].set_title("loads against refinement, Richardson-extrapolated to zero spacing")
     return fig

@@ -438,6 +438,16 @@ class WingSpec:
     def omitted(self) -> set:
         return set()
 
+    def discretization(self) -> dict:
+        """The counts of elements that resolve the wing, spanwise first: ``{key: count}``.
+
+        A vortex lattice adds its chordwise panels; a lifting line has one.
+        """
+        counts = {"spanwise_panels": self.spanwise_panels}
+        if self.model != "lifting-line":
+            counts["chordwise_panels"] = self.chordwise_panels
+        return counts
+
 
 MAX_AZIMUTH_STEP = 30.0     # largest blade turn per step accepted [deg]; 5-10 advised (common practice)
 MAX_CUTOUT = 0.9            # largest root cut-out / radius (our choice: a blade of a tenth of the radius)
@@ -593,6 +603,10 @@ class RotorSpec:
 
     def omitted(self) -> set:
         return set()
+
+    def discretization(self) -> dict:
+        """The counts of elements that resolve the blades: ``{"panels": strips per blade}``."""
+        return {"panels": self.panels}
 
 
 BODY_TYPES: dict[str, type] = {"wing": WingSpec, "rotor": RotorSpec}
