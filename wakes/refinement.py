@@ -70,6 +70,11 @@ LEVELS_FOLDER = "levels"
 TABLE_FILE = "uncertainty.csv"
 FIGURE_FILE = "uncertainty.png"
 #: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
+#: A body's relative change of its loads over its last revolution (rotors): how far the time march
+#: is from its periodic state, an iteration error in the sense of Celik et al. (2008). Its largest
+#: size over the levels, times a load, is the noise below which a difference between levels is not
+#: resolved (ours).
+PERIODIC_CHANGE = "thrust_change_last_revolution"
 NOT_LOADS = frozenset({"revolutions", "averaged_steps", "solidity", "collective_deg", "pitch_075R_deg",
                        "thrust_change_last_revolution", "mu", "J", "tip_speed_ratio", "advance_ratio"})
 
@@ -262,7 +267,10 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
     dict
         ``{body: {load: RefinementEstimate}}`` for every numeric summary
         figure not in :data:`NOT_LOADS`, finite at every level and not the
-        same at every level (such a figure is an input of the case).
+        same at every level (such a figure is an input of the case). Where a
+        body reports :data:`PERIODIC_CHANGE`, a load's differences between
+        levels must exceed the largest such change times the load's size,
+        else they are ``"unresolved"``.
 
     Examples
     --------
@@ -274,13 +282,15 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
     out = {}
     for body, figures in summaries[0]["bodies"].items():
         out[body] = {}
+        changes = [s["bodies"][body].get(PERIODIC_CHANGE) for s in summaries]
+        drift = max((abs(c) for c in changes if c is not None and math.isfinite(c)), default=0.0)
         for key, value in figures.items():
             if key in NOT_LOADS or isinstance(value, bool) or not isinstance(value, (int, float)):
                 continue
             values = [s["bodies"][body].get(key) for s in summaries]
             if any(v is None or not math.isfinite(v) for v in values) or len(set(values)) == 1:
                 continue
-            out[body][key] = refinement_estimate(values, spacings)
+            out[body][key] = refinement_estimate(values, spacings, noise=drift * max(map(abs, values)))
     return out
 
 
