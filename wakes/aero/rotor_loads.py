@@ -45,6 +45,29 @@ freestream (the air's velocity relative to the hub) and a the axis:
   over the blades with weights r dr (annulus area). In hover momentum
   theory gives lambda = sqrt(C_T/2) for a uniform inflow.
 
+Hub forces and moments, for every kind, in the rotor frame (x_h, y_h, a)
+of :meth:`wakes.aero.rotor.RotorGeometry.rotor_frame`: x_h the azimuth
+origin psi = 0 (downstream, the freestream's direction across the axis;
+without one the hub frame's azimuth zero), y_h = a x x_h, a right-handed
+frame whatever the sense of rotation (Johnson 1980, *Helicopter Theory*,
+ch. 5, takes the same axes for a counter-clockwise rotor):
+
+* H = sum F . x_h [N], the in-plane force downstream (rearward in
+  edgewise flight, opposite to the direction of flight);
+* Y = sum F . y_h [N], the side force (towards the advancing side psi =
+  90 deg of a ``spin = +1`` rotor);
+* roll moment M_x = sum ((x - h) x F) . x_h and pitch moment M_y = sum ((x -
+  h) x F) . y_h [N m] about the hub centre, with every strip's pressure
+  and profile force at its section point (and a vortex-lattice strip's own
+  moment). A positive M_y lifts the upstream edge of the disc (nose up in
+  edgewise flight), a positive M_x the +y_h edge;
+* coefficients C_H = H/(rho A (Omega R)^2), C_Y = Y/(rho A (Omega R)^2),
+  C_Mx = M_x/(rho A (Omega R)^2 R), C_My = M_y/(rho A (Omega R)^2 R), the
+  normalisation of C_T and C_Q for every kind.
+
+A clockwise rotor is the mirror image of a counter-clockwise one in the
+plane of x_h and a: H and M_y stay, Y and M_x change sign.
+
 Figure of merit is a hover quantity (Leishman 2006, ch. 2): it is reported
 only near hover, where the freestream is at most :data:`NEAR_HOVER_RATIO`
 of momentum theory's hover induced velocity, sqrt(mu^2 + lambda_c^2) <=
@@ -70,6 +93,9 @@ NEAR_HOVER_RATIO = 0.05
 
 #: Flow-ratio columns every rotor reports in loads.csv and summary.json (module notes).
 FLOW_COLUMNS = ("advance_ratio_mu", "inflow_ratio_lambda")
+
+#: Hub-force and hub-moment columns every rotor reports, dimensional then coefficients (module notes).
+HUB_COLUMNS = ("H_force_N", "Y_force_N", "roll_moment_Nm", "pitch_moment_Nm", "CH", "CY", "CMx", "CMy")
 
 KIND_COLUMNS = {
     "rotor": ("thrust_N", "torque_Nm", "power_W", "CT", "CQ", "CP", "FM"),
@@ -110,6 +136,66 @@ def blade_forces(strips, hub: np.ndarray, axis: np.ndarray, spin: int) -> dict:
         out["torque_induced"].append(-spin * float(np.sum(np.cross(arm, f_p) @ axis)))
         out["torque_profile"].append(-spin * float(np.sum(np.cross(arm, f_v) @ axis)))
     return {k: np.asarray(v) for k, v in out.items()}
+
+
+def hub_loads(strips, hub: np.ndarray, frame) -> dict:
+    """In-plane forces and hub moments of all blades together, in the rotor frame (module notes).
+
+    Parameters
+    ----------
+    strips : list of StripLoads
+        One per blade.
+    hub : ndarray, shape (3,)
+        Hub centre [m].
+    frame : tuple of ndarray, each shape (3,)
+        The rotor frame's unit vectors (x_h, y_h, a).
+
+    Returns
+    -------
+    dict of float
+        ``H_force_N``, ``Y_force_N`` [N], ``roll_moment_Nm``,
+        ``pitch_moment_Nm`` [N m].
+
+    Examples
+    --------
+    A force of 1 N along +a at 2 m on +x_h: no in-plane force, a moment of
+    -2 N m about y_h (the downstream edge pushed up: nose down).
+
+    >>> from types import SimpleNamespace
+    >>> s = SimpleNamespace(points=np.array([[2.0, 0.0, 0.0]]), force_pressure=np.array([[0.0, 0.0, 1.0]]),
+    ...                     force_profile=np.zeros((1, 3)), moment_pressure=None)
+    >>> {k: float(v) for k, v in hub_loads([s], np.zeros(3), np.eye(3)).items()}
+    {'H_force_N': 0.0, 'Y_force_N': 0.0, 'roll_moment_Nm': 0.0, 'pitch_moment_Nm': -2.0}
+    """
+    x_h, y_h, _ = (np.asarray(v, dtype=np.float64) for v in frame)
+    force = np.zeros(3)
+    moment = np.zeros(3)
+    for s in strips:
+        f = s.force_pressure + s.force_profile
+        force += f.sum(axis=0)
+        moment += np.cross(s.points - hub, f).sum(axis=0)
+        if s.moment_pressure is not None:
+            moment += s.moment_pressure.sum(axis=0)
+    return {"H_force_N": float(force @ x_h), "Y_force_N": float(force @ y_h),
+            "roll_moment_Nm": float(moment @ x_h), "pitch_moment_Nm": float(moment @ y_h)}
+
+
+def hub_coefficients(loads: dict, *, omega: float, radius: float, density: float) -> dict:
+    """``loads`` (:func:`hub_loads`) with C_H, C_Y, C_Mx and C_My added (module notes).
+
+    Examples
+    --------
+    >>> c = hub_coefficients({"H_force_N": 2.0, "Y_force_N": 0.0, "roll_moment_Nm": 0.0,
+    ...                       "pitch_moment_Nm": 4.0}, omega=1.0, radius=1.0, density=1.0 / np.pi)
+    >>> c["CH"], c["CMy"]
+    (2.0, 4.0)
+    """
+    force = density * np.pi * radius ** 2 * (omega * radius) ** 2
+    out = dict(loads)
+    out.update({"CH": loads["H_force_N"] / force, "CY": loads["Y_force_N"] / force,
+                "CMx": loads["roll_moment_Nm"] / (force * radius),
+                "CMy": loads["pitch_moment_Nm"] / (force * radius)})
+    return out
 
 
 def near_hover(mu: float, climb_ratio: float, ct: float) -> bool:
@@ -301,7 +387,8 @@ def strip_distributions(strips, *, dr: np.ndarray, hub: np.ndarray, axis: np.nda
 
 
 def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndarray,
-                 pitch_deg: np.ndarray, hub: np.ndarray, axis: np.ndarray, spin: int) -> pd.DataFrame:
+                 pitch_deg: np.ndarray, hub: np.ndarray, axis: np.ndarray, spin: int,
+                 azimuth_deg: np.ndarray | None = None) -> pd.DataFrame:
     """Radial distributions of every blade: circulation, cl, angles, dT/dr and dQ/dr.
 
     Parameters
@@ -315,18 +402,21 @@ def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndar
     r, dr : ndarray, shape (n,)
         Blade coordinate of each strip's section and the strip width [m],
         in the strips' order.
-    pitch_deg : ndarray, shape (n,)
-        Section pitch (collective + twist) [deg], in the strips' order.
+    pitch_deg : ndarray, shape (n,) or (B, n)
+        Section pitch (collective + twist, and cyclic) [deg], in the
+        strips' order; one row for every blade or one per blade.
     hub, axis : ndarray, shape (3,)
         Hub centre [m] and unit thrust axis.
     spin : int
         +1 or -1.
+    azimuth_deg : ndarray, shape (B,), optional
+        Each blade's azimuth psi [deg], written as ``azimuth_deg``.
 
     Returns
     -------
     pandas.DataFrame
         One row per blade and strip: ``body``, ``blade`` (1-based),
-        ``strip``, ``r_m``, ``r_over_R``, ``chord_m``, ``gamma_m2_s``,
+        (``azimuth_deg``), ``strip``, ``r_m``, ``r_over_R``, ``chord_m``, ``gamma_m2_s``,
         ``cl``, ``cd``, ``pitch_deg``, ``alpha_deg`` (effective),
         ``inflow_angle_deg`` (pitch minus effective angle of attack: the
         angle of the local flow, induced velocity included, below the
@@ -334,13 +424,17 @@ def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndar
         torque per unit radius).
     """
     d = strip_distributions(strips, dr=dr, hub=hub, axis=axis, spin=spin)
+    pitch = np.broadcast_to(np.asarray(pitch_deg, dtype=np.float64), (len(strips), r.shape[0]))
     frames = []
     for k, s in enumerate(strips):
+        where = {"body": name, "blade": k + 1}
+        if azimuth_deg is not None:
+            where["azimuth_deg"] = float(azimuth_deg[k])
         frames.append(pd.DataFrame({
-            "body": name, "blade": k + 1, "strip": np.arange(r.shape[0]), "r_m": r,
+            **where, "strip": np.arange(r.shape[0]), "r_m": r,
             "r_over_R": r / radius, "chord_m": s.chord, "gamma_m2_s": d["gamma_m2_s"][k], "cl": d["cl"][k],
-            "cd": d["cd"][k], "pitch_deg": pitch_deg, "alpha_deg": d["alpha_deg"][k],
-            "inflow_angle_deg": pitch_deg - d["alpha_deg"][k],
+            "cd": d["cd"][k], "pitch_deg": pitch[k], "alpha_deg": d["alpha_deg"][k],
+            "inflow_angle_deg": pitch[k] - d["alpha_deg"][k],
             "dT_dr_N_per_m": d["dT_dr_N_per_m"][k], "dQ_dr_N": d["dQ_dr_N"][k],
         }).sort_values("r_m"))
     return pd.concat(frames, ignore_index=True)
