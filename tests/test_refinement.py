@@ -174,3 +174,13 @@ def test_differences_within_a_rotors_revolution_to_revolution_change_are_unresol
     for s in summaries:
         s["bodies"]["r"][PERIODIC_CHANGE] = 1e-4
     assert estimate_loads(summaries, h)["r"]["CT"].convergence == MONOTONIC
+
+
+def test_a_load_zero_by_symmetry_is_unresolved_not_oscillating():
+    """Synthetic (ours): an in-plane force of round-off size beside a thrust of 500 N."""
+    h = [1.0, 1.5, 2.25]
+    summaries = [{"bodies": {"r": {"thrust_N": 500.0 * (1 + 1e-3 * hk ** 2), "H_force_N": 1e-13 * (-1) ** k}}}
+                 for k, hk in enumerate(h)]
+    est = estimate_loads(summaries, h)["r"]
+    assert est["thrust_N"].convergence == MONOTONIC
+    assert est["H_force_N"].convergence == UNRESOLVED

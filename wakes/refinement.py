@@ -58,9 +58,9 @@ from .io import atomic
 from .io.runfolder import clear_run, record_files
 from .io.tables import write_json
 from .plots import save_figure, uncertainty_figure
-from .run import check_new_folder
+from .run import _unit, check_new_folder
 from .sweep import failure_lines, sweep
-from .uncertainty import MONOTONIC, SAFETY_FACTOR_THREE_LEVELS, refinement_estimate
+from .uncertainty import MONOTONIC, ROUND_OFF, SAFETY_FACTOR_THREE_LEVELS, refinement_estimate
 
 DEFAULT_RATIO = math.sqrt(2.0)   # refinement ratio between levels, our default
 MIN_RATIO = 1.3                  # Celik et al. (2008) recommend r > 1.3
@@ -270,7 +270,9 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         same at every level (such a figure is an input of the case). Where a
         body reports :data:`PERIODIC_CHANGE`, a load's differences between
         levels must exceed the largest such change times the load's size,
-        else they are ``"unresolved"``.
+        else they are ``"unresolved"``; so must they exceed round-off
+        (``ROUND_OFF``) of the body's largest figure in the same unit (a
+        hover rotor's hub force, zero by symmetry, against its thrust).
 
     Examples
     --------
@@ -284,13 +286,20 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         out[body] = {}
         changes = [s["bodies"][body].get(PERIODIC_CHANGE) for s in summaries]
         drift = max((abs(c) for c in changes if c is not None and math.isfinite(c)), default=0.0)
+        scale = {}   # largest |figure| of each unit: round-off of a load zero by symmetry is relative to it
+        for key, value in figures.items():
+            if key not in NOT_LOADS and not isinstance(value, bool) and isinstance(value, (int, float)) \
+                    and math.isfinite(value):
+                unit = _unit(key)[1]
+                scale[unit] = max(scale.get(unit, 0.0), abs(value))
         for key, value in figures.items():
             if key in NOT_LOADS or isinstance(value, bool) or not isinstance(value, (int, float)):
                 continue
             values = [s["bodies"][body].get(key) for s in summaries]
             if any(v is None or not math.isfinite(v) for v in values) or len(set(values)) == 1:
                 continue
-            out[body][key] = refinement_estimate(values, spacings, noise=drift * max(map(abs, values)))
+            noise = max(drift * max(map(abs, values)), ROUND_OFF * scale[_unit(key)[1]])
+            out[body][key] = refinement_estimate(values, spacings, noise=noise)
     return out
 
 
