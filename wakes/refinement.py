@@ -453,6 +453,22 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
         A level did not finish (the finished levels' folders are kept).
     wakes.sweep.SweepStopped
         Ctrl-C.
+
+    Examples
+    --------
+    The demo glider (20, 14 and 10 strips) for 20 steps, its levels on a
+    Dask worker that is a thread of this process:
+
+    >>> import distributed
+    >>> with (distributed.LocalCluster(processes=False, n_workers=1, dashboard_address=None) as cluster,
+    ...       distributed.Client(cluster) as client):
+    ...     study = refinement_study("cases/survey-glider.toml", "glider-study", settings=["time.steps=20"],
+    ...                              client=client)
+    >>> [lv.settings["bodies.wing.spanwise_panels"] for lv in study.levels]
+    [20, 14, 10]
+    >>> cl = study.summary["uncertainty"]["bodies"]["wing"]["CL"]
+    >>> cl["convergence"], cl["value"] == study.summary["bodies"]["wing"]["CL"]
+    ('monotonic', True)
     """
     remote = client is not None or bool(scheduler)
     levels, _ = prepare(case, settings=settings, ratio=ratio, max_memory=max_memory, workers=workers,
