@@ -25,11 +25,13 @@ from .rotor_loads import (
     averaged_radial_table,
     blade_forces,
     coefficients,
+    disc_map_table,
     freestream_ratios,
     hub_coefficients,
     hub_loads,
     inflow_ratio,
     last_revolution,
+    local_inflow,
     near_hover,
     power_split,
     radial_table,
@@ -86,6 +88,7 @@ class RotorBody:
         # the section values of the last steps_per_revolution steps: the last full revolution's
         self._radial_samples = collections.deque(maxlen=self.steps_per_revolution)
         self._azimuth_samples = collections.deque(maxlen=self.steps_per_revolution)
+        self._disc_samples = collections.deque(maxlen=self.steps_per_revolution)
         self._chord = g.chord((self.r - g.root_cutout) / (g.radius - g.root_cutout))
 
     def surfaces(self, time: float) -> list:
@@ -133,6 +136,11 @@ class RotorBody:
         """
         return self.geometry.azimuth_of(np.array([np.mean(s.points - self.hub, axis=0) for s in strips]))
 
+    def azimuths_deg(self, strips: list) -> np.ndarray:
+        """:meth:`blade_azimuths` in degrees for the tables, rounded to 1e-9 deg and in [0, 360)
+        (round-off would write a blade at psi = 0 as 360)."""
+        return np.mod(np.round(np.degrees(self.blade_azimuths(strips)), 9), 360.0)
+
     def section_pitch(self, strips: list) -> np.ndarray:
         """Pitch [deg] of every blade's sections, collective, twist and cyclic, shape (B, n)."""
         cyclic = self.geometry.cyclic_at(self.blade_azimuths(strips))
@@ -145,11 +153,14 @@ class RotorBody:
         ``steps_per_revolution`` steps and, over the last revolution,
         samples blade 1's tip-vortex path, for :meth:`tables`.
         """
-        f = blade_forces(strips, self.hub, self.axis, self.geometry.spin)
-        self._radial_samples.append(strip_distributions(strips, dr=self.dr, hub=self.hub, axis=self.axis,
-                                                        spin=self.geometry.spin))
-        self._azimuth_samples.append(self.blade_azimuths(strips))
         g = self.geometry
+        f = blade_forces(strips, self.hub, self.axis, g.spin)
+        sections = strip_distributions(strips, dr=self.dr, hub=self.hub, axis=self.axis, spin=g.spin)
+        self._radial_samples.append(sections)
+        self._azimuth_samples.append(self.blade_azimuths(strips))
+        self._disc_samples.append({"azimuth_deg": self.azimuths_deg(strips), "dT_dr_N_per_m": sections["dT_dr_N_per_m"],
+                                   "alpha_deg": sections["alpha_deg"],
+                                   "inflow_ratio": local_inflow(self.kind, strips, self.axis, g.omega, g.radius)})
         row = self._totals(float(f["thrust"].sum()), float(f["torque_induced"].sum()),
                            float(f["torque_profile"].sum()))
         row["advance_ratio_mu"] = self.mu
@@ -183,7 +194,7 @@ class RotorBody:
         g = self.geometry
         return radial_table(self.name, strips, radius=g.radius, r=self.r, dr=self.dr,
                             pitch_deg=self.section_pitch(strips), hub=self.hub, axis=self.axis, spin=g.spin,
-                            azimuth_deg=np.degrees(self.blade_azimuths(strips)))
+                            azimuth_deg=self.azimuths_deg(strips))
 
     def tables(self) -> dict:
         """Extra result tables, those there are data for.
@@ -191,8 +202,10 @@ class RotorBody:
         ``radial_loading.csv``: the radial loading averaged over the last
         full revolution (the last ``steps_per_revolution`` steps, or the
         steps done since a resume if fewer) and over the blades
-        (:func:`averaged_radial_table`); ``tip_vortex.csv``: blade 1's
-        tip-vortex path (:func:`tip_vortex_table`).
+        (:func:`averaged_radial_table`); ``disc_map.csv``: every blade's
+        sections at every step of that revolution, by azimuth
+        (:func:`disc_map_table`); ``tip_vortex.csv``: blade 1's tip-vortex
+        path (:func:`tip_vortex_table`).
         """
         g = self.geometry
         out = {}
@@ -202,6 +215,7 @@ class RotorBody:
             out["radial_loading.csv"] = averaged_radial_table(
                 self.name, list(self._radial_samples), radius=g.radius, r=self.r, chord=self._chord,
                 pitch_deg=self.pitch_deg + cyclic)
+            out["disc_map.csv"] = disc_map_table(self.name, list(self._disc_samples), radius=g.radius, r=self.r)
         if self._tip_samples:
             out["tip_vortex.csv"] = tip_vortex_table(self.name, list(self._tip_samples), hub=self.hub,
                                                      axis=self.axis, radius=g.radius, omega=g.omega)

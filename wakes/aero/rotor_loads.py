@@ -268,6 +268,74 @@ def inflow_ratio(kind: str, strips, axis: np.ndarray, r: np.ndarray, dr: np.ndar
     return -POWER_SENSE[kind] * along / (omega * radius)
 
 
+def local_inflow(kind: str, strips, axis: np.ndarray, omega: float, radius: float) -> np.ndarray:
+    """Each strip's inflow ratio, the local values whose r dr mean is :func:`inflow_ratio`.
+
+    Parameters
+    ----------
+    kind : {"rotor", "propeller", "turbine"}
+        Sets the sense (module notes).
+    strips : list of StripLoads
+        One per blade (B of them, n strips each), with the section-plane air velocity ``flow``.
+    axis : ndarray, shape (3,)
+        Unit thrust axis.
+    omega, radius : float
+        Rotation rate [rad/s] and R [m].
+
+    Returns
+    -------
+    ndarray, shape (B, n)
+        Air velocity along the axis at each strip, times -1 for a rotor or
+        propeller, over Omega R, in the strips' order.
+    """
+    along = np.array([s.flow @ axis for s in strips], dtype=np.float64)
+    return -POWER_SENSE[kind] * along / (omega * radius)
+
+
+def disc_map_table(name: str, samples: list, *, radius: float, r: np.ndarray) -> pd.DataFrame:
+    """Sectional loads of every blade at every sampled azimuth: the map of the rotor disc.
+
+    Parameters
+    ----------
+    name : str
+        Body name.
+    samples : list of dict
+        One per step (those of the last full revolution), each with
+        ``azimuth_deg`` (B,), the blade azimuths psi, and ``dT_dr_N_per_m``,
+        ``inflow_ratio``, ``alpha_deg`` (B, n) in the strips' order.
+    radius : float
+        R [m].
+    r : ndarray, shape (n,)
+        Section radius [m], in the strips' order.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per sample, blade and strip, sorted by blade, azimuth and
+        radius: ``body``, ``blade`` (1-based), ``azimuth_deg`` (psi, 0 to
+        360), ``r_m``, ``r_over_R``, ``normal_force_N_per_m`` (the section
+        force along the axis per unit radius, dT/dr), ``inflow_ratio``
+        (:func:`local_inflow`) and ``alpha_deg`` (effective angle of attack).
+
+    Examples
+    --------
+    >>> one = {"azimuth_deg": np.array([90.0]), "dT_dr_N_per_m": np.array([[3.0, 5.0]]),
+    ...        "inflow_ratio": np.array([[0.05, 0.04]]), "alpha_deg": np.array([[6.0, 4.0]])}
+    >>> t = disc_map_table("rotor", [one], radius=1.0, r=np.array([0.8, 0.4]))
+    >>> t[["azimuth_deg", "r_over_R", "normal_force_N_per_m"]].values.tolist()
+    [[90.0, 0.4, 5.0], [90.0, 0.8, 3.0]]
+    """
+    frames = []
+    for sample in samples:
+        for k, psi in enumerate(sample["azimuth_deg"]):
+            frames.append(pd.DataFrame({
+                "body": name, "blade": k + 1, "azimuth_deg": float(psi), "r_m": r, "r_over_R": r / radius,
+                "normal_force_N_per_m": sample["dT_dr_N_per_m"][k], "inflow_ratio": sample["inflow_ratio"][k],
+                "alpha_deg": sample["alpha_deg"][k]}))
+    table = pd.concat(frames, ignore_index=True)
+    return table.sort_values(["blade", "azimuth_deg", "r_m"], kind="stable", ignore_index=True)
+
+
 def power_split(kind: str, omega: float, torque_induced: float, torque_profile: float) -> dict:
     """``induced_power_W`` and ``profile_power_W`` from the shaft torque's two parts (module notes).
 
