@@ -11,6 +11,7 @@ difference measured in that module.
 """
 
 import json
+import shutil
 from pathlib import Path
 
 import distributed
@@ -23,13 +24,14 @@ from wakes.cli import main
 from wakes.errors import CaseError, InputError
 from wakes.refinement import (
     LEVELS_FOLDER,
+    PERIODIC_CHANGE,
     band_text,
     estimate_loads,
     plan_levels,
     refinement_study,
     uncertainty_table,
 )
-from wakes.uncertainty import DIVERGENT, MONOTONIC, OSCILLATORY
+from wakes.uncertainty import DIVERGENT, MONOTONIC, OSCILLATORY, UNRESOLVED
 
 CASES = Path(__file__).resolve().parents[1] / "cases"
 WING = CASES / "validation" / "elliptic-wing.toml"
@@ -146,3 +148,39 @@ def test_check_lists_the_levels(capsys):
     out = capsys.readouterr().out
     assert "refinement study: 3 levels, ratios 1.41, 1.42" in out
     assert "level 3 (coarsest, spacing 2 x the case's): dt 0.05, steps 49, spanwise_panels 12" in out
+
+
+def test_a_study_run_again_reuses_its_finished_levels(study, tmp_path):
+    """--overwrite removes the study's own files; the levels' finished run folders are reused."""
+    out = tmp_path / "copy"
+    shutil.copytree(study.out, out)      # the fixture's folder stays as the other tests read it
+    with (distributed.LocalCluster(processes=False, n_workers=1, threads_per_worker=1,
+                                   dashboard_address=None) as cluster,
+          distributed.Client(cluster) as client):
+        again = refinement_study(WING, out, settings=SMALL, client=client, overwrite=True, plots=False)
+    status = pd.read_csv(out / LEVELS_FOLDER / "sweep.csv")["status"]
+    assert list(status) == ["reused"] * 3
+    pd.testing.assert_frame_equal(again.table, study.table)
+    assert not (out / "plots" / "uncertainty.png").exists()
+
+
+def test_differences_within_a_rotors_revolution_to_revolution_change_are_unresolved():
+    """Synthetic (ours): C_T converging at second order by 0.1 % steps while the thrust still
+    changes by 1 % from one revolution to the next: the levels' differences are not resolved."""
+    h = [1.0, 1.5, 2.25]
+    summaries = [{"bodies": {"r": {"CT": 0.005 * (1 + 1e-3 * hk ** 2), PERIODIC_CHANGE: change}}}
+                 for hk, change in zip(h, (0.01, -0.002, 0.0))]
+    assert estimate_loads(summaries, h)["r"]["CT"].convergence == UNRESOLVED
+    for s in summaries:
+        s["bodies"]["r"][PERIODIC_CHANGE] = 1e-4
+    assert estimate_loads(summaries, h)["r"]["CT"].convergence == MONOTONIC
+
+
+def test_a_load_zero_by_symmetry_is_unresolved_not_oscillating():
+    """Synthetic (ours): an in-plane force of round-off size beside a thrust of 500 N."""
+    h = [1.0, 1.5, 2.25]
+    summaries = [{"bodies": {"r": {"thrust_N": 500.0 * (1 + 1e-3 * hk ** 2), "H_force_N": 1e-13 * (-1) ** k}}}
+                 for k, hk in enumerate(h)]
+    est = estimate_loads(summaries, h)["r"]
+    assert est["thrust_N"].convergence == MONOTONIC
+    assert est["H_force_N"].convergence == UNRESOLVED

@@ -225,7 +225,10 @@ def _study(args, max_memory) -> int:
                                  plots=not args.no_plots, max_memory=max_memory,
                                  progress=not args.quiet and sys.stderr.isatty())
     except SweepStopped as stop:
-        print(f"wakes: {stop.message.replace('sweep', 'refinement study')}", file=sys.stderr)
+        done = int(stop.table["status"].isin(["ran", "reused"]).sum())
+        print(f"wakes: refinement study stopped by Ctrl-C: {done} of {len(stop.table)} levels finished, "
+              f"kept in {out / LEVELS_FOLDER}/; run the same command with --overwrite to go on "
+              "(finished levels are reused)", file=sys.stderr)
         return 130
     except LevelFailed as exc:
         print(f"wakes: {exc}", file=sys.stderr)

@@ -58,9 +58,9 @@ from .io import atomic
 from .io.runfolder import clear_run, record_files
 from .io.tables import write_json
 from .plots import save_figure, uncertainty_figure
-from .run import check_new_folder
+from .run import _unit, check_new_folder
 from .sweep import failure_lines, sweep
-from .uncertainty import MONOTONIC, SAFETY_FACTOR_THREE_LEVELS, refinement_estimate
+from .uncertainty import MONOTONIC, ROUND_OFF, SAFETY_FACTOR_THREE_LEVELS, refinement_estimate
 
 DEFAULT_RATIO = math.sqrt(2.0)   # refinement ratio between levels, our default
 MIN_RATIO = 1.3                  # Celik et al. (2008) recommend r > 1.3
@@ -70,6 +70,11 @@ LEVELS_FOLDER = "levels"
 TABLE_FILE = "uncertainty.csv"
 FIGURE_FILE = "uncertainty.png"
 #: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
+#: A body's relative change of its loads over its last revolution (rotors): how far the time march
+#: is from its periodic state, an iteration error in the sense of Celik et al. (2008). Its largest
+#: size over the levels, times a load, is the noise below which a difference between levels is not
+#: resolved (ours).
+PERIODIC_CHANGE = "thrust_change_last_revolution"
 NOT_LOADS = frozenset({"revolutions", "averaged_steps", "solidity", "collective_deg", "pitch_075R_deg",
                        "thrust_change_last_revolution", "mu", "J", "tip_speed_ratio", "advance_ratio"})
 
@@ -262,7 +267,12 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
     dict
         ``{body: {load: RefinementEstimate}}`` for every numeric summary
         figure not in :data:`NOT_LOADS`, finite at every level and not the
-        same at every level (such a figure is an input of the case).
+        same at every level (such a figure is an input of the case). Where a
+        body reports :data:`PERIODIC_CHANGE`, a load's differences between
+        levels must exceed the largest such change times the load's size,
+        else they are ``"unresolved"``; so must they exceed round-off
+        (``ROUND_OFF``) of the body's largest figure in the same unit (a
+        hover rotor's hub force, zero by symmetry, against its thrust).
 
     Examples
     --------
@@ -274,13 +284,22 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
     out = {}
     for body, figures in summaries[0]["bodies"].items():
         out[body] = {}
+        changes = [s["bodies"][body].get(PERIODIC_CHANGE) for s in summaries]
+        drift = max((abs(c) for c in changes if c is not None and math.isfinite(c)), default=0.0)
+        scale = {}   # largest |figure| of each unit: round-off of a load zero by symmetry is relative to it
+        for key, value in figures.items():
+            if key not in NOT_LOADS and not isinstance(value, bool) and isinstance(value, (int, float)) \
+                    and math.isfinite(value):
+                unit = _unit(key)[1]
+                scale[unit] = max(scale.get(unit, 0.0), abs(value))
         for key, value in figures.items():
             if key in NOT_LOADS or isinstance(value, bool) or not isinstance(value, (int, float)):
                 continue
             values = [s["bodies"][body].get(key) for s in summaries]
             if any(v is None or not math.isfinite(v) for v in values) or len(set(values)) == 1:
                 continue
-            out[body][key] = refinement_estimate(values, spacings)
+            noise = max(drift * max(map(abs, values)), ROUND_OFF * scale[_unit(key)[1]])
+            out[body][key] = refinement_estimate(values, spacings, noise=noise)
     return out
 
 
@@ -434,6 +453,22 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
         A level did not finish (the finished levels' folders are kept).
     wakes.sweep.SweepStopped
         Ctrl-C.
+
+    Examples
+    --------
+    The demo glider (20, 14 and 10 strips) for 20 steps, its levels on a
+    Dask worker that is a thread of this process:
+
+    >>> import distributed
+    >>> with (distributed.LocalCluster(processes=False, n_workers=1, dashboard_address=None) as cluster,
+    ...       distributed.Client(cluster) as client):
+    ...     study = refinement_study("cases/survey-glider.toml", "glider-study", settings=["time.steps=20"],
+    ...                              client=client)
+    >>> [lv.settings["bodies.wing.spanwise_panels"] for lv in study.levels]
+    [20, 14, 10]
+    >>> cl = study.summary["uncertainty"]["bodies"]["wing"]["CL"]
+    >>> cl["convergence"], cl["value"] == study.summary["bodies"]["wing"]["CL"]
+    ('monotonic', True)
     """
     remote = client is not None or bool(scheduler)
     levels, _ = prepare(case, settings=settings, ratio=ratio, max_memory=max_memory, workers=workers,
