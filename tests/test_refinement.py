@@ -29,6 +29,7 @@ from wakes.refinement import (
     estimate_loads,
     plan_levels,
     refinement_study,
+    sweep_study,
     uncertainty_table,
 )
 from wakes.uncertainty import DIVERGENT, MONOTONIC, OSCILLATORY, UNRESOLVED
@@ -184,3 +185,19 @@ def test_a_load_zero_by_symmetry_is_unresolved_not_oscillating():
     est = estimate_loads(summaries, h)["r"]
     assert est["thrust_N"].convergence == MONOTONIC
     assert est["H_force_N"].convergence == UNRESOLVED
+
+
+def test_an_order_beyond_the_schemes_gets_no_band():
+    """Synthetic (ours): differences shrinking at order 6 (a sum of parts converging from two sides
+    can look like this); twice the strips' second order is the most accepted."""
+    h = [1.0, 1.5, 2.25]
+    summaries = [{"bodies": {"w": {"CD": 0.015 + 1e-5 * hk ** 6}}} for hk in h]
+    est = estimate_loads(summaries, h)["w"]["CD"]
+    assert est.convergence == MONOTONIC and not est.trusted and est.uncertainty is None
+    assert "far from the expected" in est.reason
+
+
+def test_a_sweep_point_too_coarse_to_coarsen_stops_the_sweep_before_it_runs(tmp_path):
+    with pytest.raises(CaseError, match=r"sweep point 0 \(bodies.wing.spanwise_panels=3\).*level 3 \(coarsest"):
+        sweep_study(WING, {"bodies.wing.spanwise_panels": [3, 12]}, out=tmp_path / "s")
+    assert not (tmp_path / "s").exists()
