@@ -179,3 +179,12 @@ def test_disc_map_in_edgewise_flight_loads_the_advancing_side_and_lets_the_air_i
     fit = np.linalg.lstsq(np.c_[np.ones_like(lam), x * np.cos(psi), x * np.sin(psi)], lam, rcond=None)[0]
     assert fit[0] > 0 and fit[1] / fit[0] > 0.1
     assert s["advance_ratio_mu"] == pytest.approx(8.0 / (RPM * np.pi / 30.0 * 0.5), rel=1e-12)
+    assert s["shaft_angle_deg"] == 0.0                      # the flow along the disc plane
+
+
+def test_shaft_angle_is_the_freestream_angle_to_the_disc():
+    """The case's flow from 10 deg below the x axis (angle of attack 10 deg): the air crosses the
+    disc along +axis, the sense of a disc tilted back by 10 deg; in hover there is no angle."""
+    run = stepped("", "[freestream]\nspeed = 8.0\nangle_of_attack = 10.0\n[time]\nsteps = 2\n")
+    assert run[1]["shaft_angle_deg"] == pytest.approx(10.0, rel=1e-12)
+    assert np.isnan(stepped("", "[time]\nsteps = 2\n")[1]["shaft_angle_deg"])

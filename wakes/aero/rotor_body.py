@@ -35,6 +35,7 @@ from .rotor_loads import (
     near_hover,
     power_split,
     radial_table,
+    shaft_angle_deg,
     shaft_torques,
     strip_distributions,
 )
@@ -230,7 +231,8 @@ class RotorBody:
         thrust of the last two revolutions (relative), a convergence
         indicator (NaN with fewer than two revolutions). The flow ratios
         mu and lambda are the last revolution's means
-        (:mod:`wakes.aero.rotor_loads`), and so are the hub forces and
+        (:mod:`wakes.aero.rotor_loads`; ``shaft_angle_deg`` the angle of the
+        freestream to the disc), and so are the hub forces and
         moments H, Y, M_x, M_y (in the rotor frame), with the coefficients
         of the means. Near hover
         (:func:`wakes.aero.rotor_loads.near_hover`, the figure of merit's
@@ -251,6 +253,7 @@ class RotorBody:
         out = self._totals(thrust, *shaft_torques(self.kind, g.omega, p_ind, p_pro))
         out = {k: float(out[k]) for k in KIND_COLUMNS[self.kind] + _EXTRA_SUMMARY}
         out.update({k: float(last[k].mean()) for k in FLOW_COLUMNS})
+        out["shaft_angle_deg"] = shaft_angle_deg(self.mu, self.climb_ratio)
         out.update(hub_coefficients({k: float(last[k].mean()) for k in HUB_COLUMNS[:4]}, omega=g.omega,
                                     radius=g.radius, density=self.density))
         if len(mine) >= 2 * n:

@@ -37,6 +37,9 @@ freestream (the air's velocity relative to the hub) and a the axis:
 * advance ratio mu = |V - (V . a) a|/(Omega R), the freestream across the
   axis over the tip speed (edgewise flight; 0 in hover and axial flight; a
   propeller's J = V/(n D) is a different ratio, of the speed along the axis);
+* shaft angle alpha_s = atan2(V . a, |V - (V . a) a|), the angle of the
+  freestream to the disc plane, positive when the air crosses the disc
+  along +a (:func:`shaft_angle_deg`);
 * inflow ratio lambda = the mean flow through the blades' annulus over the
   tip speed, freestream and induced velocity together, in the direction the
   air crosses the disc in the kind's normal working (against the axis for a
@@ -237,6 +240,24 @@ def freestream_ratios(v_inf, axis, omega: float, radius: float) -> tuple[float, 
     along = float(v @ a)
     tip = omega * radius
     return float(np.linalg.norm(v - along * a)) / tip, -along / tip
+
+
+def shaft_angle_deg(mu: float, climb_ratio: float) -> float:
+    """Angle of the freestream to the disc plane [deg] (module notes), NaN without a freestream.
+
+    Positive when the air crosses the disc along +axis (a lift rotor's disc
+    tilted back against the flight, the sense of a helicopter's shaft angle
+    of attack, Johnson 1980, ch. 5); -90 deg in axial climb, +90 deg for a
+    turbine facing the wind.
+
+    Examples
+    --------
+    >>> shaft_angle_deg(0.3, 0.3), shaft_angle_deg(0.2, 0.0), shaft_angle_deg(0.0, 0.0)
+    (-45.0, 0.0, nan)
+    """
+    if mu == 0.0 and climb_ratio == 0.0:
+        return float("nan")
+    return float(np.degrees(np.arctan2(-climb_ratio, mu))) + 0.0   # + 0.0: no -0.0 in the tables
 
 
 def inflow_ratio(kind: str, strips, axis: np.ndarray, r: np.ndarray, dr: np.ndarray, omega: float,
