@@ -24,6 +24,7 @@ from .rotor_loads import (
     KIND_COLUMNS,
     averaged_radial_table,
     blade_forces,
+    blade_harmonics_table,
     coefficients,
     disc_map_table,
     freestream_ratios,
@@ -205,8 +206,10 @@ class RotorBody:
         steps done since a resume if fewer) and over the blades
         (:func:`averaged_radial_table`); ``disc_map.csv``: every blade's
         sections at every step of that revolution, by azimuth
-        (:func:`disc_map_table`); ``tip_vortex.csv``: blade 1's tip-vortex
-        path (:func:`tip_vortex_table`).
+        (:func:`disc_map_table`); ``blade_harmonics.csv``: the harmonics of
+        blade 1's thrust and flap moment over that revolution
+        (:func:`blade_harmonics_table`); ``tip_vortex.csv``: blade 1's
+        tip-vortex path (:func:`tip_vortex_table`).
         """
         g = self.geometry
         out = {}
@@ -217,6 +220,8 @@ class RotorBody:
                 self.name, list(self._radial_samples), radius=g.radius, r=self.r, chord=self._chord,
                 pitch_deg=self.pitch_deg + cyclic)
             out["disc_map.csv"] = disc_map_table(self.name, list(self._disc_samples), radius=g.radius, r=self.r)
+            out["blade_harmonics.csv"] = blade_harmonics_table(self.name, list(self._disc_samples), r=self.r,
+                                                               dr=self.dr)
         if self._tip_samples:
             out["tip_vortex.csv"] = tip_vortex_table(self.name, list(self._tip_samples), hub=self.hub,
                                                      axis=self.axis, radius=g.radius, omega=g.omega)

@@ -357,6 +357,74 @@ def disc_map_table(name: str, samples: list, *, radius: float, r: np.ndarray) ->
     return table.sort_values(["blade", "azimuth_deg", "r_m"], kind="stable", ignore_index=True)
 
 
+#: Highest harmonic of the azimuth that :func:`blade_harmonics_table` reports.
+MAX_HARMONIC = 4
+#: A harmonic smaller than this fraction of the quantity's largest one has no phase (NaN).
+NO_PHASE = 1e-9
+
+
+def blade_harmonics_table(name: str, samples: list, *, r: np.ndarray, dr: np.ndarray,
+                          max_harmonic: int = MAX_HARMONIC) -> pd.DataFrame:
+    """Harmonics of blade 1's loads over the azimuth psi, from the samples of a revolution.
+
+    Each quantity q is fitted by least squares as q(psi) = q_0 + sum_n (q_nc
+    cos n psi + q_ns sin n psi), n = 1 .. ``max_harmonic`` (fewer when the
+    samples cannot resolve them: 2n + 1 samples at least).
+
+    Parameters
+    ----------
+    name : str
+        Body name.
+    samples : list of dict
+        As for :func:`disc_map_table` (``azimuth_deg`` (B,) and
+        ``dT_dr_N_per_m`` (B, n) are used).
+    r, dr : ndarray, shape (n,)
+        Section radius and strip width [m], in the strips' order.
+    max_harmonic : int
+        Highest harmonic n.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Rows for ``thrust_N`` (the blade's force along the axis) and
+        ``flap_moment_Nm`` (its moment about the hub, sum of r dT: the
+        out-of-plane root moment) and each harmonic: ``body``,
+        ``quantity``, ``harmonic``, ``cos``, ``sin`` (q_nc, q_ns; for n = 0
+        the mean and 0), ``amplitude`` and ``phase_deg``, with q_nc cos n
+        psi + q_ns sin n psi = amplitude cos(n psi - phase); the phase is
+        NaN where the amplitude is below :data:`NO_PHASE` times the largest
+        amplitude of the quantity (round-off has no phase to speak of).
+
+    Examples
+    --------
+    >>> psi = np.arange(0.0, 360.0, 30.0)
+    >>> samples = [{"azimuth_deg": np.array([p]), "dT_dr_N_per_m": np.array([[10.0 + 2.0 * np.sin(np.radians(p))]])}
+    ...            for p in psi]
+    >>> t = blade_harmonics_table("rotor", samples, r=np.array([0.5]), dr=np.array([1.0]), max_harmonic=2)
+    >>> t[t["quantity"] == "thrust_N"][["harmonic", "amplitude", "phase_deg"]].round(9).values.tolist()
+    [[0.0, 10.0, 0.0], [1.0, 2.0, 90.0], [2.0, 0.0, nan]]
+    """
+    psi = np.radians([float(s["azimuth_deg"][0]) for s in samples])
+    force = np.array([s["dT_dr_N_per_m"][0] for s in samples]) * dr          # (samples, n)
+    values = {"thrust_N": force.sum(axis=1), "flap_moment_Nm": force @ r}
+    top = min(max_harmonic, (len(samples) - 1) // 2)
+    basis = [np.ones_like(psi)]
+    for n in range(1, top + 1):
+        basis += [np.cos(n * psi), np.sin(n * psi)]
+    basis = np.column_stack(basis)
+    rows = []
+    for quantity, q in values.items():
+        coef = np.linalg.lstsq(basis, q, rcond=None)[0]
+        pairs = [(float(coef[0]), 0.0)] + [(float(coef[2 * n - 1]), float(coef[2 * n])) for n in range(1, top + 1)]
+        largest = max(float(np.hypot(c, s_)) for c, s_ in pairs)
+        for n, (c, s_) in enumerate(pairs):
+            amplitude = float(np.hypot(c, s_))
+            phase = float(np.degrees(np.arctan2(s_, c))) + 0.0 if amplitude > NO_PHASE * largest else float("nan")
+            rows.append({"body": name, "quantity": quantity, "harmonic": n, "cos": c, "sin": s_,
+                         "amplitude": amplitude, "phase_deg": phase})
+    return pd.DataFrame(rows)
+
+
 def power_split(kind: str, omega: float, torque_induced: float, torque_profile: float) -> dict:
     """``induced_power_W`` and ``profile_power_W`` from the shaft torque's two parts (module notes).
 

@@ -31,7 +31,7 @@ MANIFEST = "manifest.txt"
 # it, or one written by an earlier version): the run's tables and figures.
 RUN_FILES = RUN_MARKERS + ("sections.csv", "loads.parquet", "sections.parquet", "wake_segments.csv",
                            "wake_particles.csv", "tip_vortex.csv", "radial_loading.csv", "disc_map.csv",
-                           MANIFEST)
+                           "blade_harmonics.csv", MANIFEST)
 PLOT_FILES = ("loads.png", "span_loading.png", "radial_loading.png", "wake_3d.png", "tip_vortex.png")
 RUN_SUBFOLDERS = ("wake", "checkpoints", "plots", "polars")   # made by a run; removed when left empty
 # Known patterns: snapshots, checkpoints, rotors' disc-map figures, the default outputs of 'wakes
