@@ -328,6 +328,11 @@ def test_key_label_takes_words_and_unit_from_the_schema(key, label):
     assert key_label(key) == label
 
 
+def _row(table, quantity, column):
+    """The three levels' ``column`` of ``quantity`` as floats (old pandas gives objects)."""
+    return table.loc[quantity, [f"{column}_{k}" for k in (1, 2, 3)]].to_numpy(dtype=float)
+
+
 def test_uncertainty_figure_draws_uncertainty_csv(tmp_path):
     """A table of the shape wakes.refinement writes (synthetic values, ours): C_T converges at
     second order, FM oscillates. The drawn levels, extrapolation and band equal the CSV read back."""
@@ -343,11 +348,11 @@ def test_uncertainty_figure_draws_uncertainty_csv(tmp_path):
     assert ct.get_ylabel() == "lift: " + QUANTITY_LABELS["CT"]
     assert fm.get_ylabel() == "lift: " + QUANTITY_LABELS["FM"]
     lines = {line.get_label(): line for line in ct.get_lines()}
-    np.testing.assert_allclose(lines["levels"].get_xdata(), table.loc["CT", ["spacing_1", "spacing_2", "spacing_3"]])
-    np.testing.assert_allclose(lines["levels"].get_ydata(), table.loc["CT", ["level_1", "level_2", "level_3"]])
+    np.testing.assert_allclose(lines["levels"].get_xdata(), _row(table, "CT", "spacing"))
+    np.testing.assert_allclose(lines["levels"].get_ydata(), _row(table, "CT", "level"))
     np.testing.assert_allclose(lines["extrapolated"].get_ydata(), [table.loc["CT", "extrapolated"]])
     assert lines["extrapolated"].get_ydata()[0] == pytest.approx(0.0046, rel=1e-9)
     u, v = table.loc["CT", "uncertainty"], table.loc["CT", "value"]
     np.testing.assert_allclose(lines["band"].get_ydata(), [v - u, v + u])
     assert [line.get_label() for line in fm.get_lines()] == ["levels"]   # no band, no extrapolation
-    np.testing.assert_allclose(fm.get_lines()[0].get_ydata(), table.loc["FM", ["level_1", "level_2", "level_3"]])
+    np.testing.assert_allclose(fm.get_lines()[0].get_ydata(), _row(table, "FM", "level"))
