@@ -31,7 +31,8 @@ LAYERS = (
                "wakes.io.runfolder")),
     ("time loop", ("wakes.estimate", "wakes.budget", "wakes.watchdog", "wakes.simulate")),
     ("edge", ("wakes.cluster", "wakes.plots", "wakes.probe", "wakes.templates",
-              "wakes.progress", "wakes.verify", "wakes.run", "wakes.sweep")),
+              "wakes.progress", "wakes.verify", "wakes.run", "wakes.sweep",
+              "wakes.refinement")),
     ("front doors", ("wakes.cli", "wakes")),
 )
 

@@ -9,7 +9,16 @@ import pandas as pd
 import pytest
 from wakes.case import parse_case
 from wakes.io.runfolder import read_run
-from wakes.plots import QUANTITY_LABELS, figures, key_label, load_panels, plot_run, sweep_figure
+from wakes.plots import (
+    QUANTITY_LABELS,
+    figures,
+    key_label,
+    load_panels,
+    plot_run,
+    sweep_figure,
+    uncertainty_figure,
+)
+from wakes.refinement import estimate_loads, uncertainty_table
 from wakes.run import run_case
 
 # A wing with a propeller ahead of it (the shape of cases/propeller-wing.toml, coarser:
@@ -194,6 +203,53 @@ def test_radial_loading_is_the_mean_over_the_last_revolution(runs, name, body):
                                rtol=1e-8, atol=1e-8)
 
 
+@pytest.mark.parametrize("name, body", [("mixed", "propeller"), ("hover", "lift")])
+def test_disc_map_figure_is_blade_1_of_disc_map_csv(runs, name, body):
+    """Each panel's cells hold blade 1's rows of disc_map.csv, one cell per sampled azimuth and
+    section: around each sampled azimuth (equally spaced, so at the middle) and between the
+    sections' radii."""
+    folder, _ = runs[name]
+    table = pd.read_csv(folder.path / "disc_map.csv")
+    fig = figures(folder)[f"disc_map_{body}.png"]
+    mine = table[(table["body"] == body) & (table["blade"] == 1)].sort_values(["azimuth_deg", "r_over_R"])
+    n = mine["r_over_R"].nunique()
+    meshes = [c for ax in fig.axes if ax.name == "polar" for c in ax.collections]
+    assert len(meshes) == 2
+    for mesh, col in zip(meshes, ("normal_force_N_per_m", "inflow_ratio")):
+        drawn = np.asarray(mesh.get_array()).reshape(n, -1)               # (radius, azimuth)
+        np.testing.assert_allclose(drawn, mine[col].to_numpy().reshape(-1, n).T, rtol=1e-12)
+        corners = mesh.get_coordinates()                                  # (n + 1, m + 1, 2): theta, r
+        theta = 0.5 * (corners[0, 1:, 0] + corners[0, :-1, 0])
+        off = (np.degrees(theta) - mine["azimuth_deg"].to_numpy()[::n] + 180.0) % 360.0 - 180.0
+        np.testing.assert_allclose(off, 0.0, atol=1e-9)
+        r = mine["r_over_R"].to_numpy()[:n]                               # radial cells: half way between
+        edges = corners[:, 0, 1]
+        np.testing.assert_allclose(edges[1:-1], 0.5 * (r[1:] + r[:-1]), rtol=1e-12)
+        assert np.all((edges[:-1] < r) & (r < edges[1:]))
+    labels = [ax.get_ylabel() for ax in fig.axes if ax.name != "polar"]
+    assert labels == ["normal force per unit radius dT/dr [N/m]",
+                      "inflow ratio λ [-] (flow through the disc / ΩR)"]
+    assert body in fig.get_suptitle()
+
+
+@pytest.mark.parametrize("name, body", [("mixed", "propeller"), ("hover", "lift")])
+def test_disc_map_holds_the_last_revolution_of_every_blade(runs, name, body):
+    """disc_map.csv holds the samples radial_loading.csv averages: their means over the azimuths
+    and blades agree, and blade 1 passes every sampled azimuth once."""
+    folder, run = runs[name]
+    table = pd.read_csv(folder.path / "disc_map.csv")
+    mine = table[table["body"] == body]
+    radial = pd.read_csv(folder.path / "radial_loading.csv")
+    radial = radial[radial["body"] == body]
+    means = mine.groupby("r_m", sort=True)[["normal_force_N_per_m", "alpha_deg"]].mean()
+    np.testing.assert_allclose(means["normal_force_N_per_m"], radial["dT_dr_N_per_m"], rtol=1e-8)
+    np.testing.assert_allclose(means["alpha_deg"], radial["alpha_deg"], rtol=1e-8, atol=1e-9)
+    steps = folder.summary["bodies"][body]["averaged_steps"]
+    blade1 = mine[mine["blade"] == 1]
+    assert blade1["azimuth_deg"].nunique() == steps == len(blade1) // blade1["r_m"].nunique()
+    assert set(mine["blade"]) == set(range(1, run.case.body(body).blades + 1))
+
+
 def test_pitch_at_three_quarter_radius_in_the_summary(runs):
     folder, _ = runs["mixed"]
     s = json.loads((folder.path / "summary.json").read_text())["bodies"]["propeller"]
@@ -232,7 +288,7 @@ def test_plot_run_writes_one_file_per_figure(runs, tmp_path):
     folder, _ = runs["mixed"]
     paths = plot_run(folder.path, out=tmp_path / "figs")
     assert [p.name for p in paths] == ["loads.png", "span_loading.png", "radial_loading.png",
-                                       "wake_3d.png", "tip_vortex.png"]
+                                       "wake_3d.png", "tip_vortex.png", "disc_map_propeller.png"]
     assert all(p.stat().st_size > 10000 for p in paths)
 
 
@@ -270,3 +326,33 @@ def test_sweep_figure_names_the_body_of_a_prefixed_coefficient():
 ])
 def test_key_label_takes_words_and_unit_from_the_schema(key, label):
     assert key_label(key) == label
+
+
+def _row(table, quantity, column):
+    """The three levels' ``column`` of ``quantity`` as floats (old pandas gives objects)."""
+    return table.loc[quantity, [f"{column}_{k}" for k in (1, 2, 3)]].to_numpy(dtype=float)
+
+
+def test_uncertainty_figure_draws_uncertainty_csv(tmp_path):
+    """A table of the shape wakes.refinement writes (synthetic values, ours): C_T converges at
+    second order, FM oscillates. The drawn levels, extrapolation and band equal the CSV read back."""
+    h = [1.0, 1.5, 2.25]
+    summaries = [{"bodies": {"lift": {"CT": 0.0046 + 1e-4 * hk ** 2, "FM": 0.6 + 0.01 * (-1) ** k}}}
+                 for k, hk in enumerate(h)]
+    est = estimate_loads(summaries, h)
+    values = {"lift": {k: [s["bodies"]["lift"][k] for s in summaries] for k in ("CT", "FM")}}
+    uncertainty_table(est, values, h).to_csv(tmp_path / "uncertainty.csv", index=False, float_format="%.10g")
+    table = pd.read_csv(tmp_path / "uncertainty.csv").set_index("quantity")
+    fig = uncertainty_figure(table.reset_index())
+    ct, fm = fig.axes
+    assert ct.get_ylabel() == "lift: " + QUANTITY_LABELS["CT"]
+    assert fm.get_ylabel() == "lift: " + QUANTITY_LABELS["FM"]
+    lines = {line.get_label(): line for line in ct.get_lines()}
+    np.testing.assert_allclose(lines["levels"].get_xdata(), _row(table, "CT", "spacing"))
+    np.testing.assert_allclose(lines["levels"].get_ydata(), _row(table, "CT", "level"))
+    np.testing.assert_allclose(lines["extrapolated"].get_ydata(), [table.loc["CT", "extrapolated"]])
+    assert lines["extrapolated"].get_ydata()[0] == pytest.approx(0.0046, rel=1e-9)
+    u, v = table.loc["CT", "uncertainty"], table.loc["CT", "value"]
+    np.testing.assert_allclose(lines["band"].get_ydata(), [v - u, v + u])
+    assert [line.get_label() for line in fm.get_lines()] == ["levels"]   # no band, no extrapolation
+    np.testing.assert_allclose(fm.get_lines()[0].get_ydata(), _row(table, "FM", "level"))

@@ -17,6 +17,7 @@ from .case import Case, load_case, parse_case
 from .cluster import induce
 from .errors import CaseError, InputError, NumericalError, WakesError
 from .induction.elements import Filaments, Particles
+from .refinement import refinement_study
 from .run import run_case
 from .simulate import Run
 from .sweep import sweep
@@ -27,5 +28,5 @@ __all__ = [
     "CaseError", "Filaments", "InputError", "NumericalError", "Particles",
     "WakesError", "exact", "induce", "__version__",
     "ParticleFlow", "lamb_oseen_ring", "vortex_ring",
-    "Case", "Run", "load_case", "parse_case", "run_case", "sweep",
+    "Case", "Run", "load_case", "parse_case", "refinement_study", "run_case", "sweep",
 ]

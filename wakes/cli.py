@@ -57,6 +57,20 @@ from .io.runfolder import record_files
 from .plots import plot_run
 from .probe import parse_extent, parse_plane, probe_plane, probe_points
 from .progress import ProgressBar
+from .refinement import (
+    DEFAULT_RATIO,
+    LEVELS_FOLDER,
+    MAX_RATIO,
+    MIN_RATIO,
+    LevelFailed,
+    level_lines,
+    prepare,
+    ratio_words,
+    refinement_study,
+    result_lines,
+    sweep_bands,
+    sweep_study,
+)
 from .run import case_inputs, check_new_folder, clear_run, result_table, run_guarded, warning_lines, write_run
 from .sweep import SweepStopped, failure_lines, parse_vary, sweep
 from .templates import new_case
@@ -106,6 +120,12 @@ def _parser() -> argparse.ArgumentParser:
                           "and the run folder's known names; other files stay) before this run starts")
     run.add_argument("--no-plots", action="store_true",
                      help="write no figures (draw them later with 'wakes plot DIR')")
+    _study_options(run)
+    run.add_argument("--scheduler", metavar="ADDRESS",
+                     help="with --uncertainty: run the levels on the Dask scheduler at ADDRESS "
+                          "(default: a local cluster)")
+    run.add_argument("--workers", type=int, metavar="N",
+                     help="with --uncertainty: worker processes of the local cluster (default: one per core)")
 
     check = sub.add_parser("check", help="validate a case and estimate its cost, without running",
                            description="Check CASE, print the resolved case and estimate the "
@@ -113,6 +133,7 @@ def _parser() -> argparse.ArgumentParser:
     check.add_argument("case", metavar="CASE", help="case file (TOML)")
     check.add_argument("--set", action="append", default=[], metavar="KEY=VALUE", help=SET_HELP)
     check.add_argument("--quiet", action="store_true", help="print only the estimate")
+    _study_options(check)
 
     new = sub.add_parser("new", help="write a commented template case that runs as written",
                          description="Write a commented case file for a wing, lift rotor, "
@@ -172,11 +193,68 @@ def _parser() -> argparse.ArgumentParser:
                        help="worker processes of the local cluster (default: one per core)")
     sweep.add_argument("--out", default="sweep", metavar="DIR", help="sweep folder (default: sweep)")
     sweep.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    _study_options(sweep, "every point: ")
     return parser
+
+
+def _study_options(parser, what: str = "") -> None:
+    parser.add_argument("--uncertainty", action="store_true",
+                        help=what + "also run the case at two coarser levels (strips and time step coarsened "
+                             "together) on Dask workers and give every load with its Richardson-"
+                             "extrapolated value, observed order and GCI band (levels in DIR/levels/)")
+    parser.add_argument("--uncertainty-ratio", type=float, default=DEFAULT_RATIO, metavar="R",
+                        help=f"with --uncertainty: refinement ratio between levels, {MIN_RATIO:g} to "
+                             f"{MAX_RATIO:g} (default: sqrt 2 = {DEFAULT_RATIO:.4g})")
+
+
+def _check_cluster_options(args) -> None:
+    if args.workers is not None and not 1 <= args.workers <= MAX_WORKERS:
+        raise WakesError(f"--workers must be from 1 to {MAX_WORKERS}; got {args.workers}")
+    m = SCHEDULER_ADDRESS.fullmatch(args.scheduler or "")
+    if args.scheduler is not None and not (m and 1 <= int(m.group(1)) <= 65535):
+        raise WakesError(f"--scheduler must be an address tcp://HOST:PORT or tls://HOST:PORT such as "
+                         f"tcp://10.0.0.5:8786, port 1 to 65535; got {args.scheduler!r}")
+
+
+def _study(args, max_memory) -> int:
+    """``wakes run --uncertainty``: the refinement study (:mod:`wakes.refinement`)."""
+    if args.resume is not None or args.dt is not None:
+        raise WakesError("--uncertainty runs a new study; give CASE and --out DIR, not --resume or --dt")
+    _check_cluster_options(args)
+    out = writable_path("--out", args.out, folder=True)
+    try:
+        study = refinement_study(args.case, out, settings=args.set, ratio=args.uncertainty_ratio,
+                                 scheduler=args.scheduler, workers=args.workers, overwrite=args.overwrite,
+                                 plots=not args.no_plots, max_memory=max_memory,
+                                 progress=not args.quiet and sys.stderr.isatty())
+    except SweepStopped as stop:
+        done = int(stop.table["status"].isin(["ran", "reused"]).sum())
+        print(f"wakes: refinement study stopped by Ctrl-C: {done} of {len(stop.table)} levels finished, "
+              f"kept in {out / LEVELS_FOLDER}/; run the same command with --overwrite to go on "
+              "(finished levels are reused)", file=sys.stderr)
+        return 130
+    except LevelFailed as exc:
+        print(f"wakes: {exc}", file=sys.stderr)
+        return 1
+    if not args.quiet:
+        print(f"{study.levels[0].case.title}: refinement study, {len(study.levels)} levels, ratios "
+              f"{ratio_words(study.levels)} (GCI band: safety factor 1.25, Roache 1998)")
+        print("\n".join(level_lines(study.levels)))
+        print("\n".join(result_lines(study.table)))
+        print(f"results in {out}/ (the levels' run folders in {out / LEVELS_FOLDER}/)")
+    lines = warning_lines(study.summary)
+    if lines and not args.quiet:
+        print("\n".join(lines))
+    return 0
 
 
 def _run(args) -> int:
     max_memory = parse_size(args.max_memory) if args.max_memory is not None else None
+    if args.uncertainty:
+        return _study(args, max_memory)
+    if args.scheduler is not None or args.workers is not None:
+        raise WakesError("--scheduler and --workers apply with --uncertainty only (the case's [cluster] "
+                         "table shares one run's wake with workers)")
     if args.resume is not None:
         if args.case is not None or args.out is not None or args.set:
             raise WakesError(f"--resume {args.resume} goes on in that folder with its own case; "
@@ -240,6 +318,11 @@ def _check(args) -> int:
     print(f"{case.title or args.case}: case is valid; estimate (no run):")
     for quantity, value in est.table():
         print(f"  {quantity.ljust(width)}  {value}")
+    if args.uncertainty:
+        levels, estimates = prepare(args.case, settings=args.set, ratio=args.uncertainty_ratio)
+        print(f"refinement study: {len(levels)} levels, ratios {ratio_words(levels)}; each fits the "
+              "memory budget with the levels running at once on this machine:")
+        print("\n".join(level_lines(levels, estimates)))
     return 0
 
 
@@ -339,23 +422,21 @@ def _verify(args) -> int:
 
 def _sweep(args) -> int:
     vary = dict(parse_vary(v) for v in args.vary)
-    if args.workers is not None and not 1 <= args.workers <= MAX_WORKERS:
-        raise WakesError(f"--workers must be from 1 to {MAX_WORKERS}; got {args.workers}")
-    m = SCHEDULER_ADDRESS.fullmatch(args.scheduler or "")
-    if args.scheduler is not None and not (m and 1 <= int(m.group(1)) <= 65535):
-        raise WakesError(f"--scheduler must be an address tcp://HOST:PORT or tls://HOST:PORT such as "
-                         f"tcp://10.0.0.5:8786, port 1 to 65535; got {args.scheduler!r}")
+    _check_cluster_options(args)
     writable_path("--out", args.out, folder=True)
+    run = sweep_study if args.uncertainty else sweep
+    extra = {"ratio": args.uncertainty_ratio} if args.uncertainty else {}
     try:
-        table = sweep(args.case, vary, out=args.out, settings=args.set, zipped=args.zip,
-                      scheduler=args.scheduler, workers=args.workers,
-                      progress=not args.quiet and sys.stderr.isatty())
+        table = run(args.case, vary, out=args.out, settings=args.set, zipped=args.zip,
+                    scheduler=args.scheduler, workers=args.workers,
+                    progress=not args.quiet and sys.stderr.isatty(), **extra)
     except SweepStopped as stop:
         print(f"wakes: {stop.message}", file=sys.stderr)
         return 130
     if not args.quiet:
-        with_cols = [c for c in table.columns if c not in ("folder", "error")]
-        print(table[with_cols].to_string(index=False))
+        shown = sweep_bands(table, list(vary)) if args.uncertainty else table[
+            [c for c in table.columns if c not in ("folder", "error")]]
+        print(shown.to_string(index=False))
         print(f"results in {args.out}/sweep.csv")
     failed = failure_lines(table)
     if failed:

@@ -19,6 +19,11 @@ Each figure draws one table of the run folder and nothing else:
   a 3-D view of the final wake coloured by strength;
 * ``tip_vortex.png`` (rotors) from ``tip_vortex.csv``: the tip vortex's
   distance from the axis and along it against wake age.
+* ``disc_map_NAME.png`` (one per rotor) from ``disc_map.csv``: the normal
+  force per unit radius and the inflow ratio of blade 1 over the last
+  revolution, on the disc, psi = 0 (downstream) at the bottom and psi
+  growing counter-clockwise (the disc seen from the +axis side of a ``ccw``
+  rotor; a ``cw`` rotor's disc is drawn mirrored).
 
 :func:`sweep_figure` draws a sweep's ``sweep.png`` from its table, with
 axis labels from the case schema (:func:`key_label`). Every figure has
@@ -80,6 +85,8 @@ LOAD_PANELS = {
 FALLBACK_PANELS = ("lift_N", "thrust_N", "power_W", "torque_Nm")
 #: Coefficients a sweep figure draws against the first varied key, in this order, at most four.
 SWEEP_PANELS = ("CT", "CP", "FM", "efficiency", "CL", "CD", "CDi", "span_efficiency")
+#: Loads an uncertainty figure draws against refinement, in this order, at most four.
+UNCERTAINTY_PANELS = ("CT", "CP", "FM", "efficiency", "CL", "CDi", "CD", "CM")
 
 
 def _look():
@@ -277,10 +284,78 @@ def tip_vortex_figure(run):
     return fig
 
 
+def _wedge_edges(centres: np.ndarray) -> np.ndarray:
+    """Edges (n + 1,) of cells around sorted azimuths ``centres`` (n,) [rad], half way to each
+    neighbour, the last neighbour of the first being the last one a turn earlier."""
+    gaps = np.diff(np.append(centres, centres[0] + 2.0 * np.pi))
+    return np.concatenate([[centres[0] - 0.5 * gaps[-1]], centres + 0.5 * gaps])
+
+
+def _radial_edges(centres: np.ndarray) -> np.ndarray:
+    """Edges (n + 1,) of cells around sorted radii ``centres`` (n,), half way to each neighbour."""
+    mids = 0.5 * (centres[1:] + centres[:-1])
+    return np.concatenate([[max(0.0, 2.0 * centres[0] - mids[0])], mids, [2.0 * centres[-1] - mids[-1]]])
+
+
+#: The quantities of a disc map and their colour-bar labels.
+DISC_MAP_PANELS = (("normal_force_N_per_m", "normal force per unit radius dT/dr [N/m]"),
+                   ("inflow_ratio", "inflow ratio λ [-] (flow through the disc / ΩR)"))
+
+
+def disc_map_grid(table, body: str) -> tuple[np.ndarray, np.ndarray, dict]:
+    """Blade 1's rows of rotor ``body`` in ``disc_map.csv`` as a grid.
+
+    Returns
+    -------
+    psi_deg : ndarray, shape (m,)
+        The sampled azimuths, ascending [deg].
+    r_over_R : ndarray, shape (n,)
+        The section radii, ascending.
+    values : dict of ndarray, each shape (m, n)
+        The :data:`DISC_MAP_PANELS` quantities at each azimuth and radius.
+    """
+    part = table[(table["body"] == body) & (table["blade"] == 1)]
+    part = part.sort_values(["azimuth_deg", "r_over_R"], kind="stable")
+    n = part["r_over_R"].nunique()
+    m = len(part) // n
+    psi = part["azimuth_deg"].to_numpy().reshape(m, n)[:, 0]
+    r = part["r_over_R"].to_numpy().reshape(m, n)[0]
+    return psi, r, {col: part[col].to_numpy().reshape(m, n) for col, _ in DISC_MAP_PANELS}
+
+
+def disc_map_figure(run, body: str):
+    """The disc map of rotor ``body`` (``disc_map.csv``): blade 1's normal force per unit radius
+    and inflow ratio over its last revolution, one cell per sampled azimuth and section; None if
+    the run has no disc map of it."""
+    t = run.disc_map
+    if not len(t) or body not in set(t["body"]):
+        return None
+    psi, r, values = disc_map_grid(t, body)
+    theta, radius = _wedge_edges(np.radians(psi)), _radial_edges(r)
+    fig = _figure(figsize=(9.0, 4.6), layout="constrained")
+    for i, (col, label) in enumerate(DISC_MAP_PANELS):
+        ax = fig.add_subplot(1, 2, i + 1, projection="polar")
+        ax.set_theta_zero_location("S")
+        ax.set_theta_direction(1)
+        mesh = ax.pcolormesh(theta, radius, values[col].T, cmap=WAKE_CMAP, shading="flat")
+        ax.set_ylim(0.0, max(1.0, float(radius[-1])))
+        ax.set_rlabel_position(100.0)
+        ax.tick_params(labelsize=7.5)
+        ax.grid(True, color="#ffffff", linewidth=0.5, alpha=0.6)
+        fig.colorbar(mesh, ax=ax, shrink=0.8, pad=0.1, label=label)
+    fig.suptitle(f"{run.title}: disc map of {body}, blade 1 over the last revolution", x=0.02,
+                 horizontalalignment="left", fontweight="bold", fontsize=LOOK["axes.titlesize"])
+    fig.supxlabel("azimuth ψ from downstream (0°, bottom) in the sense of rotation; radius r/R",
+                  fontsize=LOOK["font.size"])
+    return fig
+
+
 #: The figures of a run: file name -> builder (a function of a RunFolder returning a Figure or None).
 FIGURES = {"loads.png": loads_figure, "span_loading.png": span_loading_figure,
            "radial_loading.png": radial_loading_figure, "wake_3d.png": wake_figure,
            "tip_vortex.png": tip_vortex_figure}
+#: Figures drawn once per body: file name pattern -> builder of (RunFolder, body name).
+BODY_FIGURES = {"disc_map_{body}.png": disc_map_figure}
 
 
 def figures(run) -> dict:
@@ -295,7 +370,8 @@ def figures(run) -> dict:
     -------
     dict
         File name (e.g. ``"loads.png"``) -> :class:`matplotlib.figure.Figure`,
-        for the figures the run has data for, in :data:`FIGURES` order.
+        for the figures the run has data for, in :data:`FIGURES` order, then
+        those of :data:`BODY_FIGURES` in the case's body order.
 
     Examples
     --------
@@ -313,6 +389,11 @@ def figures(run) -> dict:
             fig = build(run)
             if fig is not None:
                 out[name] = fig
+        for pattern, build in BODY_FIGURES.items():
+            for body in _bodies(run):
+                fig = build(run, body)
+                if fig is not None:
+                    out[pattern.format(body=body)] = fig
     return out
 
 
@@ -445,4 +526,52 @@ def sweep_figure(table, key: str, case: dict | None = None):
             ax.set_ylabel((f"{body}: " if body else "") + QUANTITY_LABELS.get(base, base))
         axes[-1].set_xlabel(key_label(key, case))
         axes[0].set_title(f"sweep over {key_label(key, case)}")
+    return fig
+
+
+def uncertainty_figure(table):
+    """Each main load of a refinement study against the levels' spacing, with its extrapolation.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The study's table (``uncertainty.csv``, :func:`wakes.refinement.uncertainty_table`):
+        one row per body and load with ``value``, ``extrapolated``,
+        ``uncertainty``, ``convergence``, and ``spacing_K``, ``level_K`` for
+        each level K (1 the finest, its spacing 1).
+
+    Returns
+    -------
+    matplotlib.figure.Figure or None
+        One panel per load of :data:`UNCERTAINTY_PANELS` present, at most
+        four (None when none is): the levels' values against their spacing
+        h / h_finest (line ``"levels"``); when the band is trusted, the
+        Richardson-extrapolated value at h = 0 (``"extrapolated"``) and the
+        band on the finest value (``"band"``, a vertical line at h = 1).
+    """
+    rows = [r for base in UNCERTAINTY_PANELS for _, r in table.iterrows() if r["quantity"] == base][:4]
+    if not rows:
+        return None
+    n = sum(1 for c in table.columns if c.startswith("level_"))
+    with _look():
+        fig = _figure(figsize=(6.5, 2.3 * len(rows) + 0.6), layout="constrained")
+        axes = fig.subplots(len(rows), 1, sharex=True, squeeze=False)[:, 0]
+        for ax, r in zip(axes, rows):
+            h = [float(r[f"spacing_{k}"]) for k in range(1, n + 1)]
+            v = [float(r[f"level_{k}"]) for k in range(1, n + 1)]
+            ax.plot(h, v, "o-", label="levels")
+            if r["convergence"] == "monotonic" and np.isfinite(r["uncertainty"]):
+                ax.plot([0.0], [float(r["extrapolated"])], marker="*", markersize=10, linestyle="none",
+                        label="extrapolated")
+                u = float(r["uncertainty"])
+                ax.plot([1.0, 1.0], [float(r["value"]) - u, float(r["value"]) + u], linewidth=4, alpha=0.5,
+                        label="band")
+            else:
+                why = "order out of range" if r["convergence"] == "monotonic" else r["convergence"]
+                ax.text(0.02, 0.9, f"no band: {why}", transform=ax.transAxes, va="top")
+            ax.set_ylabel(f"{r['body']}: " + QUANTITY_LABELS.get(r["quantity"], r["quantity"]))
+            ax.set_xlim(left=-0.05 * max(h))
+            ax.legend(loc="best")
+        axes[-1].set_xlabel("spacing of the level / spacing of the finest level [-]")
+        axes[0].set_title("loads against refinement, Richardson-extrapolated to zero spacing")
     return fig

@@ -17,8 +17,10 @@ A run folder holds (see the README for the columns)::
                          status, reason, last step and resume, and plausibility warnings
     loads.csv            one row per step and body
     sections.csv         span or radial distributions at the last step
-    radial_loading.csv, tip_vortex.csv    rotors: radial loading averaged over the last
-                         revolution and the blades; the tip vortex's path
+    radial_loading.csv, tip_vortex.csv, disc_map.csv, blade_harmonics.csv    rotors: radial
+                         loading averaged over the last revolution and the blades; the tip
+                         vortex's path; every blade's sections at every step of that
+                         revolution; harmonics of blade 1's loads over it
     loads.parquet, sections.parquet    the same tables, when pyarrow is installed
     wake_segments.csv, wake_particles.csv   the final wake as tables
     wake/filaments_NNNNNN.vtp, wake/particles_NNNNNN.vtp   VTK PolyData wake snapshots,

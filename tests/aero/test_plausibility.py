@@ -267,6 +267,16 @@ def test_tip_mach_adds_the_freestream_on_the_advancing_side(tmp_path):
     assert P.tip_mach(case.bodies[0], case) == pytest.approx((tip + 30.0) / P.ISA_SPEED_OF_SOUND)
 
 
+def test_advance_ratio_above_one_is_flagged_for_every_kind(tmp_path):
+    tip = 2.0 * math.pi * 600.0 / 60.0                       # the 1 m rotor at 600 rpm
+    fast = _rotor_case(tmp_path, speed=1.1 * tip)
+    flags = P.check_advance_ratio(fast)
+    assert _codes(flags) == ["advance-ratio-high"] and flags[0].value == pytest.approx(1.1)
+    assert P.check_advance_ratio(_rotor_case(tmp_path, speed=0.9 * tip)) == []
+    # a propeller's flight speed runs along its axis: no advance ratio mu, however fast
+    assert P.check_advance_ratio(_rotor_case(tmp_path, "propeller", speed=1.5 * tip, name="p")) == []
+
+
 def test_blade_loading_above_bound_is_flagged_for_lift_rotors(tmp_path):
     case = _rotor_case(tmp_path)
     flags = P.check_blade_loading({"bodies": {"rotor": {"CT": 0.010, "solidity": 0.06}}}, case)

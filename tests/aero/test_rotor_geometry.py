@@ -120,3 +120,50 @@ def test_strip_radii_follow_the_node_order():
     r2, dr2 = cw.strip_radii()
     assert np.allclose(r2, r1[::-1]) and np.allclose(dr2, dr1[::-1])
     assert dr1.sum() == pytest.approx(0.8)
+
+
+def _section_pitch_deg(g: RotorGeometry, surface) -> np.ndarray:
+    """Angle of each section's chord line to the plane of rotation [deg], read from the surface."""
+    a = g.frame()[0]
+    return np.degrees(np.arcsin(-(surface.chord_dir @ a)))
+
+
+@pytest.mark.parametrize("spin", [1, -1])
+def test_cyclic_pitch_follows_the_first_harmonic_law_from_downstream_in_the_sense_of_rotation(spin):
+    # theta = theta_0 + twist + theta_1c cos psi + theta_1s sin psi (Johnson 1980, Helicopter Theory,
+    # ch. 5), psi from the downstream direction (here the freestream along +y) in the sense of rotation
+    g = rotor(spin=spin, cyclic_cos=2.0, cyclic_sin=-3.0, downstream=(0.0, 5.0, 0.4), panels=6)
+    plain = rotor(spin=spin, panels=6)
+    eta = (g.strip_radii()[0] - g.root_cutout) / (g.radius - g.root_cutout)
+    for k, t in [(0, 0.0), (1, 0.013), (2, 0.031), (0, 0.077)]:
+        psi = g.blade_azimuth(k, t)
+        tip = blade(g, k, t).section_points[-1 if spin > 0 else 0]
+        # the blade's own position gives the same azimuth
+        assert g.azimuth_of(tip) == pytest.approx(psi, abs=1e-12)
+        measured = _section_pitch_deg(g, blade(g, k, t))
+        law = g.pitch(eta) + 2.0 * np.cos(psi) - 3.0 * np.sin(psi)
+        assert np.allclose(measured, law, atol=1e-10)
+        assert np.allclose(_section_pitch_deg(plain, blade(plain, k, t)), g.pitch(eta), atol=1e-10)
+    # psi = 0 where the blade points downstream (+y), psi = 90 deg a quarter turn later in the sense of rotation
+    period = g.period
+    t0 = next(t for t in np.linspace(0.0, period, 3601) if abs(g.blade_azimuth(0, t)) < 1e-3)
+    x_h, y_h, a = g.rotor_frame()
+    assert np.allclose(x_h, [0, 1, 0]) and np.allclose(y_h, [-1, 0, 0]) and np.allclose(a, [0, 0, 1])
+    assert g.blade_azimuth(0, t0 + period / 4) == pytest.approx(np.pi / 2, abs=2e-3)
+
+
+def test_azimuth_origin_without_a_freestream_across_the_axis_is_the_hub_frames_zero():
+    for downstream in (None, (0.0, 0.0, -3.0)):
+        g = rotor(downstream=downstream)
+        assert np.allclose(g.rotor_frame()[0], g.frame()[1])
+        assert g.blade_azimuth(0, 0.0) == pytest.approx(0.0)
+
+
+def test_zero_cyclic_leaves_every_blade_array_unchanged_to_the_last_bit():
+    # the azimuth origin (from the freestream) must not touch the sections when there is no cyclic pitch
+    g0 = rotor()
+    g1 = rotor(downstream=(7.0, -2.0, 1.0), cyclic_cos=0.0, cyclic_sin=0.0)
+    for k, t in [(0, 0.0), (2, 0.021)]:
+        a, b = blade(g0, k, t), blade(g1, k, t)
+        for name in ("corners", "section_points", "chord_dir", "section_normal", "collocation"):
+            assert np.array_equal(getattr(a, name), getattr(b, name)), name

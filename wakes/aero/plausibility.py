@@ -37,6 +37,14 @@ Bounds (codes in brackets):
   polar that has no Mach dependence (common practice: compressibility
   raises the lift slope by 1/sqrt(1 - M^2), the Prandtl--Glauert rule,
   40 % at M = 0.7, and drag diverges beyond about M = 0.7 on thick sections).
+* ``advance-ratio-high`` -- a rotor, propeller or turbine whose freestream
+  across the axis exceeds the tip speed, mu above 1: the reverse-flow
+  region, the circle of diameter mu R on the retreating side where the air
+  meets the blade from its trailing edge (Johnson 1980, *Helicopter
+  Theory*, ch. 5), then reaches past the tip, and the retreating blade
+  works mostly in reversed and stalled flow, where the sections rest on
+  the polar's extension to +-180 deg (common practice: conventional rotors
+  fly below mu of about 0.5).
 * ``blade-loading-high`` -- a lift rotor's C_T/sigma above 0.12 (common
   practice: the onset of blade stall; Leishman 2006, ch. 2).
 * ``loads-not-settled`` -- loads still changing: the mean thrust or power
@@ -64,6 +72,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from .rotor_loads import freestream_ratios
 from .sections import make_polar
 
 KAPPA_MIN = 1.0
@@ -90,6 +99,9 @@ STALL_SOURCE = ("common practice: sections without high-lift devices stall at c_
                 "(Abbott & von Doenhoff 1959, Theory of Wing Sections; from memory)")
 MACH_SOURCE = ("common practice: above tip Mach 0.7 compressibility (Prandtl-Glauert lift slope "
                "factor 1/sqrt(1 - M^2), drag divergence) changes the section loads")
+ADVANCE_RATIO_MAX = 1.0
+ADVANCE_SOURCE = ("common practice: above mu = 1 the reverse-flow circle, diameter mu R on the retreating "
+                  "side (Johnson 1980, Helicopter Theory, ch. 5), reaches past the tip")
 LOADING_SOURCE = "common practice: blade stall sets in near C_T/sigma = 0.12 (Leishman 2006, ch. 2)"
 SETTLE_SOURCE = "our criterion: loads change by at most 2 % from one window to the next"
 WAKE_SOURCE = ("our criterion: a wake cut at distance L lowers the inflow it induces by about "
@@ -502,6 +514,21 @@ def check_tip_mach(case, polars: Mapping, speed_of_sound: float = ISA_SPEED_OF_S
     return out
 
 
+def check_advance_ratio(case) -> list[Flag]:
+    """A rotor whose advance ratio mu (freestream across the axis over the tip speed) is above 1."""
+    out = []
+    for spec in _rotor_specs(case):
+        mu, _ = freestream_ratios(case.freestream.vector(), spec.axis, 2.0 * math.pi * spec.rpm / 60.0,
+                                  spec.radius)
+        if mu > ADVANCE_RATIO_MAX:
+            out.append(Flag("advance-ratio-high",
+                            f"{spec.name}: advance ratio mu = {mu:.3g}, the freestream across the axis "
+                            f"is faster than the blade tips; the retreating blade meets reversed flow "
+                            "beyond its tip (raise rpm or lower the speed across the disc)", mu,
+                            ADVANCE_RATIO_MAX, ADVANCE_SOURCE))
+    return out
+
+
 def check_blade_loading(summary: dict, case) -> list[Flag]:
     """A lift rotor's blade loading C_T/sigma above 0.12 (rotor C_T = T/(rho A (Omega R)^2))."""
     out = []
@@ -691,5 +718,5 @@ def check_run(summary: dict, loads: pd.DataFrame, sections: pd.DataFrame, case,
     return (check_induced_power(summary) + check_figure_of_merit(summary, case)
             + check_turbine_power(summary, case) + check_propeller_efficiency(summary, case)
             + check_sections(sections, polars, time_s) + check_tip_mach(case, polars, speed_of_sound)
-            + check_blade_loading(summary, case) + check_settled(loads, case)
+            + check_advance_ratio(case) + check_blade_loading(summary, case) + check_settled(loads, case)
             + check_wake_length(summary, case))

@@ -28,6 +28,25 @@ section lift pushes along +a.
 Distributions (chord, twist) are given along the blade as functions of
 eta = (r - r_0)/(R - r_0): 0 at the root cut-out, 1 at the tip.
 
+Cyclic pitch
+------------
+The collective varies with the blade's azimuth psi as
+
+    theta(r, psi) = collective + twist(r) + theta_1c cos psi + theta_1s sin psi,
+
+the first-harmonic pitch law of helicopter practice (Johnson 1980,
+*Helicopter Theory*, ch. 5). psi is measured in the direction of rotation
+from the downstream direction: psi = 0 where the blade points along the
+freestream's component in the disc plane (aft, towards the tail, in
+edgewise flight), psi = 90 deg on the advancing side. Without a freestream
+across the axis (hover, axial flight) psi = 0 is the hub frame's azimuth
+zero ``e0``. So theta_1c > 0 raises the pitch of the aft blade and lowers
+the front one, theta_1s > 0 raises the advancing blade and lowers the
+retreating one, for either sense of rotation. Each blade pitches about
+its quarter-chord line, where its section point (the lifting line) lies,
+so the pitch rate moves no section point; the lifting line's sections are
+quasi-steady in the pitch rate.
+
 Every blade becomes one :class:`wakes.aero.geometry.LiftingSurface` with a
 single chordwise panel (the nonlinear lifting line of
 :mod:`wakes.aero.lifting_line`); its spanwise nodes run root to tip for
@@ -142,6 +161,12 @@ class RotorGeometry:
         Strips per blade.
     spacing : str
         Station spacing (:func:`blade_stations`).
+    cyclic_cos, cyclic_sin : float
+        Cyclic pitch theta_1c and theta_1s [deg] (module notes).
+    downstream : tuple of float or None
+        The freestream [m/s] (any vector) whose part across the axis sets
+        the azimuth origin psi = 0; None or a freestream along the axis:
+        the hub frame's ``e0``.
     """
 
     blades: int
@@ -158,6 +183,9 @@ class RotorGeometry:
     azimuth0: float = 0.0
     panels: int = 16
     spacing: str = "cosine"
+    cyclic_cos: float = 0.0
+    cyclic_sin: float = 0.0
+    downstream: tuple | None = None
 
     @property
     def omega(self) -> float:
@@ -208,8 +236,59 @@ class RotorGeometry:
         return (np.radians(self.azimuth0) + 2.0 * np.pi * blade / self.blades
                 + self.spin * self.omega * time)
 
+    def rotor_frame(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Unit vectors (x_h, y_h, a) of the rotor frame in the global frame.
+
+        ``x_h`` is the azimuth origin psi = 0 (module notes: downstream in
+        edgewise flight), ``y_h = a x x_h`` and ``a`` the axis: a
+        right-handed frame whatever the sense of rotation, so psi = 90 deg
+        lies along +y_h for ``spin = +1`` and along -y_h for ``spin = -1``.
+        """
+        a, e0, _ = self.frame()
+        x_h = e0
+        if self.downstream is not None and not is_axial_flow(self.downstream, a):
+            v = np.asarray(self.downstream, dtype=np.float64)
+            x_h = v - (v @ a) * a
+            x_h = x_h / np.linalg.norm(x_h)
+        return x_h, np.cross(a, x_h), a
+
+    def blade_azimuth(self, blade: int, time: float) -> float:
+        """Azimuth psi of blade ``blade`` (0-based) at ``time`` [rad], from x_h in the sense of rotation."""
+        x_h = self.rotor_frame()[0]
+        _, e0, e90 = self.frame()
+        origin = np.arctan2(x_h @ e90, x_h @ e0)   # position angle of x_h
+        return float(np.mod(self.spin * (self.blade_angle(blade, time) - origin), 2.0 * np.pi))
+
+    def azimuth_of(self, direction) -> np.ndarray:
+        """Azimuth psi [rad] in [0, 2 pi) of blade directions ``direction`` (..., 3), global frame.
+
+        Only the part of each direction in the disc plane counts (a coned
+        blade's direction gives its azimuth).
+        """
+        x_h, y_h, _ = self.rotor_frame()
+        d = np.asarray(direction, dtype=np.float64)
+        return np.mod(np.arctan2(self.spin * (d @ y_h), d @ x_h), 2.0 * np.pi)
+
+    def cyclic_at(self, psi):
+        """theta_1c cos psi + theta_1s sin psi [deg] at azimuth ``psi`` [rad] (scalar or array).
+
+        Exactly 0.0 without cyclic pitch, so the section angles are those of
+        the collective and twist alone, to the last bit.
+        """
+        if self.cyclic_cos == 0.0 and self.cyclic_sin == 0.0:
+            return 0.0 * np.asarray(psi, dtype=np.float64)
+        return self.cyclic_cos * np.cos(psi) + self.cyclic_sin * np.sin(psi)
+
+    def cyclic_pitch(self, blade: int, time: float) -> float:
+        """The cyclic pitch [deg] of blade ``blade`` (0-based) at ``time`` [s] (:meth:`cyclic_at`)."""
+        return float(self.cyclic_at(self.blade_azimuth(blade, time)))
+
     def blade_surface(self, blade: int, time: float, polars, name: str) -> LiftingSurface:
-        """Blade ``blade`` (0-based) at ``time`` [s] as a lifting-line surface, global frame."""
+        """Blade ``blade`` (0-based) at ``time`` [s] as a lifting-line surface, global frame.
+
+        Its sections are pitched by collective, twist and the cyclic pitch
+        at the blade's azimuth at ``time``.
+        """
         a, e0, e90 = self.frame()
         psi = self.blade_angle(blade, time)
         e_r = np.cos(psi) * e0 + np.sin(psi) * e90
@@ -222,8 +301,10 @@ class RotorGeometry:
         eta_nodes = (r_nodes - self.root_cutout) / span
         eta_sec = (r_sec - self.root_cutout) / span
 
+        cyclic = self.cyclic_pitch(blade, time)
+
         def chord_dir(eta):
-            th = np.radians(self.collective + self.twist(eta))
+            th = np.radians(self.collective + self.twist(eta) + cyclic)
             return -np.cos(th)[:, None] * m - np.sin(th)[:, None] * a_p
 
         hub = np.asarray(self.hub, dtype=np.float64)
@@ -245,6 +326,6 @@ class RotorGeometry:
         return (r_sec[::-1], dr[::-1]) if self.spin < 0 else (r_sec, dr)
 
     def pitch(self, eta) -> np.ndarray:
-        """Section pitch collective + twist [deg] at eta."""
+        """Section pitch collective + twist [deg] at eta, without the cyclic pitch."""
         return self.collective + self.twist(np.asarray(eta, dtype=np.float64))
 

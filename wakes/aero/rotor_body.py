@@ -20,16 +20,23 @@ from .polars import SectionPolars
 from .rotor import blade_turn_deg, is_axial_flow
 from .rotor_loads import (
     FLOW_COLUMNS,
+    HUB_COLUMNS,
     KIND_COLUMNS,
     averaged_radial_table,
     blade_forces,
+    blade_harmonics_table,
     coefficients,
+    disc_map_table,
     freestream_ratios,
+    hub_coefficients,
+    hub_loads,
     inflow_ratio,
     last_revolution,
+    local_inflow,
     near_hover,
     power_split,
     radial_table,
+    shaft_angle_deg,
     shaft_torques,
     strip_distributions,
 )
@@ -58,12 +65,13 @@ class RotorBody:
         self.name = spec.name
         self.spec = spec
         self.kind = spec.kind
-        self.geometry = g = spec.geometry()
+        self.geometry = g = spec.geometry(case.freestream.vector())
         # Viterna-Corrigan post-stall drag from the blade aspect ratio R/c unless the case gives it
         self.polars = SectionPolars.uniform(make_polar(spec.airfoil, aspect_ratio=g.radius / g.mean_chord()),
                                             spec.panels, speed_of_sound=case.fluid.speed_of_sound)
         self.density = case.fluid.density
         self.axis = g.frame()[0]
+        self.frame = g.rotor_frame()
         self.hub = np.asarray(g.hub, dtype=np.float64)
         v_inf = case.freestream.vector()
         # propeller: flight speed along the axis; turbine: wind speed; rotor: unused
@@ -81,6 +89,8 @@ class RotorBody:
         self._tip_samples = collections.deque(maxlen=self.steps_per_revolution)
         # the section values of the last steps_per_revolution steps: the last full revolution's
         self._radial_samples = collections.deque(maxlen=self.steps_per_revolution)
+        self._azimuth_samples = collections.deque(maxlen=self.steps_per_revolution)
+        self._disc_samples = collections.deque(maxlen=self.steps_per_revolution)
         self._chord = g.chord((self.r - g.root_cutout) / (g.radius - g.root_cutout))
 
     def surfaces(self, time: float) -> list:
@@ -120,22 +130,46 @@ class RotorBody:
         self._wakes.append(wake)
         return wake
 
-    def loads_row(self, strips: list, trefftz_drag: float) -> dict:
-        """Thrust, torque, power and coefficients of the kind, power split, flow ratios, thrust per blade.
+    def blade_azimuths(self, strips: list) -> np.ndarray:
+        """Azimuth psi [rad] of each blade, from where its strips are (shape (B,)).
 
-        Keeps the section values of the last ``steps_per_revolution`` steps
-        and, over the last revolution, samples blade 1's tip-vortex path,
-        for :meth:`tables`.
+        psi is measured from the azimuth origin in the sense of rotation
+        (:meth:`wakes.aero.rotor.RotorGeometry.azimuth_of`).
         """
-        f = blade_forces(strips, self.hub, self.axis, self.geometry.spin)
-        self._radial_samples.append(strip_distributions(strips, dr=self.dr, hub=self.hub, axis=self.axis,
-                                                        spin=self.geometry.spin))
+        return self.geometry.azimuth_of(np.array([np.mean(s.points - self.hub, axis=0) for s in strips]))
+
+    def azimuths_deg(self, strips: list) -> np.ndarray:
+        """:meth:`blade_azimuths` in degrees for the tables, rounded to 1e-9 deg and in [0, 360)
+        (round-off would write a blade at psi = 0 as 360)."""
+        return np.mod(np.round(np.degrees(self.blade_azimuths(strips)), 9), 360.0)
+
+    def section_pitch(self, strips: list) -> np.ndarray:
+        """Pitch [deg] of every blade's sections, collective, twist and cyclic, shape (B, n)."""
+        cyclic = self.geometry.cyclic_at(self.blade_azimuths(strips))
+        return self.pitch_deg[None, :] + np.asarray(cyclic)[:, None]
+
+    def loads_row(self, strips: list, trefftz_drag: float) -> dict:
+        """Thrust, torque, power, coefficients of the kind, power split, flow ratios, hub loads, blade thrusts.
+
+        Keeps the section values and blade azimuths of the last
+        ``steps_per_revolution`` steps and, over the last revolution,
+        samples blade 1's tip-vortex path, for :meth:`tables`.
+        """
         g = self.geometry
+        f = blade_forces(strips, self.hub, self.axis, g.spin)
+        sections = strip_distributions(strips, dr=self.dr, hub=self.hub, axis=self.axis, spin=g.spin)
+        self._radial_samples.append(sections)
+        self._azimuth_samples.append(self.blade_azimuths(strips))
+        self._disc_samples.append({"azimuth_deg": self.azimuths_deg(strips), "dT_dr_N_per_m": sections["dT_dr_N_per_m"],
+                                   "alpha_deg": sections["alpha_deg"],
+                                   "inflow_ratio": local_inflow(self.kind, strips, self.axis, g.omega, g.radius)})
         row = self._totals(float(f["thrust"].sum()), float(f["torque_induced"].sum()),
                            float(f["torque_profile"].sum()))
         row["advance_ratio_mu"] = self.mu
         row["inflow_ratio_lambda"] = inflow_ratio(self.kind, strips, self.axis, self.r, self.dr, g.omega,
                                                   g.radius)
+        row.update(hub_coefficients(hub_loads(strips, self.hub, self.frame), omega=g.omega, radius=g.radius,
+                                    density=self.density))
         for k, t in enumerate(f["thrust"]):
             row[f"blade_{k + 1}_thrust_N"] = float(t)
         if self._wakes:
@@ -154,10 +188,15 @@ class RotorBody:
         return row
 
     def section_table(self, strips: list) -> pd.DataFrame:
-        """Radial distributions of every blade at the last step (:func:`radial_table`)."""
+        """Radial distributions of every blade at the last step (:func:`radial_table`).
+
+        Each blade's ``pitch_deg`` includes its cyclic pitch at that step and
+        ``azimuth_deg`` is its azimuth psi.
+        """
         g = self.geometry
         return radial_table(self.name, strips, radius=g.radius, r=self.r, dr=self.dr,
-                            pitch_deg=self.pitch_deg, hub=self.hub, axis=self.axis, spin=g.spin)
+                            pitch_deg=self.section_pitch(strips), hub=self.hub, axis=self.axis, spin=g.spin,
+                            azimuth_deg=self.azimuths_deg(strips))
 
     def tables(self) -> dict:
         """Extra result tables, those there are data for.
@@ -165,15 +204,24 @@ class RotorBody:
         ``radial_loading.csv``: the radial loading averaged over the last
         full revolution (the last ``steps_per_revolution`` steps, or the
         steps done since a resume if fewer) and over the blades
-        (:func:`averaged_radial_table`); ``tip_vortex.csv``: blade 1's
+        (:func:`averaged_radial_table`); ``disc_map.csv``: every blade's
+        sections at every step of that revolution, by azimuth
+        (:func:`disc_map_table`); ``blade_harmonics.csv``: the harmonics of
+        blade 1's thrust and flap moment over that revolution
+        (:func:`blade_harmonics_table`); ``tip_vortex.csv``: blade 1's
         tip-vortex path (:func:`tip_vortex_table`).
         """
         g = self.geometry
         out = {}
         if self._radial_samples:
+            # the pitch averaged as the loads are (the cyclic part averages to zero over a revolution)
+            cyclic = float(np.mean(g.cyclic_at(np.asarray(self._azimuth_samples))))
             out["radial_loading.csv"] = averaged_radial_table(
                 self.name, list(self._radial_samples), radius=g.radius, r=self.r, chord=self._chord,
-                pitch_deg=self.pitch_deg)
+                pitch_deg=self.pitch_deg + cyclic)
+            out["disc_map.csv"] = disc_map_table(self.name, list(self._disc_samples), radius=g.radius, r=self.r)
+            out["blade_harmonics.csv"] = blade_harmonics_table(self.name, list(self._disc_samples), r=self.r,
+                                                               dr=self.dr)
         if self._tip_samples:
             out["tip_vortex.csv"] = tip_vortex_table(self.name, list(self._tip_samples), hub=self.hub,
                                                      axis=self.axis, radius=g.radius, omega=g.omega)
@@ -188,7 +236,10 @@ class RotorBody:
         thrust of the last two revolutions (relative), a convergence
         indicator (NaN with fewer than two revolutions). The flow ratios
         mu and lambda are the last revolution's means
-        (:mod:`wakes.aero.rotor_loads`). Near hover
+        (:mod:`wakes.aero.rotor_loads`; ``shaft_angle_deg`` the angle of the
+        freestream to the disc), and so are the hub forces and
+        moments H, Y, M_x, M_y (in the rotor frame), with the coefficients
+        of the means. Near hover
         (:func:`wakes.aero.rotor_loads.near_hover`, the figure of merit's
         rule) a lift rotor also reports the induced-power factor
         kappa = P_induced / (T^(3/2)/sqrt(2 rho A)) of momentum theory.
@@ -207,6 +258,9 @@ class RotorBody:
         out = self._totals(thrust, *shaft_torques(self.kind, g.omega, p_ind, p_pro))
         out = {k: float(out[k]) for k in KIND_COLUMNS[self.kind] + _EXTRA_SUMMARY}
         out.update({k: float(last[k].mean()) for k in FLOW_COLUMNS})
+        out["shaft_angle_deg"] = shaft_angle_deg(self.mu, self.climb_ratio)
+        out.update(hub_coefficients({k: float(last[k].mean()) for k in HUB_COLUMNS[:4]}, omega=g.omega,
+                                    radius=g.radius, density=self.density))
         if len(mine) >= 2 * n:
             before = float(mine["thrust_N"].iloc[-2 * n:-n].mean())
             out["thrust_change_last_revolution"] = (thrust - before) / abs(before) if before else float("nan")

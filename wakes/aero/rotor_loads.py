@@ -37,6 +37,9 @@ freestream (the air's velocity relative to the hub) and a the axis:
 * advance ratio mu = |V - (V . a) a|/(Omega R), the freestream across the
   axis over the tip speed (edgewise flight; 0 in hover and axial flight; a
   propeller's J = V/(n D) is a different ratio, of the speed along the axis);
+* shaft angle alpha_s = atan2(V . a, |V - (V . a) a|), the angle of the
+  freestream to the disc plane, positive when the air crosses the disc
+  along +a (:func:`shaft_angle_deg`);
 * inflow ratio lambda = the mean flow through the blades' annulus over the
   tip speed, freestream and induced velocity together, in the direction the
   air crosses the disc in the kind's normal working (against the axis for a
@@ -44,6 +47,29 @@ freestream (the air's velocity relative to the hub) and a the axis:
   blades: each strip's section-plane air velocity along the axis, averaged
   over the blades with weights r dr (annulus area). In hover momentum
   theory gives lambda = sqrt(C_T/2) for a uniform inflow.
+
+Hub forces and moments, for every kind, in the rotor frame (x_h, y_h, a)
+of :meth:`wakes.aero.rotor.RotorGeometry.rotor_frame`: x_h the azimuth
+origin psi = 0 (downstream, the freestream's direction across the axis;
+without one the hub frame's azimuth zero), y_h = a x x_h, a right-handed
+frame whatever the sense of rotation (Johnson 1980, *Helicopter Theory*,
+ch. 5, takes the same axes for a counter-clockwise rotor):
+
+* H = sum F . x_h [N], the in-plane force downstream (rearward in
+  edgewise flight, opposite to the direction of flight);
+* Y = sum F . y_h [N], the side force (towards the advancing side psi =
+  90 deg of a ``spin = +1`` rotor);
+* roll moment M_x = sum ((x - h) x F) . x_h and pitch moment M_y = sum ((x -
+  h) x F) . y_h [N m] about the hub centre, with every strip's pressure
+  and profile force at its section point (and a vortex-lattice strip's own
+  moment). A positive M_y lifts the upstream edge of the disc (nose up in
+  edgewise flight), a positive M_x the +y_h edge;
+* coefficients C_H = H/(rho A (Omega R)^2), C_Y = Y/(rho A (Omega R)^2),
+  C_Mx = M_x/(rho A (Omega R)^2 R), C_My = M_y/(rho A (Omega R)^2 R), the
+  normalisation of C_T and C_Q for every kind.
+
+A clockwise rotor is the mirror image of a counter-clockwise one in the
+plane of x_h and a: H and M_y stay, Y and M_x change sign.
 
 Figure of merit is a hover quantity (Leishman 2006, ch. 2): it is reported
 only near hover, where the freestream is at most :data:`NEAR_HOVER_RATIO`
@@ -70,6 +96,9 @@ NEAR_HOVER_RATIO = 0.05
 
 #: Flow-ratio columns every rotor reports in loads.csv and summary.json (module notes).
 FLOW_COLUMNS = ("advance_ratio_mu", "inflow_ratio_lambda")
+
+#: Hub-force and hub-moment columns every rotor reports, dimensional then coefficients (module notes).
+HUB_COLUMNS = ("H_force_N", "Y_force_N", "roll_moment_Nm", "pitch_moment_Nm", "CH", "CY", "CMx", "CMy")
 
 KIND_COLUMNS = {
     "rotor": ("thrust_N", "torque_Nm", "power_W", "CT", "CQ", "CP", "FM"),
@@ -110,6 +139,66 @@ def blade_forces(strips, hub: np.ndarray, axis: np.ndarray, spin: int) -> dict:
         out["torque_induced"].append(-spin * float(np.sum(np.cross(arm, f_p) @ axis)))
         out["torque_profile"].append(-spin * float(np.sum(np.cross(arm, f_v) @ axis)))
     return {k: np.asarray(v) for k, v in out.items()}
+
+
+def hub_loads(strips, hub: np.ndarray, frame) -> dict:
+    """In-plane forces and hub moments of all blades together, in the rotor frame (module notes).
+
+    Parameters
+    ----------
+    strips : list of StripLoads
+        One per blade.
+    hub : ndarray, shape (3,)
+        Hub centre [m].
+    frame : tuple of ndarray, each shape (3,)
+        The rotor frame's unit vectors (x_h, y_h, a).
+
+    Returns
+    -------
+    dict of float
+        ``H_force_N``, ``Y_force_N`` [N], ``roll_moment_Nm``,
+        ``pitch_moment_Nm`` [N m].
+
+    Examples
+    --------
+    A force of 1 N along +a at 2 m on +x_h: no in-plane force, a moment of
+    -2 N m about y_h (the downstream edge pushed up: nose down).
+
+    >>> from types import SimpleNamespace
+    >>> s = SimpleNamespace(points=np.array([[2.0, 0.0, 0.0]]), force_pressure=np.array([[0.0, 0.0, 1.0]]),
+    ...                     force_profile=np.zeros((1, 3)), moment_pressure=None)
+    >>> {k: float(v) for k, v in hub_loads([s], np.zeros(3), np.eye(3)).items()}
+    {'H_force_N': 0.0, 'Y_force_N': 0.0, 'roll_moment_Nm': 0.0, 'pitch_moment_Nm': -2.0}
+    """
+    x_h, y_h, _ = (np.asarray(v, dtype=np.float64) for v in frame)
+    force = np.zeros(3)
+    moment = np.zeros(3)
+    for s in strips:
+        f = s.force_pressure + s.force_profile
+        force += f.sum(axis=0)
+        moment += np.cross(s.points - hub, f).sum(axis=0)
+        if s.moment_pressure is not None:
+            moment += s.moment_pressure.sum(axis=0)
+    return {"H_force_N": float(force @ x_h), "Y_force_N": float(force @ y_h),
+            "roll_moment_Nm": float(moment @ x_h), "pitch_moment_Nm": float(moment @ y_h)}
+
+
+def hub_coefficients(loads: dict, *, omega: float, radius: float, density: float) -> dict:
+    """``loads`` (:func:`hub_loads`) with C_H, C_Y, C_Mx and C_My added (module notes).
+
+    Examples
+    --------
+    >>> c = hub_coefficients({"H_force_N": 2.0, "Y_force_N": 0.0, "roll_moment_Nm": 0.0,
+    ...                       "pitch_moment_Nm": 4.0}, omega=1.0, radius=1.0, density=1.0 / np.pi)
+    >>> c["CH"], c["CMy"]
+    (2.0, 4.0)
+    """
+    force = density * np.pi * radius ** 2 * (omega * radius) ** 2
+    out = dict(loads)
+    out.update({"CH": loads["H_force_N"] / force, "CY": loads["Y_force_N"] / force,
+                "CMx": loads["roll_moment_Nm"] / (force * radius),
+                "CMy": loads["pitch_moment_Nm"] / (force * radius)})
+    return out
 
 
 def near_hover(mu: float, climb_ratio: float, ct: float) -> bool:
@@ -153,6 +242,24 @@ def freestream_ratios(v_inf, axis, omega: float, radius: float) -> tuple[float, 
     return float(np.linalg.norm(v - along * a)) / tip, -along / tip
 
 
+def shaft_angle_deg(mu: float, climb_ratio: float) -> float:
+    """Angle of the freestream to the disc plane [deg] (module notes), NaN without a freestream.
+
+    Positive when the air crosses the disc along +axis (a lift rotor's disc
+    tilted back against the flight, the sense of a helicopter's shaft angle
+    of attack, Johnson 1980, ch. 5); -90 deg in axial climb, +90 deg for a
+    turbine facing the wind.
+
+    Examples
+    --------
+    >>> shaft_angle_deg(0.3, 0.3), shaft_angle_deg(0.2, 0.0), shaft_angle_deg(0.0, 0.0)
+    (-45.0, 0.0, nan)
+    """
+    if mu == 0.0 and climb_ratio == 0.0:
+        return float("nan")
+    return float(np.degrees(np.arctan2(-climb_ratio, mu))) + 0.0   # + 0.0: no -0.0 in the tables
+
+
 def inflow_ratio(kind: str, strips, axis: np.ndarray, r: np.ndarray, dr: np.ndarray, omega: float,
                  radius: float) -> float:
     """Inflow ratio lambda measured at the blades (module notes).
@@ -180,6 +287,142 @@ def inflow_ratio(kind: str, strips, axis: np.ndarray, r: np.ndarray, dr: np.ndar
     w = r * dr
     along = np.mean([float(np.sum((s.flow @ axis) * w)) for s in strips]) / float(np.sum(w))
     return -POWER_SENSE[kind] * along / (omega * radius)
+
+
+def local_inflow(kind: str, strips, axis: np.ndarray, omega: float, radius: float) -> np.ndarray:
+    """Each strip's inflow ratio, the local values whose r dr mean is :func:`inflow_ratio`.
+
+    Parameters
+    ----------
+    kind : {"rotor", "propeller", "turbine"}
+        Sets the sense (module notes).
+    strips : list of StripLoads
+        One per blade (B of them, n strips each), with the section-plane air velocity ``flow``.
+    axis : ndarray, shape (3,)
+        Unit thrust axis.
+    omega, radius : float
+        Rotation rate [rad/s] and R [m].
+
+    Returns
+    -------
+    ndarray, shape (B, n)
+        Air velocity along the axis at each strip, times -1 for a rotor or
+        propeller, over Omega R, in the strips' order.
+    """
+    along = np.array([s.flow @ axis for s in strips], dtype=np.float64)
+    return -POWER_SENSE[kind] * along / (omega * radius)
+
+
+def disc_map_table(name: str, samples: list, *, radius: float, r: np.ndarray) -> pd.DataFrame:
+    """Sectional loads of every blade at every sampled azimuth: the map of the rotor disc.
+
+    Parameters
+    ----------
+    name : str
+        Body name.
+    samples : list of dict
+        One per step (those of the last full revolution), each with
+        ``azimuth_deg`` (B,), the blade azimuths psi, and ``dT_dr_N_per_m``,
+        ``inflow_ratio``, ``alpha_deg`` (B, n) in the strips' order.
+    radius : float
+        R [m].
+    r : ndarray, shape (n,)
+        Section radius [m], in the strips' order.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per sample, blade and strip, sorted by blade, azimuth and
+        radius: ``body``, ``blade`` (1-based), ``azimuth_deg`` (psi, 0 to
+        360), ``r_m``, ``r_over_R``, ``normal_force_N_per_m`` (the section
+        force along the axis per unit radius, dT/dr), ``inflow_ratio``
+        (:func:`local_inflow`) and ``alpha_deg`` (effective angle of attack).
+
+    Examples
+    --------
+    >>> one = {"azimuth_deg": np.array([90.0]), "dT_dr_N_per_m": np.array([[3.0, 5.0]]),
+    ...        "inflow_ratio": np.array([[0.05, 0.04]]), "alpha_deg": np.array([[6.0, 4.0]])}
+    >>> t = disc_map_table("rotor", [one], radius=1.0, r=np.array([0.8, 0.4]))
+    >>> t[["azimuth_deg", "r_over_R", "normal_force_N_per_m"]].values.tolist()
+    [[90.0, 0.4, 5.0], [90.0, 0.8, 3.0]]
+    """
+    frames = []
+    for sample in samples:
+        for k, psi in enumerate(sample["azimuth_deg"]):
+            frames.append(pd.DataFrame({
+                "body": name, "blade": k + 1, "azimuth_deg": float(psi), "r_m": r, "r_over_R": r / radius,
+                "normal_force_N_per_m": sample["dT_dr_N_per_m"][k], "inflow_ratio": sample["inflow_ratio"][k],
+                "alpha_deg": sample["alpha_deg"][k]}))
+    table = pd.concat(frames, ignore_index=True)
+    return table.sort_values(["blade", "azimuth_deg", "r_m"], kind="stable", ignore_index=True)
+
+
+#: Highest harmonic of the azimuth that :func:`blade_harmonics_table` reports.
+MAX_HARMONIC = 4
+#: A harmonic smaller than this fraction of the quantity's largest one has no phase (NaN).
+NO_PHASE = 1e-9
+
+
+def blade_harmonics_table(name: str, samples: list, *, r: np.ndarray, dr: np.ndarray,
+                          max_harmonic: int = MAX_HARMONIC) -> pd.DataFrame:
+    """Harmonics of blade 1's loads over the azimuth psi, from the samples of a revolution.
+
+    Each quantity q is fitted by least squares as q(psi) = q_0 + sum_n (q_nc
+    cos n psi + q_ns sin n psi), n = 1 .. ``max_harmonic`` (fewer when the
+    samples cannot resolve them: 2n + 1 samples at least).
+
+    Parameters
+    ----------
+    name : str
+        Body name.
+    samples : list of dict
+        As for :func:`disc_map_table` (``azimuth_deg`` (B,) and
+        ``dT_dr_N_per_m`` (B, n) are used).
+    r, dr : ndarray, shape (n,)
+        Section radius and strip width [m], in the strips' order.
+    max_harmonic : int
+        Highest harmonic n.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Rows for ``thrust_N`` (the blade's force along the axis) and
+        ``flap_moment_Nm`` (its moment about the hub, sum of r dT: the
+        out-of-plane root moment) and each harmonic: ``body``,
+        ``quantity``, ``harmonic``, ``cos``, ``sin`` (q_nc, q_ns; for n = 0
+        the mean and 0), ``amplitude`` and ``phase_deg``, with q_nc cos n
+        psi + q_ns sin n psi = amplitude cos(n psi - phase); the phase is
+        NaN where the amplitude is below :data:`NO_PHASE` times the largest
+        amplitude of the quantity (round-off has no phase to speak of).
+
+    Examples
+    --------
+    >>> psi = np.arange(0.0, 360.0, 30.0)
+    >>> samples = [{"azimuth_deg": np.array([p]), "dT_dr_N_per_m": np.array([[10.0 + 2.0 * np.sin(np.radians(p))]])}
+    ...            for p in psi]
+    >>> t = blade_harmonics_table("rotor", samples, r=np.array([0.5]), dr=np.array([1.0]), max_harmonic=2)
+    >>> t[t["quantity"] == "thrust_N"][["harmonic", "amplitude", "phase_deg"]].round(9).values.tolist()
+    [[0.0, 10.0, 0.0], [1.0, 2.0, 90.0], [2.0, 0.0, nan]]
+    """
+    psi = np.radians([float(s["azimuth_deg"][0]) for s in samples])
+    force = np.array([s["dT_dr_N_per_m"][0] for s in samples]) * dr          # (samples, n)
+    values = {"thrust_N": force.sum(axis=1), "flap_moment_Nm": force @ r}
+    top = min(max_harmonic, (len(samples) - 1) // 2)
+    basis = [np.ones_like(psi)]
+    for n in range(1, top + 1):
+        basis += [np.cos(n * psi), np.sin(n * psi)]
+    basis = np.column_stack(basis)
+    rows = []
+    for quantity, q in values.items():
+        coef = np.linalg.lstsq(basis, q, rcond=None)[0]
+        pairs = [(float(coef[0]), 0.0)] + [(float(coef[2 * n - 1]), float(coef[2 * n])) for n in range(1, top + 1)]
+        largest = max(float(np.hypot(c, s_)) for c, s_ in pairs)
+        for n, (c, s_) in enumerate(pairs):
+            amplitude = float(np.hypot(c, s_))
+            phase = float(np.degrees(np.arctan2(s_, c))) + 0.0 if amplitude > NO_PHASE * largest else float("nan")
+            rows.append({"body": name, "quantity": quantity, "harmonic": n, "cos": c, "sin": s_,
+                         "amplitude": amplitude, "phase_deg": phase})
+    return pd.DataFrame(rows)
 
 
 def power_split(kind: str, omega: float, torque_induced: float, torque_profile: float) -> dict:
@@ -301,7 +544,8 @@ def strip_distributions(strips, *, dr: np.ndarray, hub: np.ndarray, axis: np.nda
 
 
 def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndarray,
-                 pitch_deg: np.ndarray, hub: np.ndarray, axis: np.ndarray, spin: int) -> pd.DataFrame:
+                 pitch_deg: np.ndarray, hub: np.ndarray, axis: np.ndarray, spin: int,
+                 azimuth_deg: np.ndarray | None = None) -> pd.DataFrame:
     """Radial distributions of every blade: circulation, cl, angles, dT/dr and dQ/dr.
 
     Parameters
@@ -315,18 +559,21 @@ def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndar
     r, dr : ndarray, shape (n,)
         Blade coordinate of each strip's section and the strip width [m],
         in the strips' order.
-    pitch_deg : ndarray, shape (n,)
-        Section pitch (collective + twist) [deg], in the strips' order.
+    pitch_deg : ndarray, shape (n,) or (B, n)
+        Section pitch (collective + twist, and cyclic) [deg], in the
+        strips' order; one row for every blade or one per blade.
     hub, axis : ndarray, shape (3,)
         Hub centre [m] and unit thrust axis.
     spin : int
         +1 or -1.
+    azimuth_deg : ndarray, shape (B,), optional
+        Each blade's azimuth psi [deg], written as ``azimuth_deg``.
 
     Returns
     -------
     pandas.DataFrame
         One row per blade and strip: ``body``, ``blade`` (1-based),
-        ``strip``, ``r_m``, ``r_over_R``, ``chord_m``, ``gamma_m2_s``,
+        (``azimuth_deg``), ``strip``, ``r_m``, ``r_over_R``, ``chord_m``, ``gamma_m2_s``,
         ``cl``, ``cd``, ``pitch_deg``, ``alpha_deg`` (effective),
         ``inflow_angle_deg`` (pitch minus effective angle of attack: the
         angle of the local flow, induced velocity included, below the
@@ -334,13 +581,17 @@ def radial_table(name: str, strips, *, radius: float, r: np.ndarray, dr: np.ndar
         torque per unit radius).
     """
     d = strip_distributions(strips, dr=dr, hub=hub, axis=axis, spin=spin)
+    pitch = np.broadcast_to(np.asarray(pitch_deg, dtype=np.float64), (len(strips), r.shape[0]))
     frames = []
     for k, s in enumerate(strips):
+        where = {"body": name, "blade": k + 1}
+        if azimuth_deg is not None:
+            where["azimuth_deg"] = float(azimuth_deg[k])
         frames.append(pd.DataFrame({
-            "body": name, "blade": k + 1, "strip": np.arange(r.shape[0]), "r_m": r,
+            **where, "strip": np.arange(r.shape[0]), "r_m": r,
             "r_over_R": r / radius, "chord_m": s.chord, "gamma_m2_s": d["gamma_m2_s"][k], "cl": d["cl"][k],
-            "cd": d["cd"][k], "pitch_deg": pitch_deg, "alpha_deg": d["alpha_deg"][k],
-            "inflow_angle_deg": pitch_deg - d["alpha_deg"][k],
+            "cd": d["cd"][k], "pitch_deg": pitch[k], "alpha_deg": d["alpha_deg"][k],
+            "inflow_angle_deg": pitch[k] - d["alpha_deg"][k],
             "dT_dr_N_per_m": d["dT_dr_N_per_m"][k], "dQ_dr_N": d["dQ_dr_N"][k],
         }).sort_values("r_m"))
     return pd.concat(frames, ignore_index=True)

@@ -453,6 +453,16 @@ class WingSpec:
     def omitted(self) -> set:
         return set()
 
+    def discretization(self) -> dict:
+        """The counts of elements that resolve the wing, spanwise first: ``{key: count}``.
+
+        A vortex lattice adds its chordwise panels; a lifting line has one.
+        """
+        counts = {"spanwise_panels": self.spanwise_panels}
+        if self.model != "lifting-line":
+            counts["chordwise_panels"] = self.chordwise_panels
+        return counts
+
 
 MAX_AZIMUTH_STEP = 30.0     # largest blade turn per step accepted [deg]; 5-10 advised (common practice)
 MAX_CUTOUT = 0.9            # largest root cut-out / radius (our choice: a blade of a tenth of the radius)
@@ -494,6 +504,11 @@ class RotorSpec:
                          minimum=-30.0, maximum=30.0)
     azimuth: float = key(0.0, "position of blade 1 at the start, from global +x projected on the "
                          "disc (+z if the axis lies along x)", "deg", minimum=-360.0, maximum=360.0)
+    cyclic_cos: float = key(0.0, "cyclic pitch theta_1c: pitch added as theta_1c cos(psi), psi the "
+                            "blade azimuth from downstream in the sense of rotation (README)", "deg",
+                            minimum=-30.0, maximum=30.0)
+    cyclic_sin: float = key(0.0, "cyclic pitch theta_1s: pitch added as theta_1s sin(psi) (90 deg: "
+                            "the advancing blade)", "deg", minimum=-30.0, maximum=30.0)
     panels: int = key(16, "strips per blade", kind="int", minimum=2, maximum=200)
     spacing: str = key("cosine", "station spacing: cosine (root and tip), tip, uniform", kind="str",
                        choices=BLADE_SPACINGS)
@@ -520,13 +535,20 @@ class RotorSpec:
     airfoil: AirfoilSpec = key(AirfoilSpec(), "section polar", kind="table")
     name: str = field(default="rotor", metadata=dict(internal=True))
 
-    def geometry(self) -> RotorGeometry:
-        """The rotor's blades, hub and rotation."""
+    def geometry(self, freestream=None) -> RotorGeometry:
+        """The rotor's blades, hub and rotation; ``freestream`` [m/s] sets the azimuth origin.
+
+        Without it (or with a freestream along the axis) the azimuth origin
+        of the cyclic pitch is the hub frame's azimuth zero
+        (:mod:`wakes.aero.rotor`).
+        """
         return RotorGeometry(blades=self.blades, radius=self.radius, root_cutout=self.root_cutout,
                              chord=self.chord, twist=self.twist, collective=self.collective,
                              rpm=self.rpm, spin=1 if self.spin == "ccw" else -1, hub=self.hub,
                              axis=self.axis, precone=self.precone, azimuth0=self.azimuth,
-                             panels=self.panels, spacing=self.spacing)
+                             panels=self.panels, spacing=self.spacing, cyclic_cos=self.cyclic_cos,
+                             cyclic_sin=self.cyclic_sin,
+                             downstream=None if freestream is None else tuple(float(v) for v in freestream))
 
     def mean_chord(self) -> float:
         """Chord averaged along the blade [m]."""
@@ -596,6 +618,10 @@ class RotorSpec:
 
     def omitted(self) -> set:
         return set()
+
+    def discretization(self) -> dict:
+        """The counts of elements that resolve the blades: ``{"panels": strips per blade}``."""
+        return {"panels": self.panels}
 
 
 BODY_TYPES: dict[str, type] = {"wing": WingSpec, "rotor": RotorSpec}

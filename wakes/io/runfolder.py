@@ -30,13 +30,14 @@ MANIFEST = "manifest.txt"
 # The format's known names, for a folder whose manifest is missing (a run killed before writing
 # it, or one written by an earlier version): the run's tables and figures.
 RUN_FILES = RUN_MARKERS + ("sections.csv", "loads.parquet", "sections.parquet", "wake_segments.csv",
-                           "wake_particles.csv", "tip_vortex.csv", "radial_loading.csv", MANIFEST)
+                           "wake_particles.csv", "tip_vortex.csv", "radial_loading.csv", "disc_map.csv",
+                           "blade_harmonics.csv", MANIFEST)
 PLOT_FILES = ("loads.png", "span_loading.png", "radial_loading.png", "wake_3d.png", "tip_vortex.png")
 RUN_SUBFOLDERS = ("wake", "checkpoints", "plots", "polars")   # made by a run; removed when left empty
-# Known patterns: snapshots, checkpoints, the default outputs of 'wakes probe' (of the run's wake)
-# and the temporary file of a write killed half way (.NAME.RANDOM.part).
+# Known patterns: snapshots, checkpoints, rotors' disc-map figures, the default outputs of 'wakes
+# probe' (of the run's wake) and the temporary file of a write killed half way (.NAME.RANDOM.part).
 _OWNED = re.compile(rf"^(?:wake/(?:{'|'.join(SNAPSHOT_KINDS)})(?:_\d{{6,}}\.vtp|\.pvd)|checkpoints/step-\d{{7,}}\.npz"
-                    r"|probe_points\.csv|probe_plane_[xyz][^/]*\.(?:csv|vts)"
+                    r"|probe_points\.csv|probe_plane_[xyz][^/]*\.(?:csv|vts)|plots/disc_map_[A-Za-z0-9_-]+\.png"
                     r"|(?:(?:wake|checkpoints|plots|polars)/)?\.[^/]+\.part)$")
 
 
@@ -53,9 +54,9 @@ class RunFolder:
     loads, sections : pandas.DataFrame
     wake_segments, wake_particles : pandas.DataFrame
         The final wake tables (empty when the run wrote no wake).
-    radial_loading, tip_vortex : pandas.DataFrame
-        Rotors' revolution-averaged radial loading and tip-vortex path
-        (empty when the run has no rotor).
+    radial_loading, tip_vortex, disc_map : pandas.DataFrame
+        Rotors' revolution-averaged radial loading, tip-vortex path and
+        disc map (empty when the run has no rotor).
     """
 
     path: Path
@@ -67,6 +68,7 @@ class RunFolder:
     wake_particles: pd.DataFrame
     radial_loading: pd.DataFrame
     tip_vortex: pd.DataFrame
+    disc_map: pd.DataFrame
 
     @property
     def title(self) -> str:
@@ -147,7 +149,8 @@ def read_run(path: str | os.PathLike) -> RunFolder:
                          "not written by 'wakes run'")
     empty = pd.DataFrame()
     tables = {name: (_read_csv(path / f"{name}.csv") if (path / f"{name}.csv").is_file() else empty)
-              for name in ("sections", "wake_segments", "wake_particles", "radial_loading", "tip_vortex")}
+              for name in ("sections", "wake_segments", "wake_particles", "radial_loading", "tip_vortex",
+                           "disc_map")}
     return RunFolder(path=path, case=summary.get("case", {}), summary=summary,
                      loads=_read_csv(path / "loads.csv"), **tables)
 
