@@ -80,7 +80,10 @@ from .schema import (
 WAKE_MODELS = ("filaments", "particles")
 WAKE_MOTIONS = ("free", "frozen")
 WING_MODELS = ("lifting-line", "vortex-lattice")
-DEFAULT_CORE_CHORDS = 0.1   # initial core radius / smallest mean chord (common practice, 5-20 %)
+# Initial core radius / smallest mean chord: common practice (5-20 %); tip-vortex cores measured
+# near model-rotor blades are about 5-10 % of the chord (Leishman 2006, Principles of Helicopter
+# Aerodynamics, 2nd ed.; from memory).
+DEFAULT_CORE_CHORDS = 0.1
 DEFAULT_WAKE_SPANS = 3.0    # default run length: wake this many spans long (downwash within ~1 %)
 DEFAULT_SNAPSHOTS = 15       # wake snapshots of a run by default: an animation, not a copy per step
 _NAME = re.compile(r"[A-Za-z0-9_-]{1,64}")
