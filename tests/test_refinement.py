@@ -201,3 +201,14 @@ def test_a_sweep_point_too_coarse_to_coarsen_stops_the_sweep_before_it_runs(tmp_
     with pytest.raises(CaseError, match=r"sweep point 0 \(bodies.wing.spanwise_panels=3\).*level 3 \(coarsest"):
         sweep_study(WING, {"bodies.wing.spanwise_panels": [3, 12]}, out=tmp_path / "s")
     assert not (tmp_path / "s").exists()
+
+
+def test_differences_within_the_treecode_tolerance_are_unresolved():
+    """Synthetic (ours): levels 1e-5 apart, relative, with a treecode allowed 1e-4 of error."""
+    h = [1.0, 1.5, 2.25]
+    summaries = [{"case": {"wake": {"induction": "tree", "induction_tolerance": 1e-4}},
+                  "bodies": {"w": {"CL": 0.5 * (1 + 1e-5 * hk ** 2)}}} for hk in h]
+    assert estimate_loads(summaries, h)["w"]["CL"].convergence == UNRESOLVED
+    for s in summaries:
+        s["case"]["wake"]["induction"] = "direct"
+    assert estimate_loads(summaries, h)["w"]["CL"].convergence == MONOTONIC

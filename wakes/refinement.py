@@ -35,7 +35,8 @@ levels' ``sweep.csv``).
 
 What is not refined: the wake's cut-off (its length is a model choice here,
 not a spacing), a finite core radius, the treecode's tolerance (an error
-floor the case sets) and the solver's tolerance.
+floor the case sets: differences between levels within it are not
+resolved) and the solver's tolerance.
 """
 
 from __future__ import annotations
@@ -275,7 +276,10 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         same at every level (such a figure is an input of the case). Where a
         body reports :data:`PERIODIC_CHANGE`, a load's differences between
         levels must exceed the largest such change times the load's size,
-        else they are ``"unresolved"``; so must they exceed round-off
+        else they are ``"unresolved"``, and so when the levels' treecode
+        tolerance (``[wake] induction_tolerance`` where ``induction`` may
+        choose the tree, from ``summary["case"]``) is larger; so must they
+        exceed round-off
         (``ROUND_OFF``) of the body's largest figure in the same unit (a
         hover rotor's hub force, zero by symmetry, against its thrust).
         An observed order above twice ``SCHEME_ORDER`` gets no band.
@@ -292,6 +296,7 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         out[body] = {}
         changes = [s["bodies"][body].get(PERIODIC_CHANGE) for s in summaries]
         drift = max((abs(c) for c in changes if c is not None and math.isfinite(c)), default=0.0)
+        drift = max(drift, _tree_tolerance(summaries))
         scale = {}   # largest |figure| of each unit: round-off of a load zero by symmetry is relative to it
         for key, value in figures.items():
             if key not in NOT_LOADS and not isinstance(value, bool) and isinstance(value, (int, float)) \
@@ -307,6 +312,16 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
             noise = max(drift * max(map(abs, values)), ROUND_OFF * scale[_unit(key)[1]])
             out[body][key] = refinement_estimate(values, spacings, noise=noise, expected_order=SCHEME_ORDER,
                                                  order_tolerance=1.0)
+    return out
+
+
+def _tree_tolerance(summaries: list[dict]) -> float:
+    """The largest relative velocity error a level's treecode was allowed (0 for direct sums)."""
+    out = 0.0
+    for s in summaries:
+        wake = s.get("case", {}).get("wake", {})
+        if wake.get("induction", "direct") != "direct":   # "tree", or "auto" that may choose it
+            out = max(out, float(wake.get("induction_tolerance", 0.0)))
     return out
 
 
