@@ -60,7 +60,7 @@ from .io.runfolder import clear_run, record_files
 from .io.tables import write_json
 from .plots import UNCERTAINTY_PANELS, save_figure, sweep_figure, uncertainty_figure
 from .run import _unit, check_new_folder
-from .sweep import failure_lines, plan, sweep
+from .sweep import plan, sweep
 from .uncertainty import MONOTONIC, ROUND_OFF, SAFETY_FACTOR_THREE_LEVELS, refinement_estimate
 
 DEFAULT_RATIO = math.sqrt(2.0)   # refinement ratio between levels, our default
@@ -503,9 +503,11 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
     vary = {key: [lv.settings[key] for lv in levels] for key in levels[0].settings}
     table = sweep(case, vary, out=out / LEVELS_FOLDER, settings=settings, zipped=True, client=client,
                   scheduler=scheduler, workers=workers, progress=progress)
-    failed = failure_lines(table)
+    failed = [f"  {lv.words}: {row['error']} ({row['folder']})"
+              for lv, (_, row) in zip(levels, table.iterrows()) if row["status"] == "failed"]
     if failed:
-        raise LevelFailed("the refinement study has no estimate: " + "\n".join(failed)
+        raise LevelFailed(f"the refinement study has no estimate: {len(failed)} of {len(levels)} levels "
+                          "failed:\n" + "\n".join(failed)
                           + f"\nthe levels that finished are kept in {out / LEVELS_FOLDER}; run the same "
                           "study again with --overwrite to go on (finished levels are reused)")
     summaries = [json.loads((Path(f) / "summary.json").read_text(encoding="utf-8")) for f in table["folder"]]
