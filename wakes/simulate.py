@@ -237,7 +237,7 @@ class TimeLoop:
         self.origin = (0, 0.0)
         self.first = 0
         self.watch = Watchdog.for_surfaces(self.v_inf, [s for _, ss in layout for s in ss],
-                                           self.control.max_memory)
+                                           self.control.max_memory, wake=case.wake)
 
     def resume(self, state: LoopState) -> None:
         """Go on from ``state`` (read from a checkpoint) instead of step 0."""
