@@ -35,7 +35,8 @@ levels' ``sweep.csv``).
 
 What is not refined: the wake's cut-off (its length is a model choice here,
 not a spacing), a finite core radius, the treecode's tolerance (an error
-floor the case sets) and the solver's tolerance.
+floor the case sets: differences between levels within it are not
+resolved) and the solver's tolerance.
 """
 
 from __future__ import annotations
@@ -59,7 +60,7 @@ from .io.runfolder import clear_run, record_files
 from .io.tables import write_json
 from .plots import UNCERTAINTY_PANELS, save_figure, sweep_figure, uncertainty_figure
 from .run import _unit, check_new_folder
-from .sweep import failure_lines, plan, sweep
+from .sweep import plan, sweep
 from .uncertainty import MONOTONIC, ROUND_OFF, SAFETY_FACTOR_THREE_LEVELS, refinement_estimate
 
 DEFAULT_RATIO = math.sqrt(2.0)   # refinement ratio between levels, our default
@@ -275,7 +276,10 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         same at every level (such a figure is an input of the case). Where a
         body reports :data:`PERIODIC_CHANGE`, a load's differences between
         levels must exceed the largest such change times the load's size,
-        else they are ``"unresolved"``; so must they exceed round-off
+        else they are ``"unresolved"``, and so when the levels' treecode
+        tolerance (``[wake] induction_tolerance`` where ``induction`` may
+        choose the tree, from ``summary["case"]``) is larger; so must they
+        exceed round-off
         (``ROUND_OFF``) of the body's largest figure in the same unit (a
         hover rotor's hub force, zero by symmetry, against its thrust).
         An observed order above twice ``SCHEME_ORDER`` gets no band.
@@ -292,6 +296,7 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         out[body] = {}
         changes = [s["bodies"][body].get(PERIODIC_CHANGE) for s in summaries]
         drift = max((abs(c) for c in changes if c is not None and math.isfinite(c)), default=0.0)
+        drift = max(drift, _tree_tolerance(summaries))
         scale = {}   # largest |figure| of each unit: round-off of a load zero by symmetry is relative to it
         for key, value in figures.items():
             if key not in NOT_LOADS and not isinstance(value, bool) and isinstance(value, (int, float)) \
@@ -307,6 +312,16 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
             noise = max(drift * max(map(abs, values)), ROUND_OFF * scale[_unit(key)[1]])
             out[body][key] = refinement_estimate(values, spacings, noise=noise, expected_order=SCHEME_ORDER,
                                                  order_tolerance=1.0)
+    return out
+
+
+def _tree_tolerance(summaries: list[dict]) -> float:
+    """The largest relative velocity error a level's treecode was allowed (0 for direct sums)."""
+    out = 0.0
+    for s in summaries:
+        wake = s.get("case", {}).get("wake", {})
+        if wake.get("induction", "direct") != "direct":   # "tree", or "auto" that may choose it
+            out = max(out, float(wake.get("induction_tolerance", 0.0)))
     return out
 
 
@@ -488,9 +503,11 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
     vary = {key: [lv.settings[key] for lv in levels] for key in levels[0].settings}
     table = sweep(case, vary, out=out / LEVELS_FOLDER, settings=settings, zipped=True, client=client,
                   scheduler=scheduler, workers=workers, progress=progress)
-    failed = failure_lines(table)
+    failed = [f"  {lv.words}: {row['error']} ({row['folder']})"
+              for lv, (_, row) in zip(levels, table.iterrows()) if row["status"] == "failed"]
     if failed:
-        raise LevelFailed("the refinement study has no estimate: " + "\n".join(failed)
+        raise LevelFailed(f"the refinement study has no estimate: {len(failed)} of {len(levels)} levels "
+                          "failed:\n" + "\n".join(failed)
                           + f"\nthe levels that finished are kept in {out / LEVELS_FOLDER}; run the same "
                           "study again with --overwrite to go on (finished levels are reused)")
     summaries = [json.loads((Path(f) / "summary.json").read_text(encoding="utf-8")) for f in table["folder"]]
