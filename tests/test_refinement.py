@@ -25,10 +25,12 @@ from wakes.errors import CaseError, InputError
 from wakes.refinement import (
     LEVELS_FOLDER,
     PERIODIC_CHANGE,
+    LevelFailed,
     band_text,
     estimate_loads,
     plan_levels,
     refinement_study,
+    sweep_study,
     uncertainty_table,
 )
 from wakes.uncertainty import DIVERGENT, MONOTONIC, OSCILLATORY, UNRESOLVED
@@ -140,6 +142,8 @@ def test_cli_refuses_before_anything_runs(tmp_path, capsys):
     assert "refinement study would need" in capsys.readouterr().err
     assert main(["run", str(WING), "--workers", "2", "--out", str(tmp_path / "w")]) == 2
     assert "--uncertainty only" in capsys.readouterr().err
+    assert main(["run", "--resume", str(tmp_path), "--uncertainty"]) == 2
+    assert "not --resume" in capsys.readouterr().err
     assert not (tmp_path / "r").exists() and not (tmp_path / "m").exists() and not (tmp_path / "w").exists()
 
 
@@ -184,3 +188,43 @@ def test_a_load_zero_by_symmetry_is_unresolved_not_oscillating():
     est = estimate_loads(summaries, h)["r"]
     assert est["thrust_N"].convergence == MONOTONIC
     assert est["H_force_N"].convergence == UNRESOLVED
+
+
+def test_an_order_beyond_the_schemes_gets_no_band():
+    """Synthetic (ours): differences shrinking at order 6 (a sum of parts converging from two sides
+    can look like this); twice the strips' second order is the most accepted."""
+    h = [1.0, 1.5, 2.25]
+    summaries = [{"bodies": {"w": {"CD": 0.015 + 1e-5 * hk ** 6}}} for hk in h]
+    est = estimate_loads(summaries, h)["w"]["CD"]
+    assert est.convergence == MONOTONIC and not est.trusted and est.uncertainty is None
+    assert "far from the expected" in est.reason
+
+
+def test_a_sweep_point_too_coarse_to_coarsen_stops_the_sweep_before_it_runs(tmp_path):
+    with pytest.raises(CaseError, match=r"sweep point 0 \(bodies.wing.spanwise_panels=3\).*level 3 \(coarsest"):
+        sweep_study(WING, {"bodies.wing.spanwise_panels": [3, 12]}, out=tmp_path / "s")
+    assert not (tmp_path / "s").exists()
+
+
+def test_differences_within_the_treecode_tolerance_are_unresolved():
+    """Synthetic (ours): levels 1e-5 apart, relative, with a treecode allowed 1e-4 of error."""
+    h = [1.0, 1.5, 2.25]
+    summaries = [{"case": {"wake": {"induction": "tree", "induction_tolerance": 1e-4}},
+                  "bodies": {"w": {"CL": 0.5 * (1 + 1e-5 * hk ** 2)}}} for hk in h]
+    assert estimate_loads(summaries, h)["w"]["CL"].convergence == UNRESOLVED
+    for s in summaries:
+        s["case"]["wake"]["induction"] = "direct"
+    assert estimate_loads(summaries, h)["w"]["CL"].convergence == MONOTONIC
+
+
+def test_a_failed_level_is_named_and_the_levels_are_kept(tmp_path):
+    """Every level meets an angle past its polar table at the first step."""
+    polar = CASES / "polars" / "survey-glider-section.csv"
+    with (distributed.LocalCluster(processes=False, n_workers=1, threads_per_worker=1,
+                                   dashboard_address=None) as cluster,
+          distributed.Client(cluster) as client):
+        with pytest.raises(LevelFailed, match=r"3 of 3 levels failed:\n  level 1 \(finest.*PolarRangeError"):
+            refinement_study(WING, tmp_path / "f", client=client, settings=[
+                "time.steps=3", f"bodies.wing.airfoil.polar={polar}", "freestream.angle_of_attack=25"])
+    assert len(list((tmp_path / "f" / LEVELS_FOLDER).glob("000*"))) == 3
+    assert not (tmp_path / "f" / "summary.json").exists()

@@ -88,8 +88,9 @@ def test_watchdog_stops_with_message_checkpoint_and_resumes_with_a_smaller_step(
     assert watchdog.exit_status(run) == EXIT_UNSTABLE == 3
     msg = run.message
     for part in ("step 3 (t = 0.075 s)", "surface 'wing", "likely cause", "smaller [time] dt",
-                 "the last good state is the start of step 2 (t = 0.05 s)"):
+                 "the last good state is the start of step 2 (t = 0.05 s)", "[wake] particle_overlap"):
         assert part in msg
+    assert 'model = "particles"' not in msg    # the remedy names only changes that apply: it has particles
     state, _, _, _ = newest_checkpoint(tmp_path)
     assert len(run.loads) == state.step == 2      # outputs so far = the steps before that state
     assert (tmp_path / "loads.csv").is_file() and (tmp_path / "summary.json").is_file()
@@ -101,6 +102,15 @@ def test_watchdog_stops_with_message_checkpoint_and_resumes_with_a_smaller_step(
     assert done.status == "finished"
     assert done.loads["time_s"].iloc[-1] == pytest.approx(final_time, abs=1e-12)
     assert np.isfinite(done.loads["CL"]).all()
+
+
+def test_the_remedy_names_only_changes_that_apply_to_the_run():
+    from wakes.case.specs import WakeSpec
+    lattice = watchdog.remedy_for(WakeSpec())
+    assert 'model = "particles"' in lattice and "a finite [wake] max_age" in lattice
+    assert "particle_overlap" not in lattice
+    trimmed = watchdog.remedy_for(WakeSpec(model="particles", max_age=1.0))
+    assert "shorter [wake] max_age" in trimmed and 'model = "particles"' not in trimmed
 
 
 def test_library_default_raises_the_watchdog_error(monkeypatch):

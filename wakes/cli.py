@@ -68,6 +68,8 @@ from .refinement import (
     ratio_words,
     refinement_study,
     result_lines,
+    sweep_bands,
+    sweep_study,
 )
 from .run import case_inputs, check_new_folder, clear_run, result_table, run_guarded, warning_lines, write_run
 from .sweep import SweepStopped, failure_lines, parse_vary, sweep
@@ -191,12 +193,13 @@ def _parser() -> argparse.ArgumentParser:
                        help="worker processes of the local cluster (default: one per core)")
     sweep.add_argument("--out", default="sweep", metavar="DIR", help="sweep folder (default: sweep)")
     sweep.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    _study_options(sweep, "every point: ")
     return parser
 
 
-def _study_options(parser) -> None:
+def _study_options(parser, what: str = "") -> None:
     parser.add_argument("--uncertainty", action="store_true",
-                        help="also run the case at two coarser levels (strips and time step coarsened "
+                        help=what + "also run the case at two coarser levels (strips and time step coarsened "
                              "together) on Dask workers and give every load with its Richardson-"
                              "extrapolated value, observed order and GCI band (levels in DIR/levels/)")
     parser.add_argument("--uncertainty-ratio", type=float, default=DEFAULT_RATIO, metavar="R",
@@ -421,16 +424,19 @@ def _sweep(args) -> int:
     vary = dict(parse_vary(v) for v in args.vary)
     _check_cluster_options(args)
     writable_path("--out", args.out, folder=True)
+    run = sweep_study if args.uncertainty else sweep
+    extra = {"ratio": args.uncertainty_ratio} if args.uncertainty else {}
     try:
-        table = sweep(args.case, vary, out=args.out, settings=args.set, zipped=args.zip,
-                      scheduler=args.scheduler, workers=args.workers,
-                      progress=not args.quiet and sys.stderr.isatty())
+        table = run(args.case, vary, out=args.out, settings=args.set, zipped=args.zip,
+                    scheduler=args.scheduler, workers=args.workers,
+                    progress=not args.quiet and sys.stderr.isatty(), **extra)
     except SweepStopped as stop:
         print(f"wakes: {stop.message}", file=sys.stderr)
         return 130
     if not args.quiet:
-        with_cols = [c for c in table.columns if c not in ("folder", "error")]
-        print(table[with_cols].to_string(index=False))
+        shown = sweep_bands(table, list(vary)) if args.uncertainty else table[
+            [c for c in table.columns if c not in ("folder", "error")]]
+        print(shown.to_string(index=False))
         print(f"results in {args.out}/sweep.csv")
     failed = failure_lines(table)
     if failed:

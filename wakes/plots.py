@@ -567,7 +567,8 @@ def uncertainty_figure(table):
                 ax.plot([1.0, 1.0], [float(r["value"]) - u, float(r["value"]) + u], linewidth=4, alpha=0.5,
                         label="band")
             else:
-                ax.text(0.02, 0.9, f"no band: {r['convergence']}", transform=ax.transAxes, va="top")
+                why = "order out of range" if r["convergence"] == "monotonic" else r["convergence"]
+                ax.text(0.02, 0.9, f"no band: {why}", transform=ax.transAxes, va="top")
             ax.set_ylabel(f"{r['body']}: " + QUANTITY_LABELS.get(r["quantity"], r["quantity"]))
             ax.set_xlim(left=-0.05 * max(h))
             ax.legend(loc="best")

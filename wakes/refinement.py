@@ -35,7 +35,8 @@ levels' ``sweep.csv``).
 
 What is not refined: the wake's cut-off (its length is a model choice here,
 not a spacing), a finite core radius, the treecode's tolerance (an error
-floor the case sets) and the solver's tolerance.
+floor the case sets: differences between levels within it are not
+resolved) and the solver's tolerance.
 """
 
 from __future__ import annotations
@@ -57,9 +58,9 @@ from .estimate import estimate_case
 from .io import atomic
 from .io.runfolder import clear_run, record_files
 from .io.tables import write_json
-from .plots import save_figure, uncertainty_figure
+from .plots import UNCERTAINTY_PANELS, save_figure, sweep_figure, uncertainty_figure
 from .run import _unit, check_new_folder
-from .sweep import failure_lines, sweep
+from .sweep import plan, sweep
 from .uncertainty import MONOTONIC, ROUND_OFF, SAFETY_FACTOR_THREE_LEVELS, refinement_estimate
 
 DEFAULT_RATIO = math.sqrt(2.0)   # refinement ratio between levels, our default
@@ -70,6 +71,11 @@ LEVELS_FOLDER = "levels"
 TABLE_FILE = "uncertainty.csv"
 FIGURE_FILE = "uncertainty.png"
 #: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
+#: Observed orders are accepted from 0 to twice this (ours): the strips converge at second order
+#: at best (cosine spacing, section points at the angle midpoints) and the time march at first, so a
+#: higher observed order says the levels are not in the asymptotic range (e.g. a sum of parts
+#: converging from opposite sides), and its band would be too narrow.
+SCHEME_ORDER = 2.0
 #: A body's relative change of its loads over its last revolution (rotors): how far the time march
 #: is from its periodic state, an iteration error in the sense of Celik et al. (2008). Its largest
 #: size over the levels, times a load, is the noise below which a difference between levels is not
@@ -270,9 +276,13 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         same at every level (such a figure is an input of the case). Where a
         body reports :data:`PERIODIC_CHANGE`, a load's differences between
         levels must exceed the largest such change times the load's size,
-        else they are ``"unresolved"``; so must they exceed round-off
+        else they are ``"unresolved"``, and so when the levels' treecode
+        tolerance (``[wake] induction_tolerance`` where ``induction`` may
+        choose the tree, from ``summary["case"]``) is larger; so must they
+        exceed round-off
         (``ROUND_OFF``) of the body's largest figure in the same unit (a
         hover rotor's hub force, zero by symmetry, against its thrust).
+        An observed order above twice ``SCHEME_ORDER`` gets no band.
 
     Examples
     --------
@@ -286,6 +296,7 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         out[body] = {}
         changes = [s["bodies"][body].get(PERIODIC_CHANGE) for s in summaries]
         drift = max((abs(c) for c in changes if c is not None and math.isfinite(c)), default=0.0)
+        drift = max(drift, _tree_tolerance(summaries))
         scale = {}   # largest |figure| of each unit: round-off of a load zero by symmetry is relative to it
         for key, value in figures.items():
             if key not in NOT_LOADS and not isinstance(value, bool) and isinstance(value, (int, float)) \
@@ -299,7 +310,18 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
             if any(v is None or not math.isfinite(v) for v in values) or len(set(values)) == 1:
                 continue
             noise = max(drift * max(map(abs, values)), ROUND_OFF * scale[_unit(key)[1]])
-            out[body][key] = refinement_estimate(values, spacings, noise=noise)
+            out[body][key] = refinement_estimate(values, spacings, noise=noise, expected_order=SCHEME_ORDER,
+                                                 order_tolerance=1.0)
+    return out
+
+
+def _tree_tolerance(summaries: list[dict]) -> float:
+    """The largest relative velocity error a level's treecode was allowed (0 for direct sums)."""
+    out = 0.0
+    for s in summaries:
+        wake = s.get("case", {}).get("wake", {})
+        if wake.get("induction", "direct") != "direct":   # "tree", or "auto" that may choose it
+            out = max(out, float(wake.get("induction_tolerance", 0.0)))
     return out
 
 
@@ -343,7 +365,9 @@ def band_text(row) -> str:
     '0.1 (no band: oscillatory, cannot be trusted)'
     """
     u = row["uncertainty"]
-    if row["convergence"] != MONOTONIC or u is None or not math.isfinite(u):
+    if row["convergence"] == MONOTONIC and (u is None or not math.isfinite(u)):
+        return f"{row['value']:.5g} (no band: observed order out of range, cannot be trusted)"
+    if row["convergence"] != MONOTONIC:
         return f"{row['value']:.5g} (no band: {row['convergence']}, cannot be trusted)"
     rel = row["relative_uncertainty"]
     rel_text = f" ({100 * rel:.2g} %)" if rel is not None and math.isfinite(rel) else ""
@@ -479,9 +503,11 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
     vary = {key: [lv.settings[key] for lv in levels] for key in levels[0].settings}
     table = sweep(case, vary, out=out / LEVELS_FOLDER, settings=settings, zipped=True, client=client,
                   scheduler=scheduler, workers=workers, progress=progress)
-    failed = failure_lines(table)
+    failed = [f"  {lv.words}: {row['error']} ({row['folder']})"
+              for lv, (_, row) in zip(levels, table.iterrows()) if row["status"] == "failed"]
     if failed:
-        raise LevelFailed("the refinement study has no estimate: " + "\n".join(failed)
+        raise LevelFailed(f"the refinement study has no estimate: {len(failed)} of {len(levels)} levels "
+                          "failed:\n" + "\n".join(failed)
                           + f"\nthe levels that finished are kept in {out / LEVELS_FOLDER}; run the same "
                           "study again with --overwrite to go on (finished levels are reused)")
     summaries = [json.loads((Path(f) / "summary.json").read_text(encoding="utf-8")) for f in table["folder"]]
@@ -529,3 +555,130 @@ def ratio_words(levels: list[Level]) -> str:
     """The ratios between consecutive levels, e.g. ``"1.41, 1.42"``."""
     h = np.array([lv.spacing for lv in levels])
     return ", ".join(f"{r:.3g}" for r in h[1:] / h[:-1])
+
+
+def _resolved_value(case: Case, key: str):
+    """The value of a dotted key in a resolved case (``bodies.NAME.KEY`` through its body)."""
+    parts = key.split(".")
+    node = case.body(parts[1]) if parts[0] == "bodies" else getattr(case, parts[0])
+    for part in parts[2 if parts[0] == "bodies" else 1:]:
+        node = getattr(node, part)
+    return node
+
+
+def sweep_study(case, vary: dict, *, out="sweep", settings=(), zipped: bool = False,
+                ratio: float = DEFAULT_RATIO, client=None, scheduler: str | None = None,
+                workers: int | None = None, max_memory: int | None = None,
+                progress: bool = False) -> pd.DataFrame:
+    """A sweep whose every point is a refinement study: each load with its band, per point.
+
+    Every point of the grid (:func:`wakes.sweep.plan`) gets its three levels
+    (:func:`plan_levels`, the point as the finest); all levels of all points
+    run as one zipped sweep into ``out/levels/``, so they share the workers.
+
+    Parameters
+    ----------
+    case, vary, out, settings, zipped, client, scheduler, workers, progress
+        As for :func:`wakes.sweep.sweep`.
+    ratio : float
+        Nominal refinement ratio between levels (default sqrt 2).
+    max_memory : int, optional
+        Memory budget [B] for the levels running at once here.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``out/sweep.csv``: one row per point with the varied keys, ``status``
+        ("ran" when its three levels finished, else "failed"), ``error``,
+        ``folder`` (its finest level's) and, for every load, its finest value
+        (named as in a sweep table) and ``LOAD_extrapolated``,
+        ``LOAD_uncertainty``, ``LOAD_relative_uncertainty``, ``LOAD_order``,
+        ``LOAD_convergence``.
+
+    Raises
+    ------
+    wakes.errors.CaseError
+        Before anything runs: a bad point, or a point too coarse to coarsen
+        (named with its values and level).
+    wakes.errors.MemoryBudgetError
+        Before anything runs.
+
+    Examples
+    --------
+    >>> import distributed
+    >>> with (distributed.LocalCluster(processes=False, n_workers=1, dashboard_address=None) as cluster,
+    ...       distributed.Client(cluster) as client):
+    ...     table = sweep_study("cases/survey-glider.toml", {"freestream.angle_of_attack": [2, 4]},
+    ...                         out="glider-sweep-study", settings=["time.steps=20"], client=client)
+    >>> list(table["status"]), list(table["CL_convergence"])
+    (['ran', 'ran'], ['monotonic', 'monotonic'])
+    """
+    source, base_dir, raw = _read_case(case, settings)
+    out = Path(out)
+    points = plan(raw, vary, out, source=source, base_dir=base_dir, zipped=zipped)
+    level_sets = []
+    for p in points:
+        try:
+            level_sets.append(plan_levels(p.data, source=source, base_dir=base_dir, ratio=ratio))
+        except CaseError as exc:
+            label = ", ".join(f"{k}={v!r}" for k, v in p.values.items())
+            raise CaseError(f"sweep point {p.index} ({label}): {exc}; nothing was run") from None
+    flat_levels = [lv for levels in level_sets for lv in levels]
+    remote = client is not None or bool(scheduler)
+    check_levels_budget(flat_levels, max_memory,
+                        1 if remote else min(len(flat_levels), workers or os.cpu_count() or 1))
+    keys = list(dict.fromkeys([*vary, *(k for lv in flat_levels for k in lv.settings)]))
+    flat = {k: [lv.settings[k] if k in lv.settings else
+                p.values[k] if k in p.values else _resolved_value(lv.case, k)
+                for p, levels in zip(points, level_sets) for lv in levels] for k in keys}
+    runs = sweep(case, flat, out=out / LEVELS_FOLDER, settings=settings, zipped=True, client=client,
+                 scheduler=scheduler, workers=workers, progress=progress)
+    rows = []
+    for i, (p, levels) in enumerate(zip(points, level_sets)):
+        mine = runs.iloc[i * LEVELS:(i + 1) * LEVELS]
+        row = {**p.values, "status": "ran", "error": "", "folder": mine["folder"].iloc[0]}
+        bad = mine[~mine["status"].isin(["ran", "reused"])]
+        if len(bad):
+            row.update(status="failed", error="; ".join(f"level {k + 1 - i * LEVELS}: {e}"
+                                                        for k, e in bad["error"].items()))
+            rows.append(row)
+            continue
+        summaries = [json.loads((Path(f) / "summary.json").read_text(encoding="utf-8")) for f in mine["folder"]]
+        estimates = estimate_loads(summaries, [lv.spacing for lv in levels])
+        for body, loads in estimates.items():
+            prefix = "" if len(estimates) == 1 else f"{body}."
+            for key, est in loads.items():
+                name = prefix + key
+                row.update({name: est.value, f"{name}_extrapolated": _num(est.extrapolated),
+                            f"{name}_uncertainty": _num(est.uncertainty),
+                            f"{name}_relative_uncertainty": _num(est.gci),
+                            f"{name}_order": _num(est.order), f"{name}_convergence": est.convergence})
+        rows.append(row)
+    table = pd.DataFrame(rows)
+    atomic.write_text(out / "sweep.csv", table.to_csv(index=False, float_format="%.10g"))
+    fig = sweep_figure(table, next(iter(vary)), raw)
+    if fig is not None:
+        save_figure(fig, out / "sweep.png")
+    return table
+
+
+def sweep_bands(table: pd.DataFrame, keys: list) -> pd.DataFrame:
+    """A study sweep's table for the terminal: the varied keys, status and each main load as value ± band.
+
+    Examples
+    --------
+    >>> t = pd.DataFrame({"alpha": [2], "status": ["ran"], "CL": [0.2], "CL_uncertainty": [0.001],
+    ...                   "CL_relative_uncertainty": [0.005], "CL_convergence": ["monotonic"]})
+    >>> print(sweep_bands(t, ["alpha"]).to_string(index=False))
+     alpha status                  CL
+         2    ran 0.2 ± 0.001 (0.5 %)
+    """
+    shown = table[[*keys, "status"]].copy()
+    for col in table.columns:
+        base = col.rpartition(".")[2]
+        if base in UNCERTAINTY_PANELS and f"{col}_convergence" in table:
+            shown[col] = [band_text({"value": r[col], "uncertainty": r[f"{col}_uncertainty"],
+                                     "relative_uncertainty": r[f"{col}_relative_uncertainty"],
+                                     "convergence": r[f"{col}_convergence"]}) if r["status"] == "ran" else "-"
+                          for _, r in table.iterrows()]
+    return shown

@@ -33,8 +33,33 @@ from .estimate import peak_bytes
 
 SPEED_FACTOR = 50.0   # largest wake speed accepted / flow speed scale (our choice, generous)
 
-REMEDY = ("a smaller [time] dt, a larger [wake] core_radius, or coarser wake trimming "
-          "([wake] max_age, model = \"particles\")")
+
+
+def remedy_for(wake=None) -> str:
+    """The changes of the case that may cure a wake blowing up, only those that apply to it.
+
+    Parameters
+    ----------
+    wake : wakes.case.WakeSpec, optional
+        The run's ``[wake]`` settings (its ``model`` and ``max_age``); None
+        names the changes that apply to any run.
+
+    Examples
+    --------
+    >>> from wakes.case.specs import WakeSpec
+    >>> remedy_for(WakeSpec(model="particles", max_age=2.0))
+    'a smaller [time] dt, a larger [wake] core_radius, a larger [wake] particle_overlap or a shorter [wake] max_age'
+    """
+    changes = ["a smaller [time] dt", "a larger [wake] core_radius"]
+    model = getattr(wake, "model", None)
+    if model == "particles":
+        changes.append("a larger [wake] particle_overlap")
+    max_age = getattr(wake, "max_age", float("inf"))
+    changes.append("a finite [wake] max_age (older wake removed)" if max_age == float("inf")
+                   else "a shorter [wake] max_age")
+    if model == "filaments":
+        changes.append('[wake] model = "particles"')
+    return ", ".join(changes[:-1]) + " or " + changes[-1]
 
 
 class Watchdog:
@@ -48,17 +73,26 @@ class Watchdog:
         Number of bound circulations (for the memory budget).
     max_memory : int, optional
         Budget [B]; default: the memory available when the run starts.
+    remedy : str, optional
+        The remedy an instability message names (:func:`remedy_for` the
+        run's ``[wake]``); default: the changes that apply to any run.
     """
 
-    def __init__(self, speed_scale: float, unknowns: int = 0, max_memory: int | None = None):
+    def __init__(self, speed_scale: float, unknowns: int = 0, max_memory: int | None = None,
+                 remedy: str | None = None):
+        self.remedy = remedy_for() if remedy is None else remedy
         self.speed_scale = float(speed_scale)
         self.speed_limit = SPEED_FACTOR * self.speed_scale
         self.unknowns = int(unknowns)
         self.budget, self.budget_source = budget_bytes(max_memory)
 
     @classmethod
-    def for_surfaces(cls, v_inf: np.ndarray, surfaces, max_memory: int | None = None) -> Watchdog:
-        """A watchdog scaled on the freestream and the surfaces' own motion at the start."""
+    def for_surfaces(cls, v_inf: np.ndarray, surfaces, max_memory: int | None = None,
+                     wake=None) -> Watchdog:
+        """A watchdog scaled on the freestream and the surfaces' own motion at the start.
+
+        ``wake`` (the run's ``[wake]`` settings) chooses the remedy named (:func:`remedy_for`).
+        """
         speeds = [float(np.linalg.norm(v_inf))]
         for s in surfaces:
             v = s.velocity_of(s.eval_points())
@@ -67,7 +101,7 @@ class Watchdog:
         scale = max(speeds)
         if not scale > 0.0:
             scale = 1.0
-        return cls(scale, sum(s.n_unknowns for s in surfaces), max_memory)
+        return cls(scale, sum(s.n_unknowns for s in surfaces), max_memory, remedy_for(wake))
 
     def check_circulation(self, step: int, time: float, surfaces, gammas) -> None:
         """Every surface's circulation is finite."""
@@ -78,7 +112,7 @@ class Watchdog:
                 raise UnstableRunError(
                     f"step {step} (t = {time:.6g} s): the bound circulation of surface "
                     f"'{s.name}' is not finite at strip {k % s.n_span}; likely cause: the wake "
-                    f"blew up next to the surface; remedy: {REMEDY}")
+                    f"blew up next to the surface; remedy: {self.remedy}")
 
     def check_velocities(self, step: int, time: float, wakes, names, u_nodes, u_par) -> None:
         """Wake velocities (nodes stacked wake by wake, then particles) are finite and bounded."""
@@ -101,7 +135,7 @@ class Watchdog:
                 f"step {step} (t = {time:.6g} s): the speed of wake {what} {local} of surface "
                 f"'{names[owner]}' is {shown}; likely cause: the time step is too large for the "
                 f"wake spacing or the vortex cores are too small, so the wake is blowing up; "
-                f"remedy: {REMEDY}")
+                f"remedy: {self.remedy}")
 
     def check_memory(self, step: int, time: float, wakes) -> None:
         """The wake still fits the memory budget."""
