@@ -228,3 +228,8 @@ def test_a_failed_level_is_named_and_the_levels_are_kept(tmp_path):
                 "time.steps=3", f"bodies.wing.airfoil.polar={polar}", "freestream.angle_of_attack=25"])
     assert len(list((tmp_path / "f" / LEVELS_FOLDER).glob("000*"))) == 3
     assert not (tmp_path / "f" / "summary.json").exists()
+
+
+def test_wakes_plot_redraws_a_study_folders_figure(study, tmp_path, capsys):
+    assert main(["plot", str(study.out), "--out", str(tmp_path / "p")]) == 0
+    assert capsys.readouterr().out.strip() == str(tmp_path / "p" / "uncertainty.png")

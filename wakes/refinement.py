@@ -58,7 +58,7 @@ from .estimate import estimate_case
 from .io import atomic
 from .io.runfolder import clear_run, record_files
 from .io.tables import write_json
-from .plots import UNCERTAINTY_PANELS, save_figure, sweep_figure, uncertainty_figure
+from .plots import STUDY_FIGURE, STUDY_TABLE, UNCERTAINTY_PANELS, save_figure, sweep_figure, uncertainty_figure
 from .run import _unit, check_new_folder
 from .sweep import plan, sweep
 from .uncertainty import MONOTONIC, ROUND_OFF, SAFETY_FACTOR_THREE_LEVELS, refinement_estimate
@@ -68,8 +68,8 @@ MIN_RATIO = 1.3                  # Celik et al. (2008) recommend r > 1.3
 MAX_RATIO = 2.0                  # our bound: coarser levels soon leave the asymptotic range
 LEVELS = 3
 LEVELS_FOLDER = "levels"
-TABLE_FILE = "uncertainty.csv"
-FIGURE_FILE = "uncertainty.png"
+TABLE_FILE = STUDY_TABLE
+FIGURE_FILE = STUDY_FIGURE
 #: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
 #: Observed orders are accepted from 0 to twice this (ours): the strips converge at second order
 #: at best (cosine spacing, section points at the angle midpoints) and the time march at first, so a
