@@ -72,6 +72,8 @@ def test_freestream_vector_and_exclusive_forms():
     ({**_wing(), "time": {"dt": 0.0}}, r"time.dt must be greater than 0"),
     ({**_wing(), "wake": {"max_age": -1.0}}, r"max_age must be greater than 0"),
     ({**_wing(), "solver": {"relaxation": 1.5}}, r"relaxation must be at most 1"),
+    ({**_wing(), "wake": {"core_eddy_factor": -1e-4}}, r"wake.core_eddy_factor must be between 0 and 0.01"),
+    ({**_wing(), "wake": {"core_eddy_factor": "eddy"}}, r"wake.core_eddy_factor must be a number"),
     (_wing(airfoil={"lift_slope": 6.0, "polar": "x.csv"}), r"not found|either a polar table"),
     (_wing(span=1e308), r"bodies.wing.span must be at most 10000 \[m\]; got 1e\+308"),
     ({**_wing(), "freestream": {"speed": 1e308}}, r"freestream.speed must be between 0 and 1000 \[m/s\]; got 1e\+308"),

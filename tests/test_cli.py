@@ -65,6 +65,11 @@ BAD = {
                       'chord = 0.05\nrpm = 1000.0\nkind = "propeller"\naxis = [-1.0, 0.0, 0.0]\n'
                       'hub = [0.0, 1.0, 0.0]\n',
                       r"bodies.wing and bodies.rotor overlap near"),
+    "eddy factor": (TINY.replace('motion = "frozen"', 'motion = "frozen"\ncore_eddy_factor = 0.5'),
+                    r"wake.core_eddy_factor must be between 0 and 0.01; got 0.5"),
+    "eddy factor and growth": (TINY.replace('motion = "frozen"',
+                                            'motion = "frozen"\ncore_eddy_factor = 6.5e-5\ncore_growth = 10.0'),
+                               r"wake.core_growth and wake.core_eddy_factor are both given.*give one of them"),
     "wing through ground": (TINY + "[ground]\npoint = [0.0, 0.0, 0.0]\nnormal = [0.0, 0.3, 1.0]\n",
                             r"bodies.wing reaches through the ground plane"),
 }

@@ -182,7 +182,8 @@ def wake_settings(case: Case) -> WakeSettings:
     """The wake options of a case."""
     w = case.wake
     return WakeSettings(model=w.model, motion=w.motion, core=w.core, core_radius=w.core_radius,
-                        core_growth=w.core_growth, viscosity=case.fluid.kinematic_viscosity,
+                        core_growth=w.core_growth, core_eddy_factor=w.core_eddy_factor,
+                        viscosity=case.fluid.kinematic_viscosity,
                         particle_kernel=w.particle_kernel, particle_overlap=w.particle_overlap,
                         near_wake_steps=w.near_wake_steps, stretching=w.stretching,
                         max_age=w.max_age,

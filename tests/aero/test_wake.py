@@ -34,6 +34,41 @@ def test_core_growth_follows_squire_law():
                                rtol=1e-5)
 
 
+def test_eddy_core_growth_from_the_circulation():
+    """delta = 1 + a1 |Gamma|/nu (Bhagwat & Leishman 2000; Squire 1965) in Squire's law
+    r_c = sqrt(r0^2 + 4 alpha delta nu t), alpha = 1.2564312 (root of 1 + 2 alpha = e^alpha),
+    written out here; a1 = 0 keeps the fixed delta = core_growth."""
+    nu, a1, r0 = 1.5e-5, 6.5e-5, 0.01
+    s = WakeSettings(core_radius=r0, core_eddy_factor=a1, viscosity=nu)
+    age = np.array([0.0, 0.05, 0.3])
+    gam = np.array([2.5, -2.5, 0.0])
+    delta = 1.0 + a1 * np.abs(gam) / nu            # 11.83, 11.83, 1
+    np.testing.assert_allclose(s.core_at_age(age, gam),
+                               np.sqrt(r0 ** 2 + 4 * 1.2564312 * delta * nu * age), rtol=1e-7)
+    assert s.core_at_age(0.3, 2.5) > s.core_at_age(0.3, 0.25) > s.core_at_age(0.3, 0.0)
+    fixed = WakeSettings(core_radius=r0, core_growth=4.0, viscosity=nu)
+    np.testing.assert_array_equal(fixed.core_at_age(age, gam), fixed.core_at_age(age))
+
+
+def test_lattice_cores_grow_with_each_segments_age_and_circulation():
+    """Each segment of the wake lattice gets Squire's radius at its own age (a streamwise
+    segment: the mean of its two rows) and its own circulation; the attached row keeps
+    the vanishing core."""
+    s = WakeSettings(core_radius=0.02, core_eddy_factor=1e-4, viscosity=1e-5)
+    w = WakeSheet(_te(), 0.0, s)
+    _march(w, 4)
+    f = w.filaments(0.4)
+    a, b = f.endpoints()
+    # rows sit at x = 0, 0.1, ... and were shed at t = 0.4, 0.3, ...: age = mean x of the ends
+    age = 0.5 * (a[:, 0] + b[:, 0])
+    attached = (a[:, 0] == 0.0) & (b[:, 0] == 0.0)
+    expected = np.where(attached, s.attached_core_radius,
+                        np.sqrt(0.02 ** 2 + 4 * 1.2564312 * (1 + 1e-4 * np.abs(f.circulation) / 1e-5)
+                                * 1e-5 * age))
+    np.testing.assert_allclose(f.core_radius, expected, rtol=1e-7)
+    assert attached.any() and np.ptp(f.core_radius[~attached]) > 0
+
+
 def _impulse(sheet, time):
     """Linear impulse 1/2 sum x x (Gamma dl) of segments plus 1/2 sum x x alpha of particles."""
     f = sheet.filaments(time)

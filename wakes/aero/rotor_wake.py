@@ -71,8 +71,8 @@ import pandas as pd
 
 from ..induction.elements import Filaments
 from .kinematics import rotate_about
-from .vortex_lattice import carries_circulation, lattice_segments
-from .wake import WakeSettings
+from .vortex_lattice import carries_circulation
+from .wake import WakeSettings, lattice_ages
 
 
 def tip_peak(strips: np.ndarray) -> int:
@@ -362,20 +362,18 @@ class RolledUpWake:
         """The near sheet and the far trailers at ``time`` [s], cores grown to each row's age."""
         s = self.settings
         core = "singular" if singular else s.core
-        rc = s.core_at_age(time - self.near_time)
-        stream = 0.5 * (rc[:-1] + rc[1:])
-        rc[0] = s.attached_core_radius
         after = self.near_gamma[-1] if self.near_gamma.shape[0] else None  # open: trailers end here
-        nodes, seg, circ, rcs = lattice_segments(self.near, self.near_gamma, after=after,
-                                                 span_core=rc, stream_core=stream)
+        nodes, seg, circ, age, attached = lattice_ages(self.near, self.near_gamma, time - self.near_time,
+                                                       after=after)
         keep = carries_circulation(circ, np.max(np.abs(self.near_gamma), initial=0.0))
-        out = [Filaments(nodes, seg[keep], circ[keep], rcs[keep], core=core)]
+        rcs = s.lattice_cores(age[keep], attached[keep], circ[keep])
+        out = [Filaments(nodes, seg[keep], circ[keep], rcs, core=core)]
         if self.far_gamma.shape[0]:
             r, b = self.far.shape[:2]
             idx = np.arange(r * b).reshape(r, b)
             seg = np.stack([idx[:-1].ravel(), idx[1:].ravel()], axis=1)
             age = time - 0.5 * (self.far_time[:-1] + self.far_time[1:])
-            rcs = np.maximum(s.core_at_age(age)[:, None], self.far_spread[:-1]).ravel()
+            rcs = np.maximum(s.core_at_age(age[:, None], self.far_gamma), self.far_spread[:-1]).ravel()
             keep = carries_circulation(self.far_gamma.ravel(), np.max(np.abs(self.far_gamma), initial=0.0))
             circ = (self.far_gamma * self._fade(age)[:, None]).ravel()
             out.append(Filaments(self.far.reshape(-1, 3), seg[keep], circ[keep], rcs[keep], core=core))

@@ -15,7 +15,9 @@ segment's midpoint, and the lattice's far end is left open with ``tail``
 holding the circulation of the last converted ring, so the vortex lines
 continue into the particles. Core radii grow with age as
 r_c = sqrt(r_0^2 + 4 a delta nu age), a = 1.25643 (Squire 1965, Aeronaut.
-Q. 16; Lamb--Oseen constant).
+Q. 16; Lamb--Oseen constant), with a fixed eddy-viscosity factor delta, or
+delta = 1 + a_1 |Gamma|/nu from each segment's circulation (Bhagwat &
+Leishman 2000, see :meth:`WakeSettings.growth_factor`).
 
 The spanwise segments of the attached row (at the shedding row) get a
 vanishing core: they lie on the surface's trailing-edge closure, which the
@@ -60,7 +62,11 @@ class WakeSettings:
     core_radius : float
         Initial core radius r_0 [m]; also the smallest particle radius.
     core_growth : float
-        Eddy-viscosity factor delta in the core growth law (1: laminar).
+        Eddy-viscosity factor delta in the core growth law (1: laminar), used
+        when ``core_eddy_factor`` is 0.
+    core_eddy_factor : float
+        a_1 of delta = 1 + a_1 |Gamma|/nu, delta from each segment's
+        circulation (0: delta = ``core_growth``); see :meth:`growth_factor`.
     viscosity : float
         Kinematic viscosity nu [m^2/s].
     particle_kernel : str
@@ -88,6 +94,7 @@ class WakeSettings:
     core: str = "lamb-oseen"
     core_radius: float = 0.05
     core_growth: float = 1.0
+    core_eddy_factor: float = 0.0
     viscosity: float = SEA_LEVEL_KINEMATIC_VISCOSITY
     particle_kernel: str = "gaussian"
     particle_overlap: float = 1.3
@@ -101,11 +108,71 @@ class WakeSettings:
         """Core radius [m] of the attached row and of the surface's trailing-edge closure."""
         return ATTACHED_CORE_FRACTION * self.core_radius
 
-    def core_at_age(self, age: np.ndarray) -> np.ndarray:
-        """Core radius [m] of vorticity of the given ``age`` [s] (Squire's growth law)."""
+    def growth_factor(self, circulation=None) -> np.ndarray | float:
+        """Eddy-viscosity factor delta of vortices of the given circulation [m^2/s].
+
+        delta = 1 + a_1 |Gamma|/nu with a_1 = ``core_eddy_factor`` (the form of
+        Squire 1965, Aeronaut. Q. 16, with a_1 fitted to rotor tip vortices by
+        Bhagwat & Leishman 2000, J. American Helicopter Soc. 45(3), about
+        6.5e-5 there; value from memory); ``core_growth`` when a_1 is 0 or no
+        circulation is given.
+
+        Examples
+        --------
+        >>> from wakes.aero.wake import WakeSettings
+        >>> s = WakeSettings(core_eddy_factor=1e-4, viscosity=1.5e-5)
+        >>> float(s.growth_factor(1.5))     # Gamma/nu = 1e5
+        11.0
+        >>> WakeSettings(core_growth=3.0).growth_factor(1.5)
+        3.0
+        """
+        if self.core_eddy_factor == 0.0 or circulation is None:
+            return self.core_growth
+        return 1.0 + self.core_eddy_factor * np.abs(np.asarray(circulation, dtype=np.float64)) / self.viscosity
+
+    def core_at_age(self, age: np.ndarray, circulation=None) -> np.ndarray:
+        """Core radius [m] of vorticity of the given ``age`` [s] (Squire's growth law).
+
+        r_c = sqrt(r_0^2 + 4 alpha delta nu age), alpha = 1.25643 (Lamb-Oseen),
+        delta from :meth:`growth_factor` of ``circulation`` [m^2/s] (broadcast
+        against ``age``; taken as the vortex's circulation over its whole age).
+        """
         age = np.maximum(np.asarray(age, dtype=np.float64), 0.0)
         return np.sqrt(self.core_radius ** 2
-                       + 4.0 * LAMB_OSEEN_ALPHA * self.core_growth * self.viscosity * age)
+                       + 4.0 * LAMB_OSEEN_ALPHA * self.growth_factor(circulation) * self.viscosity * age)
+
+    def lattice_cores(self, ages: np.ndarray, attached: np.ndarray, circulation: np.ndarray) -> np.ndarray:
+        """Core radii [m] (K,) of lattice segments of ages [s] (K,) and circulations (K,);
+        segments flagged ``attached`` (K,) get :attr:`attached_core_radius`."""
+        return np.where(attached, self.attached_core_radius, self.core_at_age(ages, circulation))
+
+
+def lattice_ages(rows: np.ndarray, gamma: np.ndarray, row_age: np.ndarray, *, after=None):
+    """Nodes, segments, circulations, ages and attached flags of a wake lattice.
+
+    Parameters
+    ----------
+    rows : ndarray, shape (R, n + 1, 3)
+        Node rows, newest first [m].
+    gamma : ndarray, shape (R - 1, n)
+        Ring circulations [m^2/s].
+    row_age : ndarray, shape (R,)
+        Age of each row [s]; a streamwise segment has the mean age of its rows.
+    after : ndarray, shape (n,), optional
+        Circulation beyond the oldest row (an open lattice).
+
+    Returns
+    -------
+    nodes (R (n + 1), 3), segments (K, 2), circulation (K,), age (K,) [s] and
+    attached (K,) bool: the spanwise segments of row 0, at the shedding row.
+    """
+    row_age = np.asarray(row_age, dtype=np.float64)
+    marked = row_age.copy()
+    marked[0] = np.nan                          # row 0's spanwise segments: the attached row
+    nodes, seg, circ, age = lattice_segments(rows, gamma, after=after, span_core=marked,
+                                             stream_core=0.5 * (row_age[:-1] + row_age[1:]))
+    attached = np.isnan(age)
+    return nodes, seg, circ, np.where(attached, 0.0, age), attached
 
 
 class WakeSheet:
@@ -148,11 +215,12 @@ class WakeSheet:
         if singular:
             return lattice_filaments(self.rows, self.gamma, core="singular", core_radius=1.0,
                                      after=self.tail)
-        rc = self.settings.core_at_age(time - self.row_time)
-        stream = 0.5 * (rc[:-1] + rc[1:])
-        rc[0] = self.settings.attached_core_radius
-        return lattice_filaments(self.rows, self.gamma, core=self.settings.core, core_radius=rc,
-                                 stream_core=stream, after=self.tail)
+        nodes, seg, circ, age, attached = lattice_ages(self.rows, self.gamma, time - self.row_time,
+                                                       after=self.tail)
+        scale = max(np.max(np.abs(self.gamma), initial=0.0), np.max(np.abs(self.tail), initial=0.0))
+        keep = carries_circulation(circ, scale)
+        rc = self.settings.lattice_cores(age[keep], attached[keep], circ[keep])
+        return Filaments(nodes, seg[keep], circ[keep], rc, core=self.settings.core)
 
     def particles(self) -> Particles:
         """The converted far wake as particles."""
@@ -235,7 +303,7 @@ class WakeSheet:
         length = np.linalg.norm(b - a, axis=1)
         born = 0.5 * (self.row_time[-1] + self.row_time[-2])
         s = self.settings
-        radius = np.maximum(s.core_at_age(np.full(length.shape, time - born)),
+        radius = np.maximum(s.core_at_age(np.full(length.shape, time - born), circ[take]),
                             s.particle_overlap * length)
         self.positions = np.vstack([self.positions, 0.5 * (a + b)])
         self.strengths = np.vstack([self.strengths, circ[take, None] * (b - a)])

@@ -80,7 +80,10 @@ from .schema import (
 WAKE_MODELS = ("filaments", "particles")
 WAKE_MOTIONS = ("free", "frozen")
 WING_MODELS = ("lifting-line", "vortex-lattice")
-DEFAULT_CORE_CHORDS = 0.1   # initial core radius / smallest mean chord (common practice, 5-20 %)
+# Initial core radius / smallest mean chord: common practice (5-20 %); tip-vortex cores measured
+# near model-rotor blades are about 5-10 % of the chord (Leishman 2006, Principles of Helicopter
+# Aerodynamics, 2nd ed.; from memory).
+DEFAULT_CORE_CHORDS = 0.1
 DEFAULT_WAKE_SPANS = 3.0    # default run length: wake this many spans long (downwash within ~1 %)
 DEFAULT_SNAPSHOTS = 15       # wake snapshots of a run by default: an animation, not a copy per step
 _NAME = re.compile(r"[A-Za-z0-9_-]{1,64}")
@@ -98,6 +101,7 @@ MAX_STEPS = 10_000_000     # most time steps of a run
 MAX_DEFAULT_STEPS = MAX_STEPS  # a default step count above this means the sizes or speeds are a typo
 MAX_REVOLUTIONS = 1e5      # longest rotor run, kept wake, fade and start-up [revolutions]
 MAX_ANGLE = 360.0          # largest orientation angle [deg]
+MAX_EDDY_FACTOR = 1e-2     # largest a1 of the eddy-viscosity factor (measured values are of order 1e-4)
 
 
 # ----------------------------------------------------------------- sections
@@ -186,6 +190,10 @@ class WakeSpec:
                                     "m", above=0.0, minimum=1e-6, maximum=MAX_LENGTH, resolved=True)
     core_growth: float = key(1.0, "eddy-viscosity factor delta of the core growth law (1: laminar)",
                              minimum=0.0, maximum=1e5)
+    core_eddy_factor: float = key(0.0, "a1 in delta = 1 + a1 abs(circulation) / kinematic viscosity, the "
+                                  "core growth factor of each vortex from its circulation (0: delta = "
+                                  "core_growth; rotor tip vortices: about 6.5e-5, Bhagwat & Leishman "
+                                  "2000, from memory)", minimum=0.0, maximum=MAX_EDDY_FACTOR)
     particle_kernel: str = key("gaussian", "particle smoothing kernel", kind="str",
                                choices=PARTICLE_KERNELS)
     particle_overlap: float = key(1.3, "particle radius / length of the segment it replaces",
@@ -202,6 +210,16 @@ class WakeSpec:
                          choices=METHODS)
     induction_tolerance: float = key(1e-6, "relative velocity error aimed at by the treecode",
                                      above=0.0, minimum=1e-10, maximum=0.1)
+
+    def after_parse(self, raw: dict, where: str, ctx) -> WakeSpec:
+        if self.core_eddy_factor > 0.0 and "core_growth" in raw:
+            ctx.fail(f"{where}.core_growth and {where}.core_eddy_factor are both given: core_growth is a "
+                     "fixed factor delta, core_eddy_factor sets delta = 1 + a1 abs(circulation) / nu from each "
+                     "vortex's circulation; give one of them")
+        return self
+
+    def omitted(self) -> set:
+        return {"core_growth"} if self.core_eddy_factor > 0.0 else set()
 
 
 @dataclass(frozen=True, kw_only=True)
