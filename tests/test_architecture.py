@@ -32,7 +32,7 @@ LAYERS = (
     ("time loop", ("wakes.estimate", "wakes.budget", "wakes.watchdog", "wakes.simulate")),
     ("edge", ("wakes.cluster", "wakes.plots", "wakes.probe", "wakes.templates",
               "wakes.progress", "wakes.verify", "wakes.run", "wakes.sweep",
-              "wakes.refinement")),
+              "wakes.refinement", "wakes.trim")),
     ("front doors", ("wakes.cli", "wakes")),
 )
 

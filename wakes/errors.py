@@ -54,5 +54,9 @@ class PolarRangeError(InputError):
         self.mach = mach
 
 
+class TrimError(WakesError):
+    """A trim did not meet its targets; the message names each target missed and its residual."""
+
+
 class CheckpointError(WakesError):
     """A run folder holds no checkpoint, or one that cannot be read."""
