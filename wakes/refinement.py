@@ -45,6 +45,7 @@ import copy
 import json
 import math
 import os
+import time
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -192,7 +193,8 @@ def plan_levels(raw: dict, *, source: str = "<dict>", base_dir=".", ratio: float
     for k, level_strips in enumerate(strips):
         total = sum(level_strips.values())
         spacing = total0 / total if total > 0 else math.inf
-        settings = {"time.dt": float(f"{case.time.dt * spacing:.12g}"),
+        dt = case.time.dt * spacing     # written to 12 digits where that does not make it larger
+        settings = {"time.dt": min(float(f"{dt:.12g}"), dt),
                     "time.steps": max(1, math.ceil(case.time.steps / spacing - 1e-9))}
         for name, c in counts.items():
             for key, n in c.items():
@@ -501,6 +503,7 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
     if overwrite:
         clear_run(out)
     vary = {key: [lv.settings[key] for lv in levels] for key in levels[0].settings}
+    start = time.perf_counter()
     table = sweep(case, vary, out=out / LEVELS_FOLDER, settings=settings, zipped=True, client=client,
                   scheduler=scheduler, workers=workers, progress=progress)
     failed = [f"  {lv.words}: {row['error']} ({row['folder']})"
@@ -518,6 +521,7 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
     result = uncertainty_table(estimates, values, spacings)
     summary = dict(summaries[0])
     summary["uncertainty"] = _summary_entry(levels, table, summaries, estimates, out)
+    summary["uncertainty"]["wall_time_s"] = time.perf_counter() - start
     paths = [out / "summary.json", out / TABLE_FILE]
     write_json(summary, paths[0])
     atomic.write_text(paths[1], result.to_csv(index=False, float_format="%.10g"))
