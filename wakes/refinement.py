@@ -26,7 +26,11 @@ every body's summary (not the case's inputs, :data:`NOT_LOADS`)
 Richardson-extrapolated value, the observed order, the Grid Convergence
 Index band (Roache 1994, 1998; Celik et al. 2008; safety factor 1.25) and
 the convergence class (Stern et al. 2001); a load that does not converge
-monotonically gets no band, and the study says why.
+monotonically, or at an observed order above twice ``SCHEME_ORDER``, or
+whose levels differ by less than a noise floor (a rotor's thrust change
+from one revolution to the next, the treecode's tolerance, round-off),
+gets no band, and the study says why. :func:`sweep_study` does the same
+for every point of a sweep.
 
 The study folder ``OUT`` holds ``summary.json`` (the finest level's, with
 an ``uncertainty`` entry), ``uncertainty.csv`` (:func:`uncertainty_table`),
@@ -69,9 +73,6 @@ MIN_RATIO = 1.3                  # Celik et al. (2008) recommend r > 1.3
 MAX_RATIO = 2.0                  # our bound: coarser levels soon leave the asymptotic range
 LEVELS = 3
 LEVELS_FOLDER = "levels"
-TABLE_FILE = STUDY_TABLE
-FIGURE_FILE = STUDY_FIGURE
-#: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
 #: Observed orders are accepted from 0 to twice this (ours): the strips converge at second order
 #: at best (cosine spacing, section points at the angle midpoints) and the time march at first, so a
 #: higher observed order says the levels are not in the asymptotic range (e.g. a sum of parts
@@ -82,6 +83,7 @@ SCHEME_ORDER = 2.0
 #: size over the levels, times a load, is the noise below which a difference between levels is not
 #: resolved (ours).
 PERIODIC_CHANGE = "thrust_change_last_revolution"
+#: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
 NOT_LOADS = frozenset({"revolutions", "averaged_steps", "solidity", "collective_deg", "pitch_075R_deg",
                        "thrust_change_last_revolution", "mu", "J", "tip_speed_ratio", "advance_ratio"})
 
@@ -522,14 +524,14 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
     summary = dict(summaries[0])
     summary["uncertainty"] = _summary_entry(levels, table, summaries, estimates, out)
     summary["uncertainty"]["wall_time_s"] = time.perf_counter() - start
-    paths = [out / "summary.json", out / TABLE_FILE]
+    paths = [out / "summary.json", out / STUDY_TABLE]
     write_json(summary, paths[0])
     atomic.write_text(paths[1], result.to_csv(index=False, float_format="%.10g"))
     if plots:
         fig = uncertainty_figure(result)
         if fig is not None:
             (out / "plots").mkdir(exist_ok=True)
-            paths.append(save_figure(fig, out / "plots" / FIGURE_FILE))
+            paths.append(save_figure(fig, out / "plots" / STUDY_FIGURE))
     record_files(out, paths)
     return Study(out, levels, result, summary, estimates)
 
