@@ -92,6 +92,7 @@ def test_outputs_hold_every_load_with_its_band(study):
     assert (out / "plots" / "uncertainty.png").is_file()
     levels = summary["uncertainty"]["levels"]
     assert [lv["level"] for lv in levels] == [1, 2, 3]
+    assert summary["uncertainty"]["wall_time_s"] > 0
     for lv in levels:   # every level's own run folder is kept inside the study folder
         assert lv["folder"].startswith(LEVELS_FOLDER + "/")
         assert (out / lv["folder"] / "loads.csv").is_file()
@@ -228,3 +229,22 @@ def test_a_failed_level_is_named_and_the_levels_are_kept(tmp_path):
                 "time.steps=3", f"bodies.wing.airfoil.polar={polar}", "freestream.angle_of_attack=25"])
     assert len(list((tmp_path / "f" / LEVELS_FOLDER).glob("000*"))) == 3
     assert not (tmp_path / "f" / "summary.json").exists()
+
+
+def test_wakes_plot_redraws_a_study_folders_figure(study, tmp_path, capsys):
+    assert main(["plot", str(study.out), "--out", str(tmp_path / "p")]) == 0
+    assert capsys.readouterr().out.strip() == str(tmp_path / "p" / "uncertainty.png")
+
+
+def test_levels_of_a_lattice_wing_with_particles_and_of_a_case_at_the_turn_limit():
+    """A vortex lattice coarsens its chordwise panels too, a particle wake its near-wake rows; the
+    propeller of cases/propeller-wing.toml turns 15 deg a step, so its coarsest level's 30 deg (the
+    limit) is accepted, not lost to rounding."""
+    raw = read_toml(CASES / "survey-glider.toml")
+    raw["bodies"]["wing"].update(model="vortex-lattice", chordwise_panels=4)
+    raw["wake"].update(model="particles", near_wake_steps=8)
+    levels = plan_levels(raw, base_dir=CASES)
+    assert [lv.settings["bodies.wing.chordwise_panels"] for lv in levels] == [4, 3, 2]
+    assert [lv.settings["wake.near_wake_steps"] for lv in levels] == [8, 6, 4]
+    levels = plan_levels(read_toml(CASES / "propeller-wing.toml"), base_dir=CASES)
+    assert levels[2].case.time.dt == pytest.approx(2 * levels[0].case.time.dt, rel=1e-15)

@@ -238,7 +238,8 @@ def _study(args, max_memory) -> int:
         return 1
     if not args.quiet:
         print(f"{study.levels[0].case.title}: refinement study, {len(study.levels)} levels, ratios "
-              f"{ratio_words(study.levels)} (GCI band: safety factor 1.25, Roache 1998)")
+              f"{ratio_words(study.levels)}, in {study.summary['uncertainty']['wall_time_s']:.1f} s "
+              "(GCI band: safety factor 1.25, Roache 1998)")
         print("\n".join(level_lines(study.levels)))
         print("\n".join(result_lines(study.table)))
         print(f"results in {out}/ (the levels' run folders in {out / LEVELS_FOLDER}/)")

@@ -38,6 +38,7 @@ import os
 from pathlib import Path
 
 import numpy as np
+import pandas as pd
 
 from .case import BODY_TYPES, Case
 from .case.schema import public_fields
@@ -85,6 +86,9 @@ LOAD_PANELS = {
 FALLBACK_PANELS = ("lift_N", "thrust_N", "power_W", "torque_Nm")
 #: Coefficients a sweep figure draws against the first varied key, in this order, at most four.
 SWEEP_PANELS = ("CT", "CP", "FM", "efficiency", "CL", "CD", "CDi", "span_efficiency")
+#: A refinement study's table and figure (wakes.refinement); ``plot_run`` redraws the figure of a study folder.
+STUDY_TABLE = "uncertainty.csv"
+STUDY_FIGURE = "uncertainty.png"
 #: Loads an uncertainty figure draws against refinement, in this order, at most four.
 UNCERTAINTY_PANELS = ("CT", "CP", "FM", "efficiency", "CL", "CDi", "CD", "CM")
 
@@ -404,7 +408,9 @@ def plot_run(run_dir: str | os.PathLike, *, out: str | os.PathLike | None = None
     Parameters
     ----------
     run_dir : path-like
-        A run folder written by ``wakes run``.
+        A run folder written by ``wakes run``, or the folder of a refinement
+        study (``wakes run --uncertainty``), whose one figure is
+        ``uncertainty.png`` (:func:`uncertainty_figure`).
     out : path-like, optional
         Folder for the PNG files (default: ``run_dir/plots``).
     overwrite : bool
@@ -426,8 +432,14 @@ def plot_run(run_dir: str | os.PathLike, *, out: str | os.PathLike | None = None
     >>> [p.name for p in paths]
     ['loads.png', 'span_loading.png', 'wake_3d.png']
     """
-    run = read_run(run_dir)
-    folder = Path(out) if out is not None else run.path / "plots"
+    study = Path(run_dir) / STUDY_TABLE
+    if study.is_file() and not (Path(run_dir) / "loads.csv").is_file():   # a refinement study's folder
+        figs = {STUDY_FIGURE: uncertainty_figure(pd.read_csv(study))}
+        path = Path(run_dir)
+    else:
+        run = read_run(run_dir)
+        figs, path = None, run.path
+    folder = Path(out) if out is not None else path / "plots"
     if folder.exists() and not folder.is_dir():
         raise InputError(f"plot folder {folder}: exists and is not a folder")
     existing = sorted(folder.glob("*.png")) if folder.is_dir() else []
@@ -436,7 +448,8 @@ def plot_run(run_dir: str | os.PathLike, *, out: str | os.PathLike | None = None
                          f"{' and others' if len(existing) > 1 else ''}; pass --overwrite to redraw "
                          "or --out to draw elsewhere")
     folder.mkdir(parents=True, exist_ok=True)
-    return [save_figure(fig, folder / name) for name, fig in figures(run).items()]
+    figs = figures(run) if figs is None else {k: f for k, f in figs.items() if f is not None}
+    return [save_figure(fig, folder / name) for name, fig in figs.items()]
 
 
 def key_label(key: str, case: dict | None = None) -> str:

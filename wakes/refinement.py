@@ -26,7 +26,11 @@ every body's summary (not the case's inputs, :data:`NOT_LOADS`)
 Richardson-extrapolated value, the observed order, the Grid Convergence
 Index band (Roache 1994, 1998; Celik et al. 2008; safety factor 1.25) and
 the convergence class (Stern et al. 2001); a load that does not converge
-monotonically gets no band, and the study says why.
+monotonically, or at an observed order above twice ``SCHEME_ORDER``, or
+whose levels differ by less than a noise floor (a rotor's thrust change
+from one revolution to the next, the treecode's tolerance, round-off),
+gets no band, and the study says why. :func:`sweep_study` does the same
+for every point of a sweep.
 
 The study folder ``OUT`` holds ``summary.json`` (the finest level's, with
 an ``uncertainty`` entry), ``uncertainty.csv`` (:func:`uncertainty_table`),
@@ -45,6 +49,7 @@ import copy
 import json
 import math
 import os
+import time
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -58,7 +63,7 @@ from .estimate import estimate_case
 from .io import atomic
 from .io.runfolder import clear_run, record_files
 from .io.tables import write_json
-from .plots import UNCERTAINTY_PANELS, save_figure, sweep_figure, uncertainty_figure
+from .plots import STUDY_FIGURE, STUDY_TABLE, UNCERTAINTY_PANELS, save_figure, sweep_figure, uncertainty_figure
 from .run import _unit, check_new_folder
 from .sweep import plan, sweep
 from .uncertainty import MONOTONIC, ROUND_OFF, SAFETY_FACTOR_THREE_LEVELS, refinement_estimate
@@ -68,9 +73,6 @@ MIN_RATIO = 1.3                  # Celik et al. (2008) recommend r > 1.3
 MAX_RATIO = 2.0                  # our bound: coarser levels soon leave the asymptotic range
 LEVELS = 3
 LEVELS_FOLDER = "levels"
-TABLE_FILE = "uncertainty.csv"
-FIGURE_FILE = "uncertainty.png"
-#: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
 #: Observed orders are accepted from 0 to twice this (ours): the strips converge at second order
 #: at best (cosine spacing, section points at the angle midpoints) and the time march at first, so a
 #: higher observed order says the levels are not in the asymptotic range (e.g. a sum of parts
@@ -81,6 +83,7 @@ SCHEME_ORDER = 2.0
 #: size over the levels, times a load, is the noise below which a difference between levels is not
 #: resolved (ours).
 PERIODIC_CHANGE = "thrust_change_last_revolution"
+#: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
 NOT_LOADS = frozenset({"revolutions", "averaged_steps", "solidity", "collective_deg", "pitch_075R_deg",
                        "thrust_change_last_revolution", "mu", "J", "tip_speed_ratio", "advance_ratio"})
 
@@ -192,7 +195,8 @@ def plan_levels(raw: dict, *, source: str = "<dict>", base_dir=".", ratio: float
     for k, level_strips in enumerate(strips):
         total = sum(level_strips.values())
         spacing = total0 / total if total > 0 else math.inf
-        settings = {"time.dt": float(f"{case.time.dt * spacing:.12g}"),
+        dt = case.time.dt * spacing     # written to 12 digits where that does not make it larger
+        settings = {"time.dt": min(float(f"{dt:.12g}"), dt),
                     "time.steps": max(1, math.ceil(case.time.steps / spacing - 1e-9))}
         for name, c in counts.items():
             for key, n in c.items():
@@ -501,6 +505,7 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
     if overwrite:
         clear_run(out)
     vary = {key: [lv.settings[key] for lv in levels] for key in levels[0].settings}
+    start = time.perf_counter()
     table = sweep(case, vary, out=out / LEVELS_FOLDER, settings=settings, zipped=True, client=client,
                   scheduler=scheduler, workers=workers, progress=progress)
     failed = [f"  {lv.words}: {row['error']} ({row['folder']})"
@@ -518,14 +523,15 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
     result = uncertainty_table(estimates, values, spacings)
     summary = dict(summaries[0])
     summary["uncertainty"] = _summary_entry(levels, table, summaries, estimates, out)
-    paths = [out / "summary.json", out / TABLE_FILE]
+    summary["uncertainty"]["wall_time_s"] = time.perf_counter() - start
+    paths = [out / "summary.json", out / STUDY_TABLE]
     write_json(summary, paths[0])
     atomic.write_text(paths[1], result.to_csv(index=False, float_format="%.10g"))
     if plots:
         fig = uncertainty_figure(result)
         if fig is not None:
             (out / "plots").mkdir(exist_ok=True)
-            paths.append(save_figure(fig, out / "plots" / FIGURE_FILE))
+            paths.append(save_figure(fig, out / "plots" / STUDY_FIGURE))
     record_files(out, paths)
     return Study(out, levels, result, summary, estimates)
 
