@@ -172,6 +172,9 @@ def _parser() -> argparse.ArgumentParser:
                                         "closed forms and published values. Exit status 1 if "
                                         "any check fails.")
     verify.add_argument("--csv", metavar="FILE", help="also write the table as CSV")
+    verify.add_argument("--full", action="store_true",
+                        help="also run the wing checks (swept and tapered wings, span efficiency, "
+                             "ground effect; about a minute on one core)")
 
     sweep = sub.add_parser("sweep", help="run a case over a grid of values on Dask workers",
                            description="Run CASE once per point of a grid of values and write "
@@ -409,10 +412,11 @@ def _verify(args) -> int:
 
     if args.csv:
         writable_path("--csv", args.csv, folder=False)
-    table = run_checks()
+    progress = (lambda name: print(f"running {name} ...", file=sys.stderr, flush=True)) if args.full else None
+    table = run_checks(full=args.full, progress=progress)
     shown = table.assign(error=table["error"].map(lambda e: f"{e:.1e}"),
                          passed=table["passed"].map({True: "pass", False: "FAIL"}))
-    with pd.option_context("display.max_colwidth", 70, "display.width", 250):
+    with pd.option_context("display.max_colwidth", 90, "display.width", 300):
         print(shown.to_string(index=False))
     if args.csv:
         write_text(args.csv, table.to_csv(index=False))
