@@ -19,7 +19,7 @@ import numpy as np
 import pandas as pd
 import pytest
 from wakes import exact
-from wakes.case import read_toml
+from wakes.case import load_case_with, read_toml
 from wakes.cli import main
 from wakes.errors import CaseError, InputError
 from wakes.refinement import (
@@ -61,6 +61,8 @@ def test_levels_coarsen_strips_and_time_step_together(study):
         length = lv.settings["time.steps"] * lv.settings["time.dt"]
         assert 10.0 - 1e-9 <= length < 10.0 + lv.settings["time.dt"]
     assert [lv.spacing for lv in study.levels] == [1.0, 1.5, 2.0]
+    # the finest level is the case as given, to the last digit of every resolved key
+    assert study.levels[0].case.to_toml() == load_case_with(WING, SMALL).to_toml()
 
 
 @pytest.mark.parametrize("load, exact_value, rel", [("CL", CL_PRANDTL, 1e-3), ("CDi", CDI_PRANDTL, 2e-3)])

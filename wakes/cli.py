@@ -43,6 +43,7 @@ import sys
 import warnings
 from pathlib import Path
 
+import numba
 import pandas as pd
 
 from ._validate import readable_file, writable_path
@@ -321,9 +322,11 @@ def _check(args) -> int:
         print(f"  {quantity.ljust(width)}  {value}")
     if args.uncertainty:
         levels, estimates = prepare(args.case, settings=args.set, ratio=args.uncertainty_ratio)
-        print(f"refinement study: {len(levels)} levels, ratios {ratio_words(levels)}; each fits the "
-              "memory budget with the levels running at once on this machine:")
-        print("\n".join(level_lines(levels, estimates)))
+        print(f"refinement study: {len(levels)} levels, ratios {ratio_words(levels)}; they fit the "
+              "memory budget running at once on this machine; the study takes about its finest "
+              "level's time:")
+        one_thread = est.pair_rate_per_s / numba.get_num_threads()   # a worker runs on one thread
+        print("\n".join(level_lines(levels, estimates, one_thread)))
     return 0
 
 

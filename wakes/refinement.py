@@ -59,7 +59,7 @@ import pandas as pd
 from .budget import budget_bytes
 from .case import Case, apply_settings, parse_case, read_toml
 from .errors import CaseError, InputError, MemoryBudgetError, WakesError
-from .estimate import estimate_case
+from .estimate import duration, estimate_case
 from .io import atomic
 from .io.runfolder import clear_run, record_files
 from .io.tables import write_json
@@ -195,8 +195,7 @@ def plan_levels(raw: dict, *, source: str = "<dict>", base_dir=".", ratio: float
     for k, level_strips in enumerate(strips):
         total = sum(level_strips.values())
         spacing = total0 / total if total > 0 else math.inf
-        dt = case.time.dt * spacing     # written to 12 digits where that does not make it larger
-        settings = {"time.dt": min(float(f"{dt:.12g}"), dt),
+        settings = {"time.dt": case.time.dt * spacing,     # exactly the case's at the finest level
                     "time.steps": max(1, math.ceil(case.time.steps / spacing - 1e-9))}
         for name, c in counts.items():
             for key, n in c.items():
@@ -249,8 +248,18 @@ def check_levels_budget(levels: list[Level], max_memory: int | None = None, at_o
     return estimates
 
 
-def level_lines(levels: list[Level], estimates=None) -> list[str]:
-    """The levels as lines for the terminal: spacing and the keys each sets (and its estimate)."""
+def level_lines(levels: list[Level], estimates=None, pair_rate: float | None = None) -> list[str]:
+    """The levels as lines for the terminal: the keys each sets (and its estimate).
+
+    Parameters
+    ----------
+    levels : list of Level
+    estimates : list of wakes.estimate.Estimate, optional
+        Each level's, made with ``pair_rate=1`` (:func:`check_levels_budget`):
+        memory and weighted pairs.
+    pair_rate : float, optional
+        Pairs per second of one worker thread [1/s]: adds each level's run time.
+    """
     lines = []
     for i, lv in enumerate(levels):
         sets = ", ".join(f"{k.split('.')[-1]} {v:g}" for k, v in lv.settings.items())
@@ -258,6 +267,8 @@ def level_lines(levels: list[Level], estimates=None) -> list[str]:
         if estimates is not None:
             e = estimates[i]
             more = f"; about {e.memory_mb:,.0f} MB, {e.pair_evaluations:.3g} Biot-Savart pairs"
+            if pair_rate:
+                more += f", about {duration(e.run_time_s / pair_rate)} on one worker"
         lines.append(f"  {lv.words}: {sets}{more}")
     return lines
 
