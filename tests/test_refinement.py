@@ -210,6 +210,10 @@ def test_a_sweep_point_too_coarse_to_coarsen_stops_the_sweep_before_it_runs(tmp_
     with pytest.raises(CaseError, match=r"sweep point 0 \(bodies.wing.spanwise_panels=3\).*level 3 \(coarsest"):
         sweep_study(WING, {"bodies.wing.spanwise_panels": [3, 12]}, out=tmp_path / "s")
     assert not (tmp_path / "s").exists()
+    args = ["sweep", str(WING), "--vary", "bodies.wing.spanwise_panels=3,12", "--uncertainty",
+            "--out", str(tmp_path / "c")]
+    assert main(args) == 2
+    assert not (tmp_path / "c").exists()
 
 
 def test_differences_within_the_treecode_tolerance_are_unresolved():
