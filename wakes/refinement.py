@@ -80,9 +80,14 @@ LEVELS_FOLDER = "levels"
 SCHEME_ORDER = 2.0
 #: A body's relative change of its loads over its last revolution (rotors): how far the time march
 #: is from its periodic state, an iteration error in the sense of Celik et al. (2008). Its largest
-#: size over the levels, times a load, is the noise below which a difference between levels is not
-#: resolved (ours).
+#: size over the levels, times a load, is the noise nu of each level's value (ours).
 PERIODIC_CHANGE = "thrust_change_last_revolution"
+#: How well the observed order must be known for a band, as the issue's checks ask of it (absolute).
+#: Values uncertain by nu make each difference uncertain by 2 nu, and p = ln(e32/e21)/ln r then by
+#: up to 4 nu / (|e21| ln r) (ours, derived, with e21 the smaller difference); so the differences
+#: between levels must exceed 4 nu / (ORDER_ACCURACY ln r), about 38 nu at r = sqrt 2, or they are
+#: "unresolved".
+ORDER_ACCURACY = 0.3
 #: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
 NOT_LOADS = frozenset({"revolutions", "averaged_steps", "solidity", "collective_deg", "pitch_075R_deg",
                        "thrust_change_last_revolution", "mu", "J", "tip_speed_ratio", "advance_ratio"})
@@ -289,14 +294,14 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         ``{body: {load: RefinementEstimate}}`` for every numeric summary
         figure not in :data:`NOT_LOADS`, finite at every level and not the
         same at every level (such a figure is an input of the case). Where a
-        body reports :data:`PERIODIC_CHANGE`, a load's differences between
-        levels must exceed the largest such change times the load's size,
-        else they are ``"unresolved"``, and so when the levels' treecode
-        tolerance (``[wake] induction_tolerance`` where ``induction`` may
-        choose the tree, from ``summary["case"]``) is larger; so must they
-        exceed round-off
-        (``ROUND_OFF``) of the body's largest figure in the same unit (a
-        hover rotor's hub force, zero by symmetry, against its thrust).
+        body reports :data:`PERIODIC_CHANGE`, each level's value is taken
+        as uncertain by the largest such change times the load's size (or by
+        the levels' treecode tolerance, ``[wake] induction_tolerance`` where
+        ``induction`` may choose the tree, read from ``summary["case"]``, if
+        larger; at least by round-off, ``ROUND_OFF``, of the body's largest
+        figure in the same unit: a hover rotor's hub force, zero by
+        symmetry, against its thrust); differences between levels within
+        4 / (``ORDER_ACCURACY`` ln r) times that are ``"unresolved"``.
         An observed order above twice ``SCHEME_ORDER`` gets no band.
 
     Examples
@@ -306,6 +311,8 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
     >>> list(est), round(est["CL"].order, 6), round(est["CL"].extrapolated, 9)
     (['CL'], 2.0, 0.5)
     """
+    h = np.sort(np.asarray(spacings, dtype=np.float64))
+    margin = 4.0 / (ORDER_ACCURACY * float(np.log(h[1:] / h[:-1]).min()))
     out = {}
     for body, figures in summaries[0]["bodies"].items():
         out[body] = {}
@@ -324,7 +331,7 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
             values = [s["bodies"][body].get(key) for s in summaries]
             if any(v is None or not math.isfinite(v) for v in values) or len(set(values)) == 1:
                 continue
-            noise = max(drift * max(map(abs, values)), ROUND_OFF * scale[_unit(key)[1]])
+            noise = margin * max(drift * max(map(abs, values)), ROUND_OFF * scale[_unit(key)[1]])
             out[body][key] = refinement_estimate(values, spacings, noise=noise, expected_order=SCHEME_ORDER,
                                                  order_tolerance=1.0)
     return out
