@@ -48,6 +48,7 @@ import pandas as pd
 
 from ._validate import readable_file, writable_path
 from ._version import __version__
+from .aero.plausibility import case_flags
 from .budget import check_budget, parse_size
 from .case import MAX_DT, MIN_DT, SCHEDULER_ADDRESS, load_case_with
 from .errors import MemoryBudgetError, WakesError
@@ -320,6 +321,10 @@ def _check(args) -> int:
     print(f"{case.title or args.case}: case is valid; estimate (no run):")
     for quantity, value in est.table():
         print(f"  {quantity.ljust(width)}  {value}")
+    lines = warning_lines({"warnings": [f.as_dict() for f in case_flags(case)]})
+    if lines:
+        print("before running, from the case alone: " + lines[0])
+        print("\n".join(lines[1:]))
     if args.uncertainty:
         levels, estimates = prepare(args.case, settings=args.set, ratio=args.uncertainty_ratio)
         print(f"refinement study: {len(levels)} levels, ratios {ratio_words(levels)}; they fit the "
