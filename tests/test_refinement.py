@@ -101,6 +101,17 @@ def test_outputs_hold_every_load_with_its_band(study):
     assert "revolutions" not in table["quantity"].tolist()
 
 
+def test_the_study_summary_names_the_polar_relative_to_the_study_folder(tmp_path):
+    """The demo glider reads a polar table; the study folder's summary names the finest level's copy."""
+    with (distributed.LocalCluster(processes=False, n_workers=1, threads_per_worker=1,
+                                   dashboard_address=None) as cluster,
+          distributed.Client(cluster) as client):
+        study = refinement_study(CASES / "survey-glider.toml", tmp_path / "g", client=client, plots=False,
+                                 settings=["time.steps=5"])
+    polar = study.summary["case"]["bodies"]["wing"]["airfoil"]["polar"]
+    assert polar.startswith(LEVELS_FOLDER + "/0000_") and (study.out / polar).is_file()
+
+
 def test_oscillating_and_diverging_loads_get_no_band():
     """Synthetic series (ours): differences that change sign, and that grow with refinement."""
     h = [1.0, 1.5, 2.25]

@@ -540,6 +540,7 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
               for body, loads in estimates.items()}
     result = uncertainty_table(estimates, values, spacings)
     summary = dict(summaries[0])
+    summary["case"] = _case_from(summary.get("case", {}), Path(table["folder"].iloc[0]), out)
     summary["uncertainty"] = _summary_entry(levels, table, summaries, estimates, out)
     summary["uncertainty"]["wall_time_s"] = time.perf_counter() - start
     paths = [out / "summary.json", out / STUDY_TABLE]
@@ -552,6 +553,18 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
             paths.append(save_figure(fig, out / "plots" / STUDY_FIGURE))
     record_files(out, paths)
     return Study(out, levels, result, summary, estimates)
+
+
+def _case_from(case: dict, level: Path, out: Path) -> dict:
+    """The finest level's case as its summary holds it, with the polar tables it names relative to
+    its folder named relative to the study folder (where they are: the level folder's copies)."""
+    case = copy.deepcopy(case)
+    where = level.resolve().relative_to(out.resolve())
+    for body in case.get("bodies", {}).values():
+        airfoil = body.get("airfoil", {})
+        if isinstance(airfoil.get("polar"), str) and not Path(airfoil["polar"]).is_absolute():
+            airfoil["polar"] = (where / airfoil["polar"]).as_posix()
+    return case
 
 
 def _summary_entry(levels, table, summaries, estimates, out: Path) -> dict:
