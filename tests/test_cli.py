@@ -102,6 +102,21 @@ def test_check_refuses_what_run_would_refuse(tmp_path, capsys):
     assert err.count("\n") == 1 and "bodies.wing.span must be at most 10000" in err, err
 
 
+def test_check_warns_of_an_advance_ratio_above_one(tmp_path, capsys):
+    """The freestream across a rotor's axis faster than its tips: 'wakes check' accepts the case
+    and names the plausibility warning before any run."""
+    case = tmp_path / "case.toml"
+    case.write_text('[freestream]\nspeed = 70.0\n[bodies.rotor]\ntype = "rotor"\nblades = 2\nradius = 0.5\n'
+                    'root_cutout = 0.1\nchord = 0.05\nrpm = 1200.0\n')    # tip speed 62.8 m/s: mu = 1.11
+    assert main(["check", str(case), "--quiet"]) == 0
+    out = capsys.readouterr().out
+    assert "before running, from the case alone: 1 plausibility warning:" in out
+    assert re.search(r"! advance-ratio-high: rotor: advance ratio mu = 1\.11", out), out
+    case.write_text(case.read_text().replace("speed = 70.0", "speed = 50.0"))
+    assert main(["check", str(case), "--quiet"]) == 0
+    assert "plausibility" not in capsys.readouterr().out
+
+
 def test_console_script_has_no_traceback(tmp_path):
     case = tmp_path / "case.toml"
     case.write_text(TINY.replace("spacing", "x").replace("chord = 0.5", "chord = 0.5\nspacin = 1"))

@@ -19,7 +19,7 @@ import numpy as np
 import pandas as pd
 import pytest
 from wakes import exact
-from wakes.case import read_toml
+from wakes.case import load_case_with, read_toml
 from wakes.cli import main
 from wakes.errors import CaseError, InputError
 from wakes.refinement import (
@@ -61,6 +61,8 @@ def test_levels_coarsen_strips_and_time_step_together(study):
         length = lv.settings["time.steps"] * lv.settings["time.dt"]
         assert 10.0 - 1e-9 <= length < 10.0 + lv.settings["time.dt"]
     assert [lv.spacing for lv in study.levels] == [1.0, 1.5, 2.0]
+    # the finest level is the case as given, to the last digit of every resolved key
+    assert study.levels[0].case.to_toml() == load_case_with(WING, SMALL).to_toml()
 
 
 @pytest.mark.parametrize("load, exact_value, rel", [("CL", CL_PRANDTL, 1e-3), ("CDi", CDI_PRANDTL, 2e-3)])
@@ -97,6 +99,17 @@ def test_outputs_hold_every_load_with_its_band(study):
         assert lv["folder"].startswith(LEVELS_FOLDER + "/")
         assert (out / lv["folder"] / "loads.csv").is_file()
     assert "revolutions" not in table["quantity"].tolist()
+
+
+def test_the_study_summary_names_the_polar_relative_to_the_study_folder(tmp_path):
+    """The demo glider reads a polar table; the study folder's summary names the finest level's copy."""
+    with (distributed.LocalCluster(processes=False, n_workers=1, threads_per_worker=1,
+                                   dashboard_address=None) as cluster,
+          distributed.Client(cluster) as client):
+        study = refinement_study(CASES / "survey-glider.toml", tmp_path / "g", client=client, plots=False,
+                                 settings=["time.steps=5"])
+    polar = study.summary["case"]["bodies"]["wing"]["airfoil"]["polar"]
+    assert polar.startswith(LEVELS_FOLDER + "/0000_") and (study.out / polar).is_file()
 
 
 def test_oscillating_and_diverging_loads_get_no_band():
@@ -170,14 +183,17 @@ def test_a_study_run_again_reuses_its_finished_levels(study, tmp_path):
 
 
 def test_differences_within_a_rotors_revolution_to_revolution_change_are_unresolved():
-    """Synthetic (ours): C_T converging at second order by 0.1 % steps while the thrust still
-    changes by 1 % from one revolution to the next: the levels' differences are not resolved."""
+    """Synthetic (ours): C_T converging at second order, the levels 0.125 % and 0.28 % apart, while
+    the thrust still changes by 0.1 % from one revolution to the next: to know the order within 0.3
+    at r = 1.5 the differences must exceed 4 / (0.3 ln 1.5) = 33 times that; with a change of 1e-5
+    (33 times: 0.033 %) they do."""
     h = [1.0, 1.5, 2.25]
     summaries = [{"bodies": {"r": {"CT": 0.005 * (1 + 1e-3 * hk ** 2), PERIODIC_CHANGE: change}}}
-                 for hk, change in zip(h, (0.01, -0.002, 0.0))]
-    assert estimate_loads(summaries, h)["r"]["CT"].convergence == UNRESOLVED
+                 for hk, change in zip(h, (1e-3, -2e-4, 0.0))]
+    est = estimate_loads(summaries, h)["r"]["CT"]
+    assert est.convergence == UNRESOLVED and est.uncertainty is None
     for s in summaries:
-        s["bodies"]["r"][PERIODIC_CHANGE] = 1e-4
+        s["bodies"]["r"][PERIODIC_CHANGE] = 1e-5
     assert estimate_loads(summaries, h)["r"]["CT"].convergence == MONOTONIC
 
 
@@ -205,6 +221,10 @@ def test_a_sweep_point_too_coarse_to_coarsen_stops_the_sweep_before_it_runs(tmp_
     with pytest.raises(CaseError, match=r"sweep point 0 \(bodies.wing.spanwise_panels=3\).*level 3 \(coarsest"):
         sweep_study(WING, {"bodies.wing.spanwise_panels": [3, 12]}, out=tmp_path / "s")
     assert not (tmp_path / "s").exists()
+    args = ["sweep", str(WING), "--vary", "bodies.wing.spanwise_panels=3,12", "--uncertainty",
+            "--out", str(tmp_path / "c")]
+    assert main(args) == 2
+    assert not (tmp_path / "c").exists()
 
 
 def test_differences_within_the_treecode_tolerance_are_unresolved():

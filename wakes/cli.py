@@ -43,10 +43,12 @@ import sys
 import warnings
 from pathlib import Path
 
+import numba
 import pandas as pd
 
 from ._validate import readable_file, writable_path
 from ._version import __version__
+from .aero.plausibility import case_flags
 from .budget import check_budget, parse_size
 from .case import MAX_DT, MIN_DT, SCHEDULER_ADDRESS, load_case_with
 from .errors import MemoryBudgetError, WakesError
@@ -322,11 +324,17 @@ def _check(args) -> int:
     print(f"{case.title or args.case}: case is valid; estimate (no run):")
     for quantity, value in est.table():
         print(f"  {quantity.ljust(width)}  {value}")
+    lines = warning_lines({"warnings": [f.as_dict() for f in case_flags(case)]})
+    if lines:
+        print("before running, from the case alone: " + lines[0])
+        print("\n".join(lines[1:]))
     if args.uncertainty:
         levels, estimates = prepare(args.case, settings=args.set, ratio=args.uncertainty_ratio)
-        print(f"refinement study: {len(levels)} levels, ratios {ratio_words(levels)}; each fits the "
-              "memory budget with the levels running at once on this machine:")
-        print("\n".join(level_lines(levels, estimates)))
+        print(f"refinement study: {len(levels)} levels, ratios {ratio_words(levels)}; they fit the "
+              "memory budget running at once on this machine; the study takes about its finest "
+              "level's time:")
+        one_thread = est.pair_rate_per_s / numba.get_num_threads()   # a worker runs on one thread
+        print("\n".join(level_lines(levels, estimates, one_thread)))
     return 0
 
 

@@ -124,11 +124,12 @@ class Estimate:
                 ("final wake", f"{self.final_segments:,} segments, {self.final_particles:,} particles"),
                 ("memory", f"about {self.memory_mb:,.0f} MB"),
                 ("Biot-Savart pairs", f"{self.pair_evaluations:.3g} (direct sum)"),
-                ("run time", f"about {_duration(self.run_time_s)} (direct sum; "
+                ("run time", f"about {duration(self.run_time_s)} (direct sum; "
                              f"yardstick {self.pair_rate_per_s:.3g} pairs/s measured here)")]
 
 
-def _duration(s: float) -> str:
+def duration(s: float) -> str:
+    """A time in words for the terminal: seconds, minutes or hours."""
     if s < 90:
         return f"{s:.0f} s"
     if s < 5400:

@@ -59,7 +59,7 @@ import pandas as pd
 from .budget import budget_bytes
 from .case import Case, apply_settings, parse_case, read_toml
 from .errors import CaseError, InputError, MemoryBudgetError, WakesError
-from .estimate import estimate_case
+from .estimate import duration, estimate_case
 from .io import atomic
 from .io.runfolder import clear_run, record_files
 from .io.tables import write_json
@@ -80,9 +80,14 @@ LEVELS_FOLDER = "levels"
 SCHEME_ORDER = 2.0
 #: A body's relative change of its loads over its last revolution (rotors): how far the time march
 #: is from its periodic state, an iteration error in the sense of Celik et al. (2008). Its largest
-#: size over the levels, times a load, is the noise below which a difference between levels is not
-#: resolved (ours).
+#: size over the levels, times a load, is the noise nu of each level's value (ours).
 PERIODIC_CHANGE = "thrust_change_last_revolution"
+#: How well the observed order must be known for a band, as the issue's checks ask of it (absolute).
+#: Values uncertain by nu make each difference uncertain by 2 nu, and p = ln(e32/e21)/ln r then by
+#: up to 4 nu / (|e21| ln r) (ours, derived, with e21 the smaller difference); so the differences
+#: between levels must exceed 4 nu / (ORDER_ACCURACY ln r), about 38 nu at r = sqrt 2, or they are
+#: "unresolved".
+ORDER_ACCURACY = 0.3
 #: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
 NOT_LOADS = frozenset({"revolutions", "averaged_steps", "solidity", "collective_deg", "pitch_075R_deg",
                        "thrust_change_last_revolution", "mu", "J", "tip_speed_ratio", "advance_ratio"})
@@ -195,8 +200,7 @@ def plan_levels(raw: dict, *, source: str = "<dict>", base_dir=".", ratio: float
     for k, level_strips in enumerate(strips):
         total = sum(level_strips.values())
         spacing = total0 / total if total > 0 else math.inf
-        dt = case.time.dt * spacing     # written to 12 digits where that does not make it larger
-        settings = {"time.dt": min(float(f"{dt:.12g}"), dt),
+        settings = {"time.dt": case.time.dt * spacing,     # exactly the case's at the finest level
                     "time.steps": max(1, math.ceil(case.time.steps / spacing - 1e-9))}
         for name, c in counts.items():
             for key, n in c.items():
@@ -249,8 +253,18 @@ def check_levels_budget(levels: list[Level], max_memory: int | None = None, at_o
     return estimates
 
 
-def level_lines(levels: list[Level], estimates=None) -> list[str]:
-    """The levels as lines for the terminal: spacing and the keys each sets (and its estimate)."""
+def level_lines(levels: list[Level], estimates=None, pair_rate: float | None = None) -> list[str]:
+    """The levels as lines for the terminal: the keys each sets (and its estimate).
+
+    Parameters
+    ----------
+    levels : list of Level
+    estimates : list of wakes.estimate.Estimate, optional
+        Each level's, made with ``pair_rate=1`` (:func:`check_levels_budget`):
+        memory and weighted pairs.
+    pair_rate : float, optional
+        Pairs per second of one worker thread [1/s]: adds each level's run time.
+    """
     lines = []
     for i, lv in enumerate(levels):
         sets = ", ".join(f"{k.split('.')[-1]} {v:g}" for k, v in lv.settings.items())
@@ -258,6 +272,8 @@ def level_lines(levels: list[Level], estimates=None) -> list[str]:
         if estimates is not None:
             e = estimates[i]
             more = f"; about {e.memory_mb:,.0f} MB, {e.pair_evaluations:.3g} Biot-Savart pairs"
+            if pair_rate:
+                more += f", about {duration(e.run_time_s / pair_rate)} on one worker"
         lines.append(f"  {lv.words}: {sets}{more}")
     return lines
 
@@ -278,14 +294,14 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         ``{body: {load: RefinementEstimate}}`` for every numeric summary
         figure not in :data:`NOT_LOADS`, finite at every level and not the
         same at every level (such a figure is an input of the case). Where a
-        body reports :data:`PERIODIC_CHANGE`, a load's differences between
-        levels must exceed the largest such change times the load's size,
-        else they are ``"unresolved"``, and so when the levels' treecode
-        tolerance (``[wake] induction_tolerance`` where ``induction`` may
-        choose the tree, from ``summary["case"]``) is larger; so must they
-        exceed round-off
-        (``ROUND_OFF``) of the body's largest figure in the same unit (a
-        hover rotor's hub force, zero by symmetry, against its thrust).
+        body reports :data:`PERIODIC_CHANGE`, each level's value is taken
+        as uncertain by the largest such change times the load's size (or by
+        the levels' treecode tolerance, ``[wake] induction_tolerance`` where
+        ``induction`` may choose the tree, read from ``summary["case"]``, if
+        larger; at least by round-off, ``ROUND_OFF``, of the body's largest
+        figure in the same unit: a hover rotor's hub force, zero by
+        symmetry, against its thrust); differences between levels within
+        4 / (``ORDER_ACCURACY`` ln r) times that are ``"unresolved"``.
         An observed order above twice ``SCHEME_ORDER`` gets no band.
 
     Examples
@@ -295,6 +311,8 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
     >>> list(est), round(est["CL"].order, 6), round(est["CL"].extrapolated, 9)
     (['CL'], 2.0, 0.5)
     """
+    h = np.sort(np.asarray(spacings, dtype=np.float64))
+    margin = 4.0 / (ORDER_ACCURACY * float(np.log(h[1:] / h[:-1]).min()))
     out = {}
     for body, figures in summaries[0]["bodies"].items():
         out[body] = {}
@@ -313,7 +331,7 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
             values = [s["bodies"][body].get(key) for s in summaries]
             if any(v is None or not math.isfinite(v) for v in values) or len(set(values)) == 1:
                 continue
-            noise = max(drift * max(map(abs, values)), ROUND_OFF * scale[_unit(key)[1]])
+            noise = margin * max(drift * max(map(abs, values)), ROUND_OFF * scale[_unit(key)[1]])
             out[body][key] = refinement_estimate(values, spacings, noise=noise, expected_order=SCHEME_ORDER,
                                                  order_tolerance=1.0)
     return out
@@ -522,6 +540,7 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
               for body, loads in estimates.items()}
     result = uncertainty_table(estimates, values, spacings)
     summary = dict(summaries[0])
+    summary["case"] = _case_from(summary.get("case", {}), Path(table["folder"].iloc[0]), out)
     summary["uncertainty"] = _summary_entry(levels, table, summaries, estimates, out)
     summary["uncertainty"]["wall_time_s"] = time.perf_counter() - start
     paths = [out / "summary.json", out / STUDY_TABLE]
@@ -534,6 +553,18 @@ def refinement_study(case, out, *, settings=(), ratio: float = DEFAULT_RATIO, cl
             paths.append(save_figure(fig, out / "plots" / STUDY_FIGURE))
     record_files(out, paths)
     return Study(out, levels, result, summary, estimates)
+
+
+def _case_from(case: dict, level: Path, out: Path) -> dict:
+    """The finest level's case as its summary holds it, with the polar tables it names relative to
+    its folder named relative to the study folder (where they are: the level folder's copies)."""
+    case = copy.deepcopy(case)
+    where = level.resolve().relative_to(out.resolve())
+    for body in case.get("bodies", {}).values():
+        airfoil = body.get("airfoil", {})
+        if isinstance(airfoil.get("polar"), str) and not Path(airfoil["polar"]).is_absolute():
+            airfoil["polar"] = (where / airfoil["polar"]).as_posix()
+    return case
 
 
 def _summary_entry(levels, table, summaries, estimates, out: Path) -> dict:

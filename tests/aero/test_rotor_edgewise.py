@@ -235,3 +235,19 @@ def test_edgewise_flight_tends_to_hover_as_mu_goes_to_zero(hover):
     assert s["power_W"] == pytest.approx(h["power_W"], rel=1e-3)
     for key, scale in (("H_force_N", 1.0), ("Y_force_N", 1.0), ("roll_moment_Nm", 0.5), ("pitch_moment_Nm", 0.5)):
         assert abs(s[key]) < 1e-4 * h["thrust_N"] * scale, key
+
+
+def test_flight_frame_forces(hover, edgewise):
+    """Drag, lift and side force along and across the freestream: in edgewise flight with the
+    shaft normal to the flow they are H, T and Y themselves; with the flow from 10 deg below the
+    disc the lift and drag are T and H turned by 10 deg; in hover there is no flight frame."""
+    s = edgewise[1]
+    assert s["drag_force_N"] == pytest.approx(s["H_force_N"], rel=1e-12, abs=1e-12 * s["thrust_N"])
+    assert s["lift_force_N"] == pytest.approx(s["thrust_N"], rel=1e-12)
+    assert s["side_force_N"] == pytest.approx(s["Y_force_N"], rel=1e-12, abs=1e-12 * s["thrust_N"])
+    tilted = stepped("", "[freestream]\nspeed = 8.0\nangle_of_attack = 10.0\n[time]\nsteps = 3\n")[0].iloc[-1]
+    c, sn = np.cos(np.radians(10.0)), np.sin(np.radians(10.0))
+    # the air comes from below at 10 deg: x_f = (c, 0, s) in the rotor frame (x_h, y_h, a)
+    assert tilted["drag_force_N"] == pytest.approx(c * tilted["H_force_N"] + sn * tilted["thrust_N"], rel=1e-9)
+    assert tilted["lift_force_N"] == pytest.approx(-sn * tilted["H_force_N"] + c * tilted["thrust_N"], rel=1e-9)
+    assert all(np.isnan(hover[1][k]) for k in ("drag_force_N", "lift_force_N", "side_force_N"))

@@ -57,7 +57,8 @@ Bounds (codes in brackets):
   (:func:`wake_deficit`; our criterion: there a hovering rotor's induced
   power is about 6 % low, see there).
 
-:func:`check_run` runs them all; :func:`body_polar_limits` (from a run's
+:func:`check_run` runs them all, :func:`case_flags` those that need no run
+(``wakes check`` prints them); :func:`body_polar_limits` (from a run's
 body models) or :func:`case_polar_limits` (from the case) give the polars'
 ranges.
 """
@@ -676,6 +677,18 @@ def check_wake_length(summary: dict, case) -> list[Flag]:
                             f"the loads are those of too little induced flow (raise {change})",
                             d, WAKE_DEFICIT_MAX, WAKE_SOURCE))
     return out
+
+
+def case_flags(case, *, speed_of_sound: float = ISA_SPEED_OF_SOUND) -> list[Flag]:
+    """The checks that need the case alone (tip Mach number, advance ratio), for ``wakes check``.
+
+    Examples
+    --------
+    >>> from wakes.case import load_case
+    >>> case_flags(load_case("cases/drone-lift-rotor.toml"))
+    []
+    """
+    return check_tip_mach(case, case_polar_limits(case), speed_of_sound) + check_advance_ratio(case)
 
 
 def check_run(summary: dict, loads: pd.DataFrame, sections: pd.DataFrame, case,

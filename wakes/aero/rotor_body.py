@@ -19,6 +19,7 @@ import pandas as pd
 from .polars import SectionPolars
 from .rotor import blade_turn_deg, is_axial_flow
 from .rotor_loads import (
+    FLIGHT_COLUMNS,
     FLOW_COLUMNS,
     HUB_COLUMNS,
     KIND_COLUMNS,
@@ -27,6 +28,8 @@ from .rotor_loads import (
     blade_harmonics_table,
     coefficients,
     disc_map_table,
+    flight_forces,
+    flight_frame,
     freestream_ratios,
     hub_coefficients,
     hub_loads,
@@ -72,6 +75,7 @@ class RotorBody:
         self.density = case.fluid.density
         self.axis = g.frame()[0]
         self.frame = g.rotor_frame()
+        self.wind_frame = flight_frame(case.freestream.vector(), self.axis)
         self.hub = np.asarray(g.hub, dtype=np.float64)
         v_inf = case.freestream.vector()
         # propeller: flight speed along the axis; turbine: wind speed; rotor: unused
@@ -168,8 +172,9 @@ class RotorBody:
         row["advance_ratio_mu"] = self.mu
         row["inflow_ratio_lambda"] = inflow_ratio(self.kind, strips, self.axis, self.r, self.dr, g.omega,
                                                   g.radius)
-        row.update(hub_coefficients(hub_loads(strips, self.hub, self.frame), omega=g.omega, radius=g.radius,
-                                    density=self.density))
+        hub = hub_loads(strips, self.hub, self.frame)
+        row.update(hub_coefficients(hub, omega=g.omega, radius=g.radius, density=self.density))
+        row.update(flight_forces(hub, row["thrust_N"], self.frame, self.wind_frame))
         for k, t in enumerate(f["thrust"]):
             row[f"blade_{k + 1}_thrust_N"] = float(t)
         if self._wakes:
@@ -239,7 +244,7 @@ class RotorBody:
         (:mod:`wakes.aero.rotor_loads`; ``shaft_angle_deg`` the angle of the
         freestream to the disc), and so are the hub forces and
         moments H, Y, M_x, M_y (in the rotor frame), with the coefficients
-        of the means. Near hover
+        of the means, and the drag, lift and side forces (flight frame). Near hover
         (:func:`wakes.aero.rotor_loads.near_hover`, the figure of merit's
         rule) a lift rotor also reports the induced-power factor
         kappa = P_induced / (T^(3/2)/sqrt(2 rho A)) of momentum theory.
@@ -261,6 +266,7 @@ class RotorBody:
         out["shaft_angle_deg"] = shaft_angle_deg(self.mu, self.climb_ratio)
         out.update(hub_coefficients({k: float(last[k].mean()) for k in HUB_COLUMNS[:4]}, omega=g.omega,
                                     radius=g.radius, density=self.density))
+        out.update({k: float(last[k].mean()) for k in FLIGHT_COLUMNS})
         if len(mine) >= 2 * n:
             before = float(mine["thrust_N"].iloc[-2 * n:-n].mean())
             out["thrust_change_last_revolution"] = (thrust - before) / abs(before) if before else float("nan")

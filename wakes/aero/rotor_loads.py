@@ -71,6 +71,16 @@ ch. 5, takes the same axes for a counter-clockwise rotor):
 A clockwise rotor is the mirror image of a counter-clockwise one in the
 plane of x_h and a: H and M_y stay, Y and M_x change sign.
 
+Forces in the flight frame (wind axes), for every kind, from the same
+total force F: x_f along the freestream V (downstream), z_f the axis's part
+normal to V (towards +a), y_f = z_f x x_f (:func:`flight_frame`):
+
+* ``drag_force_N`` D = F . x_f (positive downstream: the rotor's drag;
+  negative: it propels), ``lift_force_N`` L = F . z_f and
+  ``side_force_N`` S = F . y_f [N]. With the shaft normal to V (edgewise
+  flight, zero shaft angle) D = H, S = Y and L = T. Without a freestream
+  all three are NaN; with a freestream along the axis L and S are.
+
 Figure of merit is a hover quantity (Leishman 2006, ch. 2): it is reported
 only near hover, where the freestream is at most :data:`NEAR_HOVER_RATIO`
 of momentum theory's hover induced velocity, sqrt(mu^2 + lambda_c^2) <=
@@ -85,6 +95,8 @@ from __future__ import annotations
 
 import numpy as np
 import pandas as pd
+
+from .rotor import is_axial_flow
 
 ROTOR_KINDS = ("rotor", "propeller", "turbine")
 
@@ -181,6 +193,45 @@ def hub_loads(strips, hub: np.ndarray, frame) -> dict:
             moment += s.moment_pressure.sum(axis=0)
     return {"H_force_N": float(force @ x_h), "Y_force_N": float(force @ y_h),
             "roll_moment_Nm": float(moment @ x_h), "pitch_moment_Nm": float(moment @ y_h)}
+
+
+#: Force columns in the flight frame every rotor reports (module notes).
+FLIGHT_COLUMNS = ("drag_force_N", "lift_force_N", "side_force_N")
+
+
+def flight_frame(v_inf, axis) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Unit vectors (x_f, y_f, z_f) of the flight frame (module notes); NaN where undefined.
+
+    Examples
+    --------
+    >>> [v.tolist() for v in flight_frame([10.0, 0.0, 0.0], [0.0, 0.0, 1.0])]
+    [[1.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]]
+    >>> flight_frame([0.0, 0.0, -5.0], [0.0, 0.0, 1.0])[2].tolist()
+    [nan, nan, nan]
+    """
+    v = np.asarray(v_inf, dtype=np.float64)
+    a = np.asarray(axis, dtype=np.float64)
+    a = a / np.linalg.norm(a)
+    nan = np.full(3, np.nan)
+    speed = float(np.linalg.norm(v))
+    if speed == 0.0:
+        return nan, nan, nan
+    x_f = v / speed
+    if is_axial_flow(v, a):
+        return x_f, nan, nan
+    normal = a - (a @ x_f) * x_f
+    z_f = normal / np.linalg.norm(normal)
+    return x_f, np.cross(z_f, x_f), z_f
+
+
+def flight_forces(loads: dict, thrust: float, rotor_frame, frame) -> dict:
+    """Drag, lift and side force [N] in the flight frame ``frame`` (:func:`flight_frame`) from the
+    hub loads ``loads`` (:func:`hub_loads`), the thrust [N] and the rotor frame (x_h, y_h, a)."""
+    x_h, y_h, a = (np.asarray(u, dtype=np.float64) for u in rotor_frame)
+    force = loads["H_force_N"] * x_h + loads["Y_force_N"] * y_h + thrust * a
+    x_f, y_f, z_f = frame
+    return {"drag_force_N": float(force @ x_f), "lift_force_N": float(force @ z_f),
+            "side_force_N": float(force @ y_f)}
 
 
 def hub_coefficients(loads: dict, *, omega: float, radius: float, density: float) -> dict:
