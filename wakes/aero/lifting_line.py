@@ -15,6 +15,25 @@ of the rings (:func:`wakes.aero.vortex_lattice.influence_matrix`):
 * vortex-lattice panel (three-quarter point): flow tangency V.n = 0
   (Weissinger's rule, exact for a 2-D flat plate by Pistolesi's theorem).
 
+Past stall, where a strip's lift slope dcl/dalpha is negative, the
+lifting-line equations are ill-posed (many solutions, the short spanwise
+waves unbounded; Sears 1956). There the strip's equation gains a spanwise
+artificial viscosity, as Chattot proposed (Chattot 2004, AIAA paper
+2004-0220; Chattot & Hafez 2015, Theoretical and Applied Aerodynamics,
+ch. 6; used by Gallay & Laurendeau 2015, J. Aircraft 52; from memory):
+
+    Gamma_j - 1/2 |V_2D| c cl - mu_j (Gamma_j+1 - 2 Gamma_j + Gamma_j-1) = 0,
+
+with Gamma = 0 beyond a surface's ends and, our choice of the size,
+mu_j = c_j max(0, -dcl/dalpha) / (2 pi ds_j) (ds_j the strip's width):
+the magnitude of the strip's own term c cl' / (2 pi ds) that the two
+trailing legs of a strip of width ds add to its equation, so that a
+stalled strip's equation keeps the diagonal it would have on a rising lift
+curve of the same slope. mu_j is exactly zero where dcl/dalpha >= 0, and
+the term is a second difference, of order ds Gamma'' as the strips refine
+(Chattot), so it vanishes as they do. mu_j follows the current state; the
+Newton Jacobian holds it fixed.
+
 The system is solved by Newton's method with an analytic Jacobian, each
 step scaled by the under-relaxation factor and halved while the residual
 grows. It stops when every scaled residual is below the tolerance:
@@ -99,6 +118,9 @@ class _System:
         self.t = np.zeros((n, 3))
         self.nrm = np.zeros((n, 3))
         self.chord = np.ones(n)
+        self.width = np.ones(n)
+        self.left = np.full(n, -1, dtype=np.int64)
+        self.right = np.full(n, -1, dtype=np.int64)
         self.owner = np.zeros(n, dtype=np.int64)
         self.offsets = []
         k = 0
@@ -111,6 +133,9 @@ class _System:
                 self.t[k:k + m] = s.chord_dir
                 self.nrm[k:k + m] = s.section_normal
                 self.chord[k:k + m] = s.section_chord
+                self.width[k:k + m] = np.linalg.norm(s.span_vector, axis=1)
+                self.left[k + 1:k + m] = np.arange(k, k + m - 1)
+                self.right[k:k + m - 1] = np.arange(k + 1, k + m)
             else:
                 self.nrm[k:k + m] = s.normals.reshape(-1, 3)
             k += m
@@ -173,6 +198,8 @@ class _System:
             c = self.chord[ll]
             res[ll] = gamma[ll] - 0.5 * c * q * cl_l
             alpha[ll], cl[ll], cd[ll] = a, cl_l, cd_l
+            mu = c * np.maximum(-dcl, 0.0) / (2.0 * np.pi * self.width[ll])
+            stalled = mu > 0.0
             if jacobian:
                 qs = np.maximum(q, 1e-300)
                 dq = (vt[:, None] * self.t[ll] + vn[:, None] * self.nrm[ll]) / qs[:, None]
@@ -181,11 +208,28 @@ class _System:
                 dgam_dv = 0.5 * c[:, None] * ((cl_l + q * dcl_dq)[:, None] * dq + (q * dcl)[:, None] * da)
                 jl = -np.einsum("ij,ijn->in", dgam_dv, self.aic[ll])
                 jl[np.arange(jl.shape[0]), np.flatnonzero(ll)] += 1.0
+                if stalled.any():
+                    self._add_viscosity_jacobian(jl, mu, np.flatnonzero(ll))
                 jac[ll] = jl
+            if stalled.any():
+                res[ll] -= mu * self._second_difference(gamma)[ll]
         res /= self.scale
         if jacobian:
             jac /= self.scale[:, None]
         return res, jac, v, alpha, cl, cd
+
+    def _second_difference(self, gamma):
+        """Gamma_j+1 - 2 Gamma_j + Gamma_j-1 along each lifting line's span, Gamma = 0 beyond its ends."""
+        ext = np.append(gamma, 0.0)            # index -1 reads the zero beyond an end
+        return ext[self.left] - 2.0 * gamma + ext[self.right]
+
+    def _add_viscosity_jacobian(self, jl, mu, rows):
+        """Add d(-mu_j (Gamma_j+1 - 2 Gamma_j + Gamma_j-1))/dGamma to the lifting-line rows ``jl``, mu held fixed."""
+        r = np.arange(rows.shape[0])
+        jl[r, rows] += 2.0 * mu
+        for nb in (self.left[rows], self.right[rows]):
+            has = nb >= 0
+            jl[r[has], nb[has]] -= mu[has]
 
     def _polars(self, alpha, speed):
         """Evaluate each lifting-line surface's polars on its own strips at their speeds [m/s].
