@@ -16,23 +16,27 @@ of the rings (:func:`wakes.aero.vortex_lattice.influence_matrix`):
   (Weissinger's rule, exact for a 2-D flat plate by Pistolesi's theorem).
 
 Past stall, where a strip's lift slope dcl/dalpha is negative, the
-lifting-line equations are ill-posed (many solutions, the short spanwise
-waves unbounded; Sears 1956). There the strip's equation gains a spanwise
-artificial viscosity, as Chattot proposed (Chattot 2004, AIAA paper
-2004-0220; Chattot & Hafez 2015, Theoretical and Applied Aerodynamics,
-ch. 6; used by Gallay & Laurendeau 2015, J. Aircraft 52; from memory):
+lifting-line equations are ill-posed (many solutions, short spanwise waves
+not damped; Sears 1956, J. Aeronautical Sciences). There, and only there,
+a strip's equation gains a spanwise artificial viscosity, as Chattot
+proposed (Chattot 2004, AIAA paper 2004-0220; Chattot & Hafez 2015,
+Theoretical and Applied Aerodynamics, ch. 6; used by Gallay & Laurendeau
+2015, J. Aircraft 52; all from memory):
 
     Gamma_j - 1/2 |V_2D| c cl - mu_j (Gamma_j+1 - 2 Gamma_j + Gamma_j-1) = 0,
 
-with Gamma = 0 beyond a surface's ends and, our choice of the size,
-mu_j = c_j max(0, -dcl/dalpha) / (2 pi ds_j) (ds_j the strip's width):
-the magnitude of the strip's own term c cl' / (2 pi ds) that the two
-trailing legs of a strip of width ds add to its equation, so that a
-stalled strip's equation keeps the diagonal it would have on a rising lift
-curve of the same slope. mu_j is exactly zero where dcl/dalpha >= 0, and
-the term is a second difference, of order ds Gamma'' as the strips refine
-(Chattot), so it vanishes as they do. mu_j follows the current state; the
-Newton Jacobian holds it fixed.
+with Gamma = 0 beyond a surface's ends (tips, a rotor blade's root) and,
+our choice of the size, mu_j = c_j max(0, -dcl/dalpha) / (2 pi ds_j), ds_j
+the strip's width: the size of the term c cl' / (2 pi ds) that the two
+trailing legs of an isolated strip add to its own equation, so a stalled
+strip keeps the diagonal it would have on a rising lift curve of the same
+slope. mu_j is exactly zero where dcl/dalpha >= 0, so solves whose
+iterates never meet a falling lift curve are unchanged. The term is a
+second difference, of order ds Gamma'' (Chattot), and vanishes as the
+strips refine. mu_j is taken at the current iterate's local slope and held
+fixed in the Jacobian. On a piecewise-linear table whose slope turns from
+rising to falling at one node (a corner at cl_max) mu_j jumps there, and a
+strip that settles on that corner may still not converge.
 
 The system is solved by Newton's method with an analytic Jacobian, each
 step scaled by the under-relaxation factor and halved while the residual
@@ -174,8 +178,12 @@ class _System:
         return ("likely a stalled section on a polar with a falling lift curve: lower [solver] relaxation or "
                 "raise max_iterations")
 
-    def evaluate(self, gamma, jacobian: bool):
-        """Scaled residual (N,), Jacobian (N, N) or None, and the section state."""
+    def evaluate(self, gamma, jacobian: bool, viscosity=None):
+        """Scaled residual (N,), Jacobian (N, N) or None, and the section state.
+
+        ``viscosity`` (N,) fixes the artificial viscosity mu (module notes);
+        None takes it from the state ``gamma``. The Jacobian holds mu fixed.
+        """
         v = self.onset + np.einsum("ikn,n->ik", self.aic, gamma)
         n = gamma.shape[0]
         res = np.empty(n)
@@ -198,7 +206,7 @@ class _System:
             c = self.chord[ll]
             res[ll] = gamma[ll] - 0.5 * c * q * cl_l
             alpha[ll], cl[ll], cd[ll] = a, cl_l, cd_l
-            mu = c * np.maximum(-dcl, 0.0) / (2.0 * np.pi * self.width[ll])
+            mu = c * np.maximum(-dcl, 0.0) / (2.0 * np.pi * self.width[ll]) if viscosity is None else viscosity[ll]
             stalled = mu > 0.0
             if jacobian:
                 qs = np.maximum(q, 1e-300)
@@ -217,6 +225,18 @@ class _System:
         if jacobian:
             jac /= self.scale[:, None]
         return res, jac, v, alpha, cl, cd
+
+    def viscosity(self, gamma):
+        """Artificial viscosity mu (N,) of every strip at the state ``gamma`` (zero off the lifting lines)."""
+        mu = np.zeros(gamma.shape[0])
+        if self.ll.any():
+            ll = self.ll
+            v = self.onset[ll] + np.einsum("ikn,n->ik", self.aic[ll], gamma)
+            vt = np.einsum("ij,ij->i", v, self.t[ll])
+            vn = np.einsum("ij,ij->i", v, self.nrm[ll])
+            dcl = self._polars(np.arctan2(vn, vt), np.hypot(vt, vn))[2]
+            mu[ll] = self.chord[ll] * np.maximum(-dcl, 0.0) / (2.0 * np.pi * self.width[ll])
+        return mu
 
     def _second_difference(self, gamma):
         """Gamma_j+1 - 2 Gamma_j + Gamma_j-1 along each lifting line's span, Gamma = 0 beyond its ends."""
