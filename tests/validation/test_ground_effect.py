@@ -7,9 +7,12 @@ and ``exact.ground_drag_ratio`` evaluates the theory itself by quadrature at any
 full set is ``wakes verify --full``.
 """
 
+from pathlib import Path
+
 import pytest
 from wakes import exact
-from wakes.verify import GROUND_TOLERANCE, steady_wing
+from wakes.case import load_case, parse_case
+from wakes.verify import GROUND_TOLERANCE, hover_rotor, steady_wing
 
 ASPECT_RATIO = 8.0
 
@@ -61,3 +64,17 @@ def test_induced_drag_near_the_ground_follows_wieselsberger(free_air, model, hb)
     if low <= hb <= high:
         assert ratio == pytest.approx(exact.wieselsberger_drag_ratio(hb), rel=GROUND_TOLERANCE)
     assert near["CL"] > free_air[model]["CL"]
+
+
+def test_the_full_tables_rotor_is_the_bundled_hover_case_coarsened():
+    """``wakes verify --full`` checks the rotor near the ground (Cheeseman & Bennett 1955) on
+    ``verify.hover_rotor``, built in code so an installed package can run it; it must stay the
+    bundled validation rotor with the coarsening of tests/validation/test_rotors.py."""
+    over = {"bodies": {"rotor": {"panels": 10, "azimuth_step": 15.0, "revolutions": 10.0,
+                                 "wake_revolutions": 4.0, "wake_fade_revolutions": 0.0}},
+            "output": {"wake": False}, "ground": {"point": [0.0, 0.0, -1.143]}}
+    bundled = load_case(Path(__file__).resolve().parents[2] / "cases" / "validation" / "hover-8deg.toml",
+                        overrides=over)
+    built = parse_case(hover_rotor(1.0))
+    for part in ("bodies", "wake", "fluid", "freestream", "time", "ground", "solver"):
+        assert getattr(built, part) == getattr(bundled, part), part
