@@ -11,6 +11,7 @@ import pandas as pd
 import pytest
 from wakes.aero.rotor_loads import HUB_COLUMNS
 from wakes.case import parse_case
+from wakes.errors import NumericalError
 from wakes.simulate import TimeLoop
 
 from .test_rotor_run import BASE, SAME
@@ -251,3 +252,14 @@ def test_flight_frame_forces(hover, edgewise):
     assert tilted["drag_force_N"] == pytest.approx(c * tilted["H_force_N"] + sn * tilted["thrust_N"], rel=1e-9)
     assert tilted["lift_force_N"] == pytest.approx(-sn * tilted["H_force_N"] + c * tilted["thrust_N"], rel=1e-9)
     assert all(np.isnan(hover[1][k]) for k in ("drag_force_N", "lift_force_N", "side_force_N"))
+
+
+def test_reversed_flow_that_stops_the_solve_is_named_as_such():
+    """mu = 0.3 on this rotor (root cut-out 0.2 R): the retreating blade's inner sections lie in the
+    reverse-flow circle (diameter mu R, Johnson 1980, ch. 5) and the lifting line has no unique
+    circulation there; the error says so and where, not "a stalled section"."""
+    tip = RPM * np.pi / 30.0 * 0.5
+    with pytest.raises(NumericalError, match=r"at surface 'rotor/blade \d', strip \d+ \(eta = .*\) the flow "
+                                             r"(reaches it from the trailing edge|almost vanishes).*reverse-flow "
+                                             r"region.*lower advance ratio"):
+        stepped("", f"[freestream]\nspeed = {0.3 * tip!r}\n")

@@ -35,6 +35,8 @@ from ..errors import NumericalError
 from .polars import PolarRangeError
 
 _BACKTRACK_HALVINGS = 8
+#: An onset flow below this fraction of the surface's strongest one counts as vanishing (our choice).
+WEAK_ONSET = 0.05
 
 
 @dataclass(frozen=True)
@@ -117,6 +119,35 @@ class _System:
         scale = np.where(self.ll, 0.5 * self.chord * v2d, speed)
         floor = 1e-12 * max(float(scale.max(initial=0.0)), 1e-300)
         self.scale = np.maximum(scale, floor)
+
+    def likely_cause(self, res) -> str:
+        """Why the solve did not converge, judged at the section with the largest residual ``res``.
+
+        A lifting-line section whose onset flow (everything but the rings'
+        own induction) reaches it from the trailing edge, or almost vanishes
+        (below :data:`WEAK_ONSET` of the surface's strongest onset), has no
+        unique circulation: the reverse-flow region of a rotor's retreating
+        blade in edgewise flight. Otherwise the usual cause is a stalled
+        section on a falling lift curve.
+        """
+        i = int(np.argmax(np.abs(res)))
+        si = int(self.owner[i])
+        s = self.surfaces[si]
+        if self.ll[i]:
+            o = self.offsets[si]
+            mine = slice(o, o + s.n_unknowns)
+            vt = np.einsum("ij,ij->i", self.onset[mine], self.t[mine])
+            v2d = np.hypot(vt, np.einsum("ij,ij->i", self.onset[mine], self.nrm[mine]))
+            j = i - o
+            where = f"surface '{s.name}', strip {j} (eta = {s.section_eta[j]:.3f})"
+            if vt[j] < 0.0 or v2d[j] < WEAK_ONSET * float(v2d.max()):
+                what = "reaches it from the trailing edge" if vt[j] < 0.0 else "almost vanishes"
+                return (f"at {where} the flow {what} ({v2d[j]:.3g} m/s in its section plane): a lifting "
+                        "line has no unique circulation where the section flow passes through zero, as in "
+                        "the reverse-flow region of a rotor's retreating blade in edgewise flight; remedy: "
+                        "less flight speed across the disc (a lower advance ratio) or a larger root cut-out")
+        return ("likely a stalled section on a polar with a falling lift curve: lower [solver] relaxation or "
+                "raise max_iterations")
 
     def evaluate(self, gamma, jacobian: bool):
         """Scaled residual (N,), Jacobian (N, N) or None, and the section state."""
@@ -252,8 +283,7 @@ def solve_circulation(surfaces, aic: np.ndarray, onset: np.ndarray, gamma0: np.n
                 raise NumericalError(
                     f"circulation did not converge at step {step} (t = {time:.6g} s): largest scaled "
                     f"residual {norm:.3g} after {it} iterations, tolerance {settings.tolerance:g}; "
-                    "likely a stalled section on a polar with a falling lift curve: lower "
-                    "[solver] relaxation or raise max_iterations")
+                    f"{system.likely_cause(res)}")
             try:
                 delta = np.linalg.solve(jac, -res)
             except np.linalg.LinAlgError:

@@ -444,7 +444,7 @@ class RolledUpWake:
         """Roll up rings older than ``rollup_steps`` and drop far wake older than ``max_age``."""
         while self.near_gamma.shape[0] > self.rollup_steps:
             self._roll_up_oldest()
-        while self.far_gamma.shape[0] and time - self.far_time[-1] > self.settings.max_age:
+        while self.far_gamma.shape[0] and self.settings.too_old(time - self.far_time[-1]):
             self.far, self.far_time = self.far[:-1], self.far_time[:-1]
             self.far_gamma, self.far_spread = self.far_gamma[:-1], self.far_spread[:-1]
             self.far_ratio = self.far_ratio[:-1]

@@ -43,6 +43,9 @@ ATTACHED_CORE_FRACTION = 1e-6  # attached row's core radius / core_radius: a sin
 # Kinematic viscosity of air at ISA sea level [m^2/s] (ISO 2533:1975 standard atmosphere,
 # from memory): the one default of the case's [fluid] and of WakeSettings.
 SEA_LEVEL_KINEMATIC_VISCOSITY = 1.4607e-5
+#: Relative margin on ``max_age``: a wake's age is a sum of time steps, so a row exactly
+#: ``max_age`` old (the step divides it) must not be kept or dropped by round-off (ours).
+AGE_MARGIN = 1e-9
 
 
 @dataclass(frozen=True)
@@ -102,6 +105,19 @@ class WakeSettings:
     stretching: str = "transposed"
     max_age: float = float("inf")
     cores_at_surfaces: bool = False
+
+    def too_old(self, age):
+        """Whether wake of ``age`` [s] (float or array) is past ``max_age``.
+
+        An age within ``AGE_MARGIN`` (relative) of ``max_age`` counts as
+        equal and is kept, whatever the round-off of the summed time steps.
+
+        Examples
+        --------
+        >>> WakeSettings(max_age=0.3).too_old(0.1 + 0.1 + 0.1)   # 0.30000000000000004
+        False
+        """
+        return age > self.max_age * (1.0 + AGE_MARGIN)
 
     @property
     def attached_core_radius(self) -> float:
@@ -282,9 +298,9 @@ class WakeSheet:
             while self.gamma.shape[0] > s.near_wake_steps:
                 self._convert_oldest_ring(time)
         if np.isfinite(s.max_age):
-            while self.gamma.shape[0] > 0 and time - self.row_time[-1] > s.max_age:
+            while self.gamma.shape[0] > 0 and s.too_old(time - self.row_time[-1]):
                 self._drop_oldest_ring()
-            keep = time - self.birth <= s.max_age
+            keep = ~s.too_old(time - self.birth)
             if not keep.all():
                 self.positions, self.strengths = self.positions[keep], self.strengths[keep]
                 self.radii, self.birth = self.radii[keep], self.birth[keep]
