@@ -369,6 +369,23 @@ def check_wing_ground_effect() -> list[CheckResult]:
                                     exact.ground_drag_ratio(hb), IMAGE_SOURCE, GROUND_TOLERANCE))
             rows.append(CheckResult(f"C_L near ground / free air, {label}", near["CL"] / free["CL"], 1.0,
                                     "image theory: the ground adds lift at equal incidence (sign)", bound="above"))
+    rows += _ground_convergence(GROUND_HEIGHTS[0])
+    return rows
+
+
+def _ground_convergence(hb: float) -> list[CheckResult]:
+    """The drag ratio at the lowest height under doubled panels (strips) stops moving."""
+    rows = []
+    for model, fine in (("lifting-line", (1, 2 * PANELS[1])), ("vortex-lattice", (2 * PANELS[0], 2 * PANELS[1]))):
+        ratio = []
+        for panels in (PANELS, fine):
+            free, near = (steady_wing(GROUND_ASPECT_RATIO, elliptic=True, model=model, incidence=4.0,
+                                      panels=panels, height=h) for h in (None, hb * GROUND_ASPECT_RATIO))
+            ratio.append(_induced_factor(near) / _induced_factor(free))
+        count = f"{fine[1]} strips against {PANELS[1]}" if model == "lifting-line" else \
+            f"{fine[0]}×{fine[1]} panels against {PANELS[0]}×{PANELS[1]}"
+        rows.append(CheckResult(f"induced drag near ground / free air, {model}, h/b = {hb:g}, at {count}",
+                                ratio[1], ratio[0], "refinement (ours): the value stops moving", CONVERGED))
     return rows
 
 
