@@ -174,7 +174,7 @@ Phillips & Hunsaker 2013, AIAA 2013-2917, show the ratio depends on the
 planform and aspect ratio, not on h/b alone)."""
 
 HELMBOLD_SOURCE = "Helmbold 1942, Diederich 1951 (memory), half-chord sweep; ±10 %: ESDU TM 169"
-SLOPE_SWEEPS = (0.0, 30.0, 45.0)
+SLOPE_SWEEPS = (-30.0, 0.0, 30.0, 45.0)    # deg; negative: forward sweep
 SLOPE_TAPERS = (1.0, 0.5, 0.25)
 SLOPE_ASPECT_RATIOS = (1.0, 2.0, 4.0, 6.0, 10.0)
 GROUND_HEIGHTS = (0.05, 0.1, 0.15, 0.25, 0.5, 1.0)
