@@ -19,7 +19,8 @@ Wings
     :func:`elliptic_wing_lift_slope`, :func:`elliptic_wing_induced_drag`
     (Prandtl's lifting line), :func:`wagner_jones` (indicial lift),
     :func:`helmbold_lift_slope` and :func:`chord_line_sweep` (swept and
-    tapered wings), :func:`wieselsberger_drag_ratio` and
+    tapered wings), :func:`glauert_rectangular_wing` (lifting line of a
+    rectangular wing by Glauert's series), :func:`wieselsberger_drag_ratio` and
     :func:`ground_drag_ratio` (a wing near the ground).
 Rotors, propellers, turbines
     :func:`hover_induced_velocity`, :func:`hover_ideal_power`,
@@ -45,7 +46,8 @@ from .induction.smoothing import LAMB_OSEEN_ALPHA
 __all__ = [
     "BETZ_LIMIT", "LAMB_OSEEN_ALPHA", "PARTICLE_RING_CONSTANTS", "RING_CORE_CONSTANTS",
     "elliptic_wing_induced_drag", "elliptic_wing_lift_slope", "figure_of_merit",
-    "froude_efficiency", "chord_line_sweep", "ground_drag_ratio", "helmbold_lift_slope",
+    "froude_efficiency", "chord_line_sweep", "glauert_rectangular_wing", "ground_drag_ratio",
+    "helmbold_lift_slope",
     "hover_ideal_power", "hover_induced_velocity", "wieselsberger_drag_ratio",
     "lamb_oseen_peak", "lamb_oseen_velocity", "ring_speed", "ring_speed_particles",
     "ring_velocity", "segment_velocity", "wagner_jones",
@@ -633,6 +635,62 @@ def wagner_jones(s):
     """
     s_arr = _real("s", s, nonnegative=True)
     return _out(1.0 - 0.165 * np.exp(-0.0455 * s_arr) - 0.335 * np.exp(-0.3 * s_arr))
+
+def glauert_rectangular_wing(aspect_ratio: float, a0: float = 2.0 * np.pi, terms: int = 40):
+    """Lift-curve slope and induced-drag factor of an untwisted rectangular wing by Glauert's series.
+
+    Prandtl's lifting-line equation solved with the circulation as a sine
+    series, Γ = 2bV Σ A_n sin nθ, y = -(b/2) cos θ (Glauert 1926); for a
+    rectangular wing μ = c a₀/(4b) = a₀/(4A) and the equation at each
+    collocation angle θ_i reads
+
+        Σ A_n sin nθ_i (n μ + sin θ_i) = μ α sin θ_i,
+
+    over odd n (symmetric loading), collocated at θ_i = (i + ½) π/(2N),
+    i = 0..N-1. Then C_L = π A A₁ and C_Di = C_L²/(π A) (1 + δ) with
+    δ = Σ_{n>1} n (A_n/A₁)². The series converges fast: 40 terms give δ to
+    1e-6 at A = 10.
+
+    Parameters
+    ----------
+    aspect_ratio : float
+        A = b/c, positive.
+    a0 : float, optional
+        Section lift-curve slope [1/rad], positive; 2π by default.
+    terms : int, optional
+        Odd terms of the series N, at least 1.
+
+    Returns
+    -------
+    lift_slope : float
+        C_Lα [1/rad].
+    delta : float
+        Induced-drag factor δ; the span efficiency is 1/(1 + δ).
+
+    References
+    ----------
+    Glauert, H. 1926, *The Elements of Aerofoil and Airscrew Theory*,
+    Cambridge, ch. XI (the method; the values here are computed, not read
+    from his tables).
+
+    Examples
+    --------
+    >>> from wakes import exact
+    >>> slope, delta = exact.glauert_rectangular_wing(6.0)
+    >>> round(slope, 4), round(delta, 4)
+    (4.5304, 0.0483)
+    """
+    ar = positive_scalar("aspect_ratio", aspect_ratio)
+    slope0 = positive_scalar("a0", a0)
+    if not (isinstance(terms, (int, np.integer)) and terms >= 1):
+        raise InputError(f"terms must be a whole number of at least 1; got {terms!r}")
+    n = 2.0 * np.arange(terms) + 1.0
+    theta = (np.arange(terms) + 0.5) * np.pi / (2.0 * terms)
+    mu = slope0 / (4.0 * ar)
+    matrix = np.sin(np.outer(theta, n)) * (mu * n[None, :] + np.sin(theta)[:, None])
+    a = np.linalg.solve(matrix, mu * np.sin(theta))
+    return float(np.pi * ar * a[0]), float(np.sum(n[1:] * (a[1:] / a[0]) ** 2))
+
 
 
 def helmbold_lift_slope(aspect_ratio, sweep_deg=0.0):
