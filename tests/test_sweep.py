@@ -1,10 +1,10 @@
 """Parameter sweeps on a local Dask cluster: same numbers as separate runs, failures isolated, resume."""
 
 import os
+import select
 import signal
 import subprocess
 import sys
-import time
 from pathlib import Path
 
 import pandas as pd
@@ -195,18 +195,34 @@ sys.exit(main(sys.argv[3:]))
 
 
 def _group_members(pgid: int) -> list[int]:
+    """Processes of group ``pgid`` still running (an ended process waiting to be reaped is not)."""
     members = []
     for stat in Path("/proc").glob("[0-9]*/stat"):
         try:
             fields = stat.read_text().rsplit(")", 1)[1].split()
         except OSError:   # the process ended meanwhile
             continue
-        if int(fields[2]) == pgid:
+        if int(fields[2]) == pgid and fields[0] not in ("Z", "X"):
             members.append(int(stat.parent.name))
     return members
 
 
-@pytest.mark.skipif(not Path("/proc/self/stat").exists(), reason="reads process groups from /proc")
+def _wait_for_exit(pids) -> None:
+    """Block until every process of ``pids`` has ended: its pidfd turns readable (an event, not a
+    deadline; the 300 s are a hang guard only)."""
+    for pid in pids:
+        try:
+            fd = os.pidfd_open(pid)
+        except ProcessLookupError:   # already gone
+            continue
+        try:
+            select.select([fd], [], [], 300)
+        finally:
+            os.close(fd)
+
+
+@pytest.mark.skipif(not Path("/proc/self/stat").exists() or not hasattr(os, "pidfd_open"),
+                    reason="reads process groups from /proc and waits on pidfds (Linux)")
 def test_ctrl_c_stops_the_workers_and_says_what_finished(case_file, tmp_path):
     """Ctrl-C at a terminal signals the whole process group: the sweep and its workers. The
     sweep stops its workers, writes the table and names what finished; point 1 runs 20,000
@@ -240,9 +256,6 @@ def test_ctrl_c_stops_the_workers_and_says_what_finished(case_file, tmp_path):
     assert list(table["status"]) == ["ran", "stopped"]
     assert (tmp_path / "s" / "0000_steps=2" / "point.json").is_file()
     assert not (tmp_path / "s" / "0001_steps=20000" / "point.json").exists()
-    # the workers went with the sweep (hang guard: a dying process may take a moment to go)
-    for _ in range(600):
-        if not _group_members(proc.pid):
-            break
-        time.sleep(0.1)
+    # the workers went with the sweep: wait for those still ending, then none is left
+    _wait_for_exit(_group_members(proc.pid))
     assert _group_members(proc.pid) == []
