@@ -25,10 +25,11 @@ import argparse
 import datetime
 import json
 import os
-import platform
 import statistics
 import subprocess
 import sys
+
+from record import append, commit, machine
 
 RESULTS = os.path.join(os.path.dirname(os.path.abspath(__file__)), "RESULTS.md")
 CASE = os.path.join(os.path.dirname(RESULTS), "..", "cases", "validation", "hover-8deg.toml")
@@ -51,29 +52,6 @@ print(json.dumps({"wall": wall, "CT": s["CT"], "change": s["thrust_change_last_r
                   "steps": int(run.summary["run"]["steps"]),
                   "segments": int(run.loads["wake_segments"].max())}))
 """
-
-
-def _machine() -> str:
-    cpu = platform.processor() or platform.machine()
-    try:
-        with open("/proc/cpuinfo") as fh:
-            for line in fh:
-                if line.startswith("model name"):
-                    cpu = line.split(":", 1)[1].strip()
-                    break
-    except OSError:
-        pass
-    import numba
-    return (f"{cpu}, {os.cpu_count()} logical CPUs, numba {numba.__version__} "
-            f"({numba.get_num_threads()} threads)")
-
-
-def _commit() -> str:
-    try:
-        return subprocess.run(["git", "rev-parse", "--short", "HEAD"], capture_output=True,
-                              text=True, cwd=os.path.dirname(RESULTS), check=True).stdout.strip()
-    except (OSError, subprocess.CalledProcessError):
-        return "unknown"
 
 
 def _one(method: str) -> dict:
@@ -100,7 +78,7 @@ def main() -> None:
     load_end = os.getloadavg()
     text = "\n".join([
         "", "## Hover validation case to a converged C_T (bench_hover.py)", "",
-        f"{datetime.datetime.now():%Y-%m-%d %H:%M}, commit {_commit()}, {_machine()}.",
+        f"{datetime.datetime.now():%Y-%m-%d %H:%M}, commit {commit()}, {machine()}.",
         f"Load average {load[0]:.1f} at the start, {load_end[0]:.1f} at the end (2 cores).",
         "cases/validation/hover-8deg.toml: 16 revolutions at 10 deg a step, wake cut 6 revolutions old;",
         f"{args.repeat} runs per method, each in a fresh process after a compiling warm-up.",
@@ -111,8 +89,7 @@ def main() -> None:
         "|---|---|---|---|---|---|---|---|", *rows, ""])
     print(text)
     if not args.no_append:
-        with open(RESULTS, "a") as fh:
-            fh.write(text)
+        append(text)
 
 
 if __name__ == "__main__":

@@ -32,6 +32,8 @@ import sys
 import tempfile
 import time
 
+from record import append, commit
+
 RESULTS = os.path.join(os.path.dirname(os.path.abspath(__file__)), "RESULTS.md")
 CASE = os.path.join(os.path.dirname(RESULTS), "..", "cases", "validation", "hover-8deg.toml")
 MEASURED_CT = 0.00459  # Caradonna & Tung 1981, NASA TM-81232 (value from memory)
@@ -48,14 +50,6 @@ def _timed(args: list[str], out: str) -> tuple[float, dict]:
     wall = time.perf_counter() - t0
     with open(os.path.join(out, "summary.json"), encoding="utf-8") as fh:
         return wall, json.load(fh)
-
-
-def _commit() -> str:
-    try:
-        return subprocess.run(["git", "rev-parse", "--short", "HEAD"], capture_output=True,
-                              text=True, cwd=os.path.dirname(RESULTS), check=True).stdout.strip()
-    except (OSError, subprocess.CalledProcessError):
-        return "unknown"
 
 
 def main() -> None:
@@ -87,7 +81,7 @@ def main() -> None:
     load_end = os.getloadavg()
     text = "\n".join([
         "", "## Refinement study against its finest run, hover case (bench_refinement.py)", "",
-        f"{datetime.datetime.now():%Y-%m-%d %H:%M}, commit {_commit()}, {os.cpu_count()} logical CPUs.",
+        f"{datetime.datetime.now():%Y-%m-%d %H:%M}, commit {commit()}, {os.cpu_count()} logical CPUs.",
         f"Load average {load[0]:.1f} at the start, {load_end[0]:.1f} at the end.",
         "cases/validation/hover-8deg.toml; `wakes run` (numba on every core) against `wakes run "
         "--uncertainty --workers 2`",
@@ -99,8 +93,7 @@ def main() -> None:
         "|---|---|---|---|---|---|---|---|---|", *rows, ""])
     print(text)
     if not args.no_append:
-        with open(RESULTS, "a") as fh:
-            fh.write(text)
+        append(text)
 
 
 if __name__ == "__main__":

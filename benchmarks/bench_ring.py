@@ -23,39 +23,17 @@ from __future__ import annotations
 import argparse
 import datetime
 import os
-import platform
 import resource
 import statistics
-import subprocess
 import time
 import tracemalloc
 
-import numba
 import wakes
 from wakes.vortex.dynamics import induction_methods
 
+from record import commit, machine
+
 RESULTS = os.path.join(os.path.dirname(os.path.abspath(__file__)), "RESULTS.md")
-
-
-def _machine() -> str:
-    cpu = platform.processor() or platform.machine()
-    try:
-        with open("/proc/cpuinfo") as fh:
-            for line in fh:
-                if line.startswith("model name"):
-                    cpu = line.split(":", 1)[1].strip()
-                    break
-    except OSError:
-        pass
-    return f"{cpu}, {os.cpu_count()} logical CPUs, numba {numba.__version__} ({numba.get_num_threads()} threads)"
-
-
-def _commit() -> str:
-    try:
-        return subprocess.run(["git", "rev-parse", "--short", "HEAD"], capture_output=True,
-                              text=True, cwd=os.path.dirname(RESULTS), check=True).stdout.strip()
-    except (OSError, subprocess.CalledProcessError):
-        return "unknown"
 
 
 def run(method: str, steps: int, kernel: str, layers: int, tolerance: float) -> dict:
@@ -103,7 +81,7 @@ def main() -> None:
         stamp = datetime.datetime.now().strftime("%Y-%m-%d %H:%M")
         with open(RESULTS, "a") as fh:
             fh.write(f"\n## Resolved vortex ring, ParticleFlow RK3 steps (bench_ring.py)\n\n"
-                     f"{stamp}, commit {_commit()}, {_machine()}. Ring R = 1, sigma = 0.1, "
+                     f"{stamp}, commit {commit()}, {machine()}. Ring R = 1, sigma = 0.1, "
                      f"{args.layers} core layers, kernel {args.kernel}, transposed stretching, "
                      f"dt = 0.05, tolerance {args.tolerance:g} for approximate methods. "
                      f"A step is three inductions with gradient.\n\n{table}\n")

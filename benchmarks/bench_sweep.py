@@ -21,7 +21,6 @@ import datetime
 import os
 import platform
 import statistics
-import subprocess
 import tempfile
 import time
 from pathlib import Path
@@ -32,6 +31,8 @@ from wakes.case import parse_case
 from wakes.run import run_case
 from wakes.sweep import sweep
 
+from record import commit
+
 HERE = Path(__file__).resolve().parent
 
 CASE = {
@@ -41,14 +42,6 @@ CASE = {
     "wake": {"motion": "free"},
     "time": {"steps": 40},
 }
-
-
-def _commit() -> str:
-    try:
-        return subprocess.run(["git", "rev-parse", "--short", "HEAD"], capture_output=True,
-                              text=True, cwd=HERE, check=True).stdout.strip()
-    except (OSError, subprocess.CalledProcessError):
-        return "unknown"
 
 
 def bench_sweep(n_points: int) -> dict:
@@ -117,7 +110,7 @@ def main() -> None:
         "",
         "## Sweeps and distributed induction (bench_sweep.py)",
         "",
-        f"{datetime.datetime.now():%Y-%m-%d %H:%M}, commit {_commit()}, {platform.processor() or platform.machine()}, "
+        f"{datetime.datetime.now():%Y-%m-%d %H:%M}, commit {commit()}, {platform.processor() or platform.machine()}, "
         f"{os.cpu_count()} logical CPUs, load average {load:.1f} at the end of the run.",
         "",
         "| what | points | one after another (s) | sweep on 2 local workers (s) | speed-up |",

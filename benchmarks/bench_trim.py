@@ -29,7 +29,7 @@ import statistics
 import subprocess
 import sys
 
-from bench_hover import _commit, _machine
+from record import append, commit, machine
 
 RESULTS = os.path.join(os.path.dirname(os.path.abspath(__file__)), "RESULTS.md")
 CASE = os.path.join(os.path.dirname(RESULTS), "..", "cases", "drone-lift-rotor.toml")
@@ -73,7 +73,7 @@ def main() -> None:
     load_end = os.getloadavg()
     text = "\n".join([
         "", "## Trimmed edgewise lift rotor (bench_trim.py)", "",
-        f"{datetime.datetime.now():%Y-%m-%d %H:%M}, commit {_commit()}, {_machine()}.",
+        f"{datetime.datetime.now():%Y-%m-%d %H:%M}, commit {commit()}, {machine()}.",
         f"Load average {load[0]:.1f} at the start, {load_end[0]:.1f} at the end (2 cores).",
         "cases/drone-lift-rotor.toml at 5 m/s (mu = 0.05), 6 revolutions a run, trimmed to 10 N and zero "
         "roll and pitch moments (collective, theta_1c, theta_1s).",
@@ -83,8 +83,7 @@ def main() -> None:
         "|---|---|---|---|---|---|---|---|", row, ""])
     print(text)
     if not args.no_append:
-        with open(RESULTS, "a") as fh:
-            fh.write(text)
+        append(text)
 
 
 if __name__ == "__main__":

@@ -24,18 +24,17 @@ import argparse
 import dataclasses
 import datetime
 import os
-import platform
 import statistics
-import subprocess
 import time
 import tomllib
 from pathlib import Path
 
-import numba
 from wakes.case import TimeSpec, load_case, parse_case
 from wakes.estimate import estimate_case, measure_pair_rate, remaining_time, step_costs
 from wakes.run import run_case
 from wakes.templates import available_kinds, template_text
+
+from record import append, commit, machine
 
 ROOT = Path(__file__).resolve().parent.parent
 RESULTS = ROOT / "benchmarks" / "RESULTS.md"
@@ -56,24 +55,6 @@ def _timed_run(case):
     start = time.perf_counter()
     run_case(case, progress=lambda step, steps: stamps.append(time.perf_counter() - start))
     return time.perf_counter() - start, stamps
-
-
-def _machine() -> str:
-    cpu = platform.processor() or platform.machine()
-    try:
-        with open("/proc/cpuinfo") as fh:
-            cpu = next(line.split(":", 1)[1].strip() for line in fh if line.startswith("model name"))
-    except (OSError, StopIteration):
-        pass
-    return f"{cpu}, {os.cpu_count()} logical CPUs, numba {numba.__version__} ({numba.get_num_threads()} threads)"
-
-
-def _commit() -> str:
-    try:
-        return subprocess.run(["git", "rev-parse", "--short", "HEAD"], capture_output=True, text=True,
-                              cwd=ROOT, check=True).stdout.strip()
-    except (OSError, subprocess.CalledProcessError):
-        return "unknown"
 
 
 def _ok(ratio: float) -> str:
@@ -111,7 +92,7 @@ def main() -> None:
     load_end = os.getloadavg()
     text = "\n".join([
         "", "## Run-time estimate and time left against measured runs (estimates.py)", "",
-        f"{datetime.datetime.now():%Y-%m-%d %H:%M}, commit {_commit()}, {_machine()}.",
+        f"{datetime.datetime.now():%Y-%m-%d %H:%M}, commit {commit()}, {machine()}.",
         f"Load average {load[0]:.1f} at the start, {load_end[0]:.1f} at the end (2 cores).",
         f"Yardstick {rate:.3g} pairs/s. {args.repeat} runs per case after a compiling warm-up; "
         "median wall time (min-max). Time left: estimated after 10 % of the steps over the time the "
@@ -122,8 +103,7 @@ def main() -> None:
         f"{len(rows) - failed} of {len(rows)} cases pass both bars.", ""])
     print(text)
     if not args.no_append:
-        with open(RESULTS, "a") as fh:
-            fh.write(text)
+        append(text)
 
 
 if __name__ == "__main__":
