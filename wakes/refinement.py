@@ -64,7 +64,7 @@ from .io import atomic
 from .io.runfolder import clear_run, record_files
 from .io.tables import write_json
 from .plots import STUDY_FIGURE, STUDY_TABLE, UNCERTAINTY_PANELS, save_figure, sweep_figure, uncertainty_figure
-from .run import _unit, check_new_folder
+from .run import check_new_folder, split_unit
 from .sweep import plan, sweep
 from .uncertainty import MONOTONIC, ROUND_OFF, SAFETY_FACTOR_THREE_LEVELS, refinement_estimate
 
@@ -323,7 +323,7 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
         for key, value in figures.items():
             if key not in NOT_LOADS and not isinstance(value, bool) and isinstance(value, (int, float)) \
                     and math.isfinite(value):
-                unit = _unit(key)[1]
+                unit = split_unit(key)[1]
                 scale[unit] = max(scale.get(unit, 0.0), abs(value))
         for key, value in figures.items():
             if key in NOT_LOADS or isinstance(value, bool) or not isinstance(value, (int, float)):
@@ -331,7 +331,7 @@ def estimate_loads(summaries: list[dict], spacings) -> dict:
             values = [s["bodies"][body].get(key) for s in summaries]
             if any(v is None or not math.isfinite(v) for v in values) or len(set(values)) == 1:
                 continue
-            noise = margin * max(drift * max(map(abs, values)), ROUND_OFF * scale[_unit(key)[1]])
+            noise = margin * max(drift * max(map(abs, values)), ROUND_OFF * scale[split_unit(key)[1]])
             out[body][key] = refinement_estimate(values, spacings, noise=noise, expected_order=SCHEME_ORDER,
                                                  order_tolerance=1.0)
     return out

@@ -307,8 +307,14 @@ def case_inputs(case: Case) -> list[Path]:
     return [Path(b.airfoil.polar) for b in case.bodies if b.airfoil.polar is not None]
 
 
-def _unit(key: str) -> tuple[str, str]:
-    """Quantity name without its unit suffix, and the unit."""
+def split_unit(key: str) -> tuple[str, str]:
+    """A summary key's quantity name without its unit suffix, and the unit.
+
+    Examples
+    --------
+    >>> split_unit("thrust_N"), split_unit("CT")
+    (('thrust', 'N'), ('CT', ''))
+    """
     for suffix, unit in (("_Nm", "N m"), ("_N", "N"), ("_W", "W"), ("_m2_s", "m^2/s"), ("_m", "m"),
                          ("_s", "s"), ("_deg", "deg")):
         if key.endswith(suffix):
@@ -331,7 +337,7 @@ def result_table(summary: dict) -> str:
         for key, value in figures.items():
             if not isinstance(value, (int, float)) or isinstance(value, bool):
                 continue
-            q, unit = _unit(key)
+            q, unit = split_unit(key)
             text = "-" if isinstance(value, float) and math.isnan(value) else f"{value:.5g}"
             rows.append((name, q, text, unit))
     widths = [max(len(r[i]) for r in rows) for i in range(4)]
