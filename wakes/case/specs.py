@@ -95,6 +95,7 @@ SCHEDULER_ADDRESS = re.compile(r"(?:tcp|tls)://(?:[A-Za-z0-9_.-]+|\[[0-9A-Fa-f:.
 MIN_LENGTH = 1e-4          # shortest length [m]: span, chord, radius
 MAX_LENGTH = 1e4           # longest length [m]: span, chord, radius, core radius
 MAX_COORDINATE = 1e5       # largest position coordinate [m]: wing position, rotor hub, ground point
+MAX_REFERENCE_POINT = MAX_COORDINATE + 10 * MAX_LENGTH  # a point on a body: position plus a swept size [m]
 MAX_SPEED = 1000.0         # freestream speed and blade tip speed [m/s]; the method is incompressible
 MIN_DT, MAX_DT = 1e-9, 3600.0   # time step range [s]
 MAX_STEPS = 10_000_000     # most time steps of a run
@@ -390,8 +391,8 @@ class WingSpec:
                                         maximum=MAX_LENGTH, resolved=True)
     moment_reference: tuple | None = key(None, "point the pitching moment is taken about, global frame "
                                          "(default: quarter chord of the mean aerodynamic chord)", "m",
-                                         kind="vec3", minimum=-MAX_COORDINATE, maximum=MAX_COORDINATE,
-                                         resolved=True)
+                                         kind="vec3", minimum=-MAX_REFERENCE_POINT,
+                                         maximum=MAX_REFERENCE_POINT, resolved=True)
     airfoil: AirfoilSpec = key(AirfoilSpec(), "section polar", kind="table")
     name: str = field(default="wing", metadata=dict(internal=True))
 
