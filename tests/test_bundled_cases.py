@@ -104,6 +104,15 @@ CLAIMS = [
      lambda c: _rotor(c).airfoil.lift_slope / (2 * math.pi)),
     ("drone-lift-rotor.toml", "a quarter of the tip's travel in one 10 deg step", "a quarter", 0.005,
      lambda c: c.wake.core_radius / _tip_travel(c, _rotor(c))),
+    ("survey-quad-cruise.toml", "0.46 m diameter", "0.46", 0.005, lambda c: 2 * _rotor(c).radius),
+    ("survey-quad-cruise.toml", "# 1/rad, 0.9 x 2 pi (invented)", "0.9", 0.05,
+     lambda c: _rotor(c).airfoil.lift_slope / (2 * math.pi)),
+    ("survey-quad-cruise.toml", "a quarter of the tip's travel in one 10 deg step", "a quarter", 0.005,
+     lambda c: c.wake.core_radius / _tip_travel(c, _rotor(c))),
+    ("survey-quad-cruise.toml", "the air meets the\n# disc from 6 deg above its plane", "6", 0.5,
+     lambda c: -c.freestream.angle_of_attack),
+    ("survey-quad-cruise.toml", "an advance\n# ratio of about 0.1", "0.1", ABOUT * 0.1,
+     lambda c: 10.0 * math.cos(math.radians(6.0)) / _tip_speed(_rotor(c))),
     ("propeller-cruise.toml", "0.56 m diameter", "0.56", 0.005, lambda c: 2 * _rotor(c).radius),
     ("propeller-cruise.toml", "pitch about\n# 0.40 m", "0.40", ABOUT * 0.40,
      lambda c: 2 * math.pi * 0.75 * _rotor(c).radius * math.tan(math.radians(_pitch_at(_rotor(c), 0.75)))),
@@ -168,6 +177,7 @@ def _wake_radii(run):
 RUN_CLAIMS = {
     "drone-lift-rotor.toml": [("the rotor gives about\n# 12 N", "12", ABOUT * 12,
                                lambda run: _summary(run)["thrust_N"])],
+    "survey-quad-cruise.toml": [("gives about 11 N", "11", ABOUT * 11, lambda run: _summary(run)["thrust_N"])],
     "validation/turbine.toml": [("# about 6 R downstream", "6", ABOUT * 6, _wake_radii)],
     "template:rotor": [("about 2 R of wake", "2", ABOUT * 2, _wake_radii)],
     "template:propeller": [("about 1.6 R of wake", "1.6", ABOUT * 1.6, _wake_radii)],
@@ -182,7 +192,7 @@ RUN_ELSEWHERE = {
     "validation/hover-8deg.toml": "tests/validation/test_rotors.py",
 }
 
-RUN_HERE = ["drone-lift-rotor.toml", "propeller-cruise.toml", "propeller-wing.toml", "small-wind-turbine.toml",
+RUN_HERE = ["drone-lift-rotor.toml", "survey-quad-cruise.toml", "propeller-cruise.toml", "propeller-wing.toml", "small-wind-turbine.toml",
             "validation/propeller-axial.toml", "validation/turbine.toml", "template:wing", "template:rotor",
             "template:propeller", "template:turbine"]
 

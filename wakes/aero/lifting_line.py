@@ -26,17 +26,50 @@ Theoretical and Applied Aerodynamics, ch. 6; used by Gallay & Laurendeau
     Gamma_j - 1/2 |V_2D| c cl - mu_j (Gamma_j+1 - 2 Gamma_j + Gamma_j-1) = 0,
 
 with Gamma = 0 beyond a surface's ends (tips, a rotor blade's root) and,
-our choice of the size, mu_j = c_j max(0, -dcl/dalpha) / (2 pi ds_j), ds_j
+our choice of the size, mu_j = c_j m(-dcl/dalpha) / (2 pi ds_j), ds_j
 the strip's width: the size of the term c cl' / (2 pi ds) that the two
 trailing legs of an isolated strip add to its own equation, so a stalled
 strip keeps the diagonal it would have on a rising lift curve of the same
-slope. mu_j is exactly zero where dcl/dalpha >= 0, so solves whose
-iterates never meet a falling lift curve are unchanged. The term is a
+slope. m(x) = max(0, x) but rounded over 0 < x < :data:`STALL_RAMP`
+(:func:`falling_slope`), so mu_j grows from zero with a continuous
+derivative as a strip passes cl_max (a kink there makes Newton cycle).
+mu_j is exactly zero where dcl/dalpha >= 0, so solves whose iterates never
+meet a falling lift curve are unchanged. The term is a
 second difference, of order ds Gamma'' (Chattot), and vanishes as the
 strips refine. mu_j is taken at the current iterate's local slope and held
-fixed in the Jacobian. On a piecewise-linear table whose slope turns from
-rising to falling at one node (a corner at cl_max) mu_j jumps there, and a
-strip that settles on that corner may still not converge.
+fixed in the Jacobian. On a
+piecewise-linear table whose slope turns from rising to falling at one
+node (a corner at cl_max) mu_j jumps there, and a strip that settles on
+that corner may not converge; the Viterna-Corrigan extension joins a
+table smoothly (:mod:`wakes.aero.post_stall`), so its cl_max is round.
+
+Where a strip's section flow comes from its trailing edge or almost
+vanishes (the reverse-flow region of a rotor's retreating blade in
+edgewise flight, and the sections next to it) the lifting-line equation
+has no unique solution: the strip's own trailing legs induce a section
+velocity as large as the onset flow, so the angle of attack can swing
+through 180 degrees between iterates. There the section is treated as the
+comprehensive rotor analyses treat the reverse-flow region (Johnson 1980,
+*Helicopter Theory*, ch. 5, the section aerodynamics in reversed flow;
+memory): its lift comes from the polar at the angle the onset flow makes
+with the chord, the reversed angle past +-90 degrees (for a
+Viterna-Corrigan table the forward section at the supplementary angle,
+:mod:`wakes.aero.post_stall`), without the strip's equation feeling the
+rings' own induction:
+
+    Gamma_j = 1/2 c |V_onset,2D| cl(alpha_onset),
+
+an explicit value, so no iteration can diverge there. With
+u = V_onset . t / (eps q_ref), eps = :data:`WEAK_ONSET` and q_ref the
+surface's strongest onset section speed (a rotor blade's tip speed
+against the flow), a strip is explicit for u <= 1 (the flow from the
+trailing edge is u < 0), coupled as above for u >= 2, and in between its
+equation blends the two with the weight w = 3 x^2 - 2 x^3, x = 2 - u, so
+the circulation does not jump as a strip moves in and out of the region
+(our choice of the band; the strips in it carry loads of order eps^2 of
+the blade's, and their share of a rotor's loads vanishes with eps).
+Attached, forward-flow strips (u >= 2, every strip of a wing in a
+freestream and of a rotor in hover) are unchanged.
 
 The system is solved by Newton's method with an analytic Jacobian, each
 step scaled by the under-relaxation factor and halved while the residual
@@ -58,8 +91,53 @@ from ..errors import NumericalError
 from .polars import PolarRangeError
 
 _BACKTRACK_HALVINGS = 8
+#: Falling lift slope [1/rad] over which the artificial viscosity reaches its full size (ours; numerical).
+STALL_RAMP = 1.0
 #: An onset flow below this fraction of the surface's strongest one counts as vanishing (our choice).
 WEAK_ONSET = 0.05
+
+
+def falling_slope(dcl):
+    """The falling part of a lift slope, m(-dcl/dalpha), and dm/d(-dcl/dalpha) (module notes).
+
+    m(x) = 0 for x <= 0, x^2 / (2 d) up to d = :data:`STALL_RAMP`, x - d/2
+    beyond: zero on a rising lift curve and continuous in slope, so the
+    artificial viscosity does not switch on with a kink at cl_max.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> m, dm = falling_slope(np.array([1.0, -0.5, -3.0]))
+    >>> [round(float(x), 3) for x in m], [round(float(x), 3) for x in dm]
+    ([0.0, 0.125, 2.5], [0.0, 0.5, 1.0])
+    """
+    x = -np.asarray(dcl, dtype=np.float64)
+    d = STALL_RAMP
+    m = np.where(x <= 0.0, 0.0, np.where(x < d, 0.5 * x * x / d, x - 0.5 * d))
+    return m, np.clip(x / d, 0.0, 1.0)
+
+
+def explicit_weight(vt, q_ref):
+    """Weight w (0 to 1) of a strip's explicit equation (module notes), shape of ``vt``.
+
+    Parameters
+    ----------
+    vt : ndarray
+        Onset velocity along the chord, leading to trailing edge [m/s].
+    q_ref : float or ndarray
+        The surface's strongest onset section speed [m/s].
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> [round(float(w), 3) for w in explicit_weight(np.array([-3.0, 0.5, 1.5, 2.0, 50.0]), 10.0)]
+    [1.0, 1.0, 0.5, 0.0, 0.0]
+    """
+    band = WEAK_ONSET * np.asarray(q_ref, dtype=np.float64)
+    u = np.asarray(vt, dtype=np.float64) / np.where(band > 0.0, band, 1.0)
+    x = np.clip(2.0 - u, 0.0, 1.0)
+    w = x * x * (3.0 - 2.0 * x)
+    return np.where(band > 0.0, w, 1.0)
 
 
 @dataclass(frozen=True)
@@ -143,11 +221,31 @@ class _System:
             else:
                 self.nrm[k:k + m] = s.normals.reshape(-1, 3)
             k += m
-        v2d = np.hypot(np.einsum("ij,ij->i", onset, self.t), np.einsum("ij,ij->i", onset, self.nrm))
+        vt0 = np.einsum("ij,ij->i", onset, self.t)
+        vn0 = np.einsum("ij,ij->i", onset, self.nrm)
+        v2d = np.hypot(vt0, vn0)
         speed = np.linalg.norm(onset, axis=1)
         scale = np.where(self.ll, 0.5 * self.chord * v2d, speed)
         floor = 1e-12 * max(float(scale.max(initial=0.0)), 1e-300)
         self.scale = np.maximum(scale, floor)
+        # the explicit equation of strips in reversed or vanishing section flow (module notes)
+        q_ref = np.zeros(n)
+        for si, o in enumerate(self.offsets):
+            mine = slice(o, o + surfaces[si].n_unknowns)
+            q_ref[mine] = float(v2d[mine].max(initial=0.0))
+        self.weight = np.where(self.ll, explicit_weight(vt0, q_ref), 0.0)
+        self.coupled = 1.0 - self.weight
+        self.alpha0 = np.arctan2(vn0, vt0)
+        self.gamma0 = np.zeros(n)
+        self.cl0 = np.full(n, np.nan)
+        self.cd0 = np.full(n, np.nan)
+        if (self.weight > 0.0).any():
+            # every strip of a surface with one: a polar evaluates a surface's strips together;
+            # strips without weight use only cl0 * 0 (their onset angle may lie outside a table)
+            ll = self.ll
+            cl0, cd0, _, _ = self._polars(self.alpha0[ll], v2d[ll], only=self.weight[ll] > 0.0)
+            self.cl0[ll], self.cd0[ll] = cl0, cd0
+            self.gamma0[ll] = self.weight[ll] * 0.5 * self.chord[ll] * v2d[ll] * np.nan_to_num(cl0)
 
     def likely_cause(self, res) -> str:
         """Why the solve did not converge, judged at the section with the largest residual ``res``.
@@ -202,18 +300,26 @@ class _System:
             vn = np.einsum("ij,ij->i", v[ll], self.nrm[ll])
             q = np.hypot(vt, vn)
             a = np.arctan2(vn, vt)
-            cl_l, cd_l, dcl, dcl_dq = self._polars(a, q)
+            k = self.coupled[ll]
+            cl_l, cd_l, dcl, dcl_dq = self._coupled_polars(a, q, k > 0.0)
             c = self.chord[ll]
-            res[ll] = gamma[ll] - 0.5 * c * q * cl_l
-            alpha[ll], cl[ll], cd[ll] = a, cl_l, cd_l
-            mu = c * np.maximum(-dcl, 0.0) / (2.0 * np.pi * self.width[ll]) if viscosity is None else viscosity[ll]
+            res[ll] = gamma[ll] - k * 0.5 * c * q * cl_l - self.gamma0[ll]
+            # explicit strips report the section state their equation used: the onset flow's
+            explicit = k == 0.0
+            alpha[ll] = np.where(explicit, self.alpha0[ll], a)
+            cl[ll] = np.where(explicit, self.cl0[ll], cl_l)
+            cd[ll] = np.where(explicit, self.cd0[ll], cd_l)
+            if viscosity is None:
+                mu = k * c * falling_slope(dcl)[0] / (2.0 * np.pi * self.width[ll])
+            else:
+                mu = viscosity[ll]
             stalled = mu > 0.0
             if jacobian:
                 qs = np.maximum(q, 1e-300)
                 dq = (vt[:, None] * self.t[ll] + vn[:, None] * self.nrm[ll]) / qs[:, None]
                 da = (vt[:, None] * self.nrm[ll] - vn[:, None] * self.t[ll]) / (qs * qs)[:, None]
                 # Gamma = c q cl(alpha, q / a) / 2: the Mach number moves with the speed q too
-                dgam_dv = 0.5 * c[:, None] * ((cl_l + q * dcl_dq)[:, None] * dq + (q * dcl)[:, None] * da)
+                dgam_dv = 0.5 * (k * c)[:, None] * ((cl_l + q * dcl_dq)[:, None] * dq + (q * dcl)[:, None] * da)
                 jl = -np.einsum("ij,ijn->in", dgam_dv, self.aic[ll])
                 jl[np.arange(jl.shape[0]), np.flatnonzero(ll)] += 1.0
                 if stalled.any():
@@ -234,8 +340,8 @@ class _System:
             v = self.onset[ll] + np.einsum("ikn,n->ik", self.aic[ll], gamma)
             vt = np.einsum("ij,ij->i", v, self.t[ll])
             vn = np.einsum("ij,ij->i", v, self.nrm[ll])
-            dcl = self._polars(np.arctan2(vn, vt), np.hypot(vt, vn))[2]
-            mu[ll] = self.chord[ll] * np.maximum(-dcl, 0.0) / (2.0 * np.pi * self.width[ll])
+            dcl = self._coupled_polars(np.arctan2(vn, vt), np.hypot(vt, vn), self.coupled[ll] > 0.0)[2]
+            mu[ll] = self.coupled[ll] * self.chord[ll] * falling_slope(dcl)[0] / (2.0 * np.pi * self.width[ll])
         return mu
 
     def _second_difference(self, gamma):
@@ -251,25 +357,44 @@ class _System:
             has = nb >= 0
             jl[r[has], nb[has]] -= mu[has]
 
-    def _polars(self, alpha, speed):
+    def _coupled_polars(self, alpha, speed, coupled):
+        """:meth:`_polars` on the strips whose equation has a coupled part (bool ``coupled``), zeros elsewhere.
+
+        An explicit strip's polar is not evaluated at its iterate's angle,
+        which may lie outside a table that its onset angle is inside.
+        """
+        if coupled.all():
+            return self._polars(alpha, speed)
+        return tuple(np.where(coupled, x, 0.0) for x in self._polars(alpha, speed, only=coupled))
+
+    def _polars(self, alpha, speed, only=None):
         """Evaluate each lifting-line surface's polars on its own strips at their speeds [m/s].
 
         Returns cl, cd, dcl/dalpha [1/rad] and dcl/dspeed [s/m] (the Mach
-        number's share; zero for low-speed polars).
+        number's share; zero for low-speed polars). With ``only`` (bool, one
+        per lifting-line strip) a surface none of whose strips is selected is
+        skipped, and every strip not selected gets NaN.
         """
-        cl, cd, dcl, dcl_dq = (np.empty_like(alpha) for _ in range(4))
+        cl, cd, dcl, dcl_dq = (np.full_like(alpha, np.nan) for _ in range(4))
         k = 0
         for s in self.surfaces:
             if not s.lifting_line:
                 continue
             m = s.n_unknowns
             sl = slice(k, k + m)
+            if only is not None and not only[sl].any():
+                k += m
+                continue
+            a = alpha[sl] if only is None else np.where(only[sl], alpha[sl], 0.0)
             try:
-                cl[sl], cd[sl], dcl[sl], dcl_dq[sl] = s.polars.evaluate_at_speed(alpha[sl], speed[sl])
+                cl[sl], cd[sl], dcl[sl], dcl_dq[sl] = s.polars.evaluate_at_speed(a, speed[sl])
             except PolarRangeError as exc:
                 raise PolarRangeError(f"surface '{s.name}', strip {exc.index} "
                                       f"(eta = {s.section_eta[exc.index]:.3f}): {exc}",
                                       exc.index, exc.alpha_deg, exc.mach) from None
+            if only is not None:
+                for x in (cl, cd, dcl, dcl_dq):
+                    x[sl] = np.where(only[sl], x[sl], np.nan)
             k += m
         return cl, cd, dcl, dcl_dq
 
@@ -329,7 +454,11 @@ def solve_circulation(surfaces, aic: np.ndarray, onset: np.ndarray, gamma0: np.n
         If a section angle leaves its polar table (message names the
         surface, strip, step and time).
     """
-    system = _System(surfaces, aic, onset)
+    try:
+        system = _System(surfaces, aic, onset)
+    except PolarRangeError as exc:
+        raise PolarRangeError(f"{exc} at step {step} (t = {time:.6g} s)", exc.index, exc.alpha_deg,
+                              exc.mach) from None
     gamma = np.asarray(gamma0, dtype=np.float64).copy()
     if not system.ll.any() and linear_cache is not None:
         lu = linear_cache.factors(aic, lambda: np.einsum("ij,ijn->in", system.nrm, aic))

@@ -4,7 +4,11 @@ Two kinds, both evaluated on arrays of angles in radians:
 
 * :class:`ThinAirfoilPolar` -- cl = a (alpha - alpha_0) with a = 2 pi by
   default (thin-airfoil theory; Glauert 1926, *The Elements of Aerofoil and
-  Airscrew Theory*), and a simple drag polar cd = cd0 + cd2 cl^2.
+  Airscrew Theory*), and a simple drag polar cd = cd0 + cd2 cl^2. Past
+  +-90 degrees (flow from the trailing edge, a rotor's reverse-flow region)
+  the law is taken in the reversed angle, the forward section at the
+  supplementary angle, cl(alpha) = -cl(+-180 deg - alpha), as the
+  Viterna-Corrigan tables do (:mod:`wakes.aero.post_stall`).
 * :class:`TablePolar` -- a CSV table of cl and cd against alpha, linearly
   interpolated. Outside the table an angle is an error, or, if asked, the
   table is extended towards flat-plate values or by the Viterna-Corrigan
@@ -67,9 +71,9 @@ class ThinAirfoilPolar:
     Examples
     --------
     >>> import numpy as np
-    >>> cl, cd, dcl = ThinAirfoilPolar().evaluate(np.radians([5.0]))
-    >>> round(float(cl[0]), 4)
-    0.5483
+    >>> cl, cd, dcl = ThinAirfoilPolar().evaluate(np.radians([5.0, 175.0]))
+    >>> [round(float(x), 4) for x in cl]
+    [0.5483, -0.5483]
     """
 
     lift_slope: float = 2.0 * np.pi
@@ -87,7 +91,12 @@ class ThinAirfoilPolar:
         ``mach`` is accepted and ignored: this is a low-speed polar.
         """
         alpha = np.asarray(alpha, dtype=np.float64)
-        cl = self.lift_slope * (alpha - self.zero_lift_angle)
+        # reversed flow (|alpha| > 90 deg): the forward law at the supplementary angle, sign turned
+        half = 0.5 * np.pi
+        mirrored = np.abs(alpha) > half
+        ref = np.where(alpha > half, np.pi - alpha, np.where(alpha < -half, -np.pi - alpha, alpha))
+        cl = self.lift_slope * (ref - self.zero_lift_angle)
+        cl = np.where(mirrored, -cl, cl)
         cd = self.cd0 + self.cd2 * cl * cl
         return cl, cd, np.full_like(alpha, self.lift_slope)
 
@@ -114,7 +123,8 @@ class TablePolar:
         cd = 2 sin^2 alpha (normal-force coefficient 2 sin alpha; common
         practice for post-stall estimates), and uses those beyond.
         "viterna" continues the table from its end angles by the
-        Viterna-Corrigan extrapolation to +-90 degrees and mirrors it for
+        Viterna-Corrigan extrapolation to +-90 degrees, joined to the
+        table's end segments with a continuous slope and mirrors it for
         reversed flow to +-180 degrees (:mod:`wakes.aero.post_stall`); the
         table must end 5 to 85 degrees from zero on both sides.
     cd_max : float, optional
@@ -155,8 +165,11 @@ class TablePolar:
             check_extendable(lo, hi, name)
             cdm = cd_max_from_aspect_ratio(aspect_ratio) if cd_max is None else float(cd_max)
             if lo > -np.pi or hi < np.pi:
-                self._fits = (ViternaCorrigan(lo, self.cl[0], self.cd[0], cdm),
-                              ViternaCorrigan(hi, self.cl[-1], self.cd[-1], cdm))
+                slope_cd = np.diff(self.cd) / steps
+                self._fits = (ViternaCorrigan(lo, self.cl[0], self.cd[0], cdm,
+                                              end_slope=(self._slope_cl[0], slope_cd[0])),
+                              ViternaCorrigan(hi, self.cl[-1], self.cd[-1], cdm,
+                                              end_slope=(self._slope_cl[-1], slope_cd[-1])))
 
     def __repr__(self) -> str:
         lo, hi = np.degrees(self.alpha[[0, -1]])

@@ -26,7 +26,24 @@ behave as in forward flow at the supplementary angle:
     cl(a) = -cl(180 deg - a),   cd(a) = cd(180 deg - a)     for a > 90 deg,
     cl(a) = -cl(-180 deg - a),  cd(a) = cd(-180 deg - a)    for a < -90 deg.
 
-This is exact for a flat plate (cl = sin 2a, cd = 2 sin^2 a obey it) and our
+A table usually ends near its maximum lift with its lift still rising, where
+the curves above fall steeply: the lift slope would jump from positive to
+strongly negative at a_s (a corner at cl_max on which a Newton solve of the
+lifting line can cycle without converging). Given the table's end slopes,
+the extension therefore starts as the table's last segment continued and
+turns into the Viterna-Corrigan curves over :data:`JOIN_DEG` beyond a_s,
+with the weight s = 10 x^3 - 15 x^4 + 6 x^5 (x the fraction of that band
+crossed):
+
+    cl = (1 - s) (cl_s + cl_s' (a - a_s)) + s cl_VC(a),   likewise cd,
+
+so cl, its slope and its curvature are continuous at a_s and at a_s +
+JOIN_DEG (the lifting line's artificial viscosity past stall follows the
+slope, :mod:`wakes.aero.lifting_line`) and the peak is round (our choice;
+the width is a modelling choice like the method itself, stated here, not
+fitted to a case).
+
+The reversed-flow rule below is exact for a flat plate (cl = sin 2a, cd = 2 sin^2 a obey it) and our
 approximation for a profile with a round nose and a sharp tail. The table
 itself supplies the small angles around +-180 degrees, so the curves are
 continuous everywhere (at a_s, at +-90 and at +-180 degrees) and their slope is
@@ -42,6 +59,7 @@ from ..errors import InputError
 
 CD_MAX_2D = 2.01                 # Viterna & Corrigan's cd_max for AR > 50 (memory)
 MATCH_RANGE_DEG = (5.0, 85.0)    # accepted |a_s|: keeps 1/sin a and 1/cos a_s bounded
+JOIN_DEG = 4.0                   # band beyond a_s over which the table's end turns into the fit (ours)
 
 
 def cd_max_from_aspect_ratio(aspect_ratio: float | None) -> float:
@@ -84,6 +102,10 @@ class ViternaCorrigan:
         Coefficients at ``alpha_s``.
     cd_max : float
         Drag at 90 degrees (see :func:`cd_max_from_aspect_ratio`).
+    end_slope : tuple of float, optional
+        The table's dcl/dalpha and dcd/dalpha [1/rad] at ``alpha_s``; with
+        them the curves join the table smoothly over :data:`JOIN_DEG`
+        (module notes), without them they start at ``alpha_s`` directly.
 
     Examples
     --------
@@ -94,7 +116,7 @@ class ViternaCorrigan:
     ([1.3, 0.0], [0.02, 2.01])
     """
 
-    def __init__(self, alpha_s: float, cl_s: float, cd_s: float, cd_max: float):
+    def __init__(self, alpha_s: float, cl_s: float, cd_s: float, cd_max: float, end_slope=None):
         lo, hi = np.radians(MATCH_RANGE_DEG)
         if not lo <= abs(alpha_s) <= hi:
             raise InputError(f"Viterna-Corrigan matching angle {np.degrees(alpha_s):.4g} deg is outside "
@@ -108,6 +130,7 @@ class ViternaCorrigan:
         self.b2 = (cd_s - cd_max * s * s) / c
         self.a1 = 0.5 * cd_max
         self.a2 = (cl_s - cd_max * s * c) * s / (c * c)
+        self.end_slope = None if end_slope is None else (float(end_slope[0]), float(end_slope[1]))
 
     def evaluate(self, alpha: np.ndarray):
         """cl, cd and dcl/dalpha [1/rad] at ``alpha`` [rad], each of alpha's shape.
@@ -120,6 +143,19 @@ class ViternaCorrigan:
         cl = self.a1 * np.sin(2.0 * a) + self.a2 * c * c / s
         cd = self.b1 * s * s + self.b2 * c
         dcl = 2.0 * self.a1 * np.cos(2.0 * a) - self.a2 * c * (1.0 + s * s) / (s * s)
+        if self.end_slope is None:
+            return cl, cd, dcl
+        # the smooth join with the table's last segment (module notes)
+        side = np.sign(self.alpha_s)
+        band = np.radians(JOIN_DEG)
+        x = np.clip(side * (a - self.alpha_s) / band, 0.0, 1.0)
+        w = x * x * x * (10.0 + x * (6.0 * x - 15.0))
+        dw = side * 30.0 * x * x * (1.0 - x) ** 2 / band
+        cl_line = self.cl_s + self.end_slope[0] * (a - self.alpha_s)
+        cd_line = self.cd_s + self.end_slope[1] * (a - self.alpha_s)
+        dcl = (1.0 - w) * self.end_slope[0] + w * dcl + dw * (cl - cl_line)
+        cl = cl_line + w * (cl - cl_line)
+        cd = cd_line + w * (cd - cd_line)
         return cl, cd, dcl
 
 
