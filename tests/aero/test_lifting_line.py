@@ -3,7 +3,7 @@
 import numpy as np
 import pytest
 from wakes.aero.geometry import Distribution, WingPlanform, wing_surface
-from wakes.aero.lifting_line import LinearCache, SolverSettings, solve_circulation
+from wakes.aero.lifting_line import LinearCache, SolverSettings, falling_slope, solve_circulation
 from wakes.aero.polars import PolarRangeError, SectionPolars, TablePolar, ThinAirfoilPolar
 from wakes.aero.sections import builtin_polar
 from wakes.aero.vortex_lattice import influence_matrix
@@ -114,7 +114,8 @@ def test_wing_past_stall_converges_and_its_lift_settles_as_strips_double():
 def test_stalled_strips_satisfy_the_viscous_section_equation():
     """At convergence Gamma_j - 1/2 q c cl = mu_j (Gamma_j+1 - 2 Gamma_j + Gamma_j-1), Gamma = 0 beyond the tips.
 
-    mu_j = c max(0, -dcl/dalpha) / (2 pi ds_j), zero on strips with a rising lift curve.
+    mu_j = c m(-dcl/dalpha) / (2 pi ds_j), m(x) = max(0, x) rounded below STALL_RAMP (falling_slope),
+    zero on strips with a rising lift curve.
     """
     _, sol, s, aic, onset, polar = _stalled_wing_lift(20, list(range(10, 32, 2)))[-1]
     g = sol.gamma[0][0]
@@ -122,7 +123,7 @@ def test_stalled_strips_satisfy_the_viscous_section_equation():
     vt = np.einsum("ij,ij->i", v, s.chord_dir)
     vn = np.einsum("ij,ij->i", v, s.section_normal)
     cl, _, dcl = polar.evaluate(np.arctan2(vn, vt))
-    mu = s.section_chord * np.maximum(-dcl, 0.0) / (2 * np.pi * np.linalg.norm(s.span_vector, axis=1))
+    mu = s.section_chord * falling_slope(dcl)[0] / (2 * np.pi * np.linalg.norm(s.span_vector, axis=1))
     ext = np.concatenate([[0.0], g, [0.0]])
     lap = ext[2:] - 2 * g + ext[:-2]
     assert (mu > 0).sum() >= 4 and (mu == 0).sum() >= 4               # some strips stalled, some not
