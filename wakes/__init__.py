@@ -21,7 +21,7 @@ from .refinement import refinement_study
 from .run import run_case
 from .simulate import Run
 from .sweep import sweep
-from .trim import trim_rotor
+from .trim import trim_case, trim_rotor
 from .vortex.flow import ParticleFlow
 from .vortex.initial import lamb_oseen_ring, vortex_ring
 
@@ -29,5 +29,6 @@ __all__ = [
     "CaseError", "Filaments", "InputError", "NumericalError", "Particles",
     "WakesError", "exact", "induce", "__version__",
     "ParticleFlow", "lamb_oseen_ring", "vortex_ring",
-    "Case", "Run", "load_case", "parse_case", "refinement_study", "run_case", "sweep", "trim_rotor",
+    "Case", "Run", "load_case", "parse_case", "refinement_study", "run_case", "sweep", "trim_case",
+    "trim_rotor",
 ]

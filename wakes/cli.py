@@ -76,6 +76,7 @@ from .refinement import (
 from .run import case_inputs, check_new_folder, clear_run, result_table, run_guarded, warning_lines, write_run
 from .sweep import SweepStopped, failure_lines, parse_vary, sweep
 from .templates import new_case
+from .trim import trim_case
 from .verify import run_checks
 from .watchdog import EXIT_MEMORY, exit_status
 
@@ -284,9 +285,16 @@ def _run(args) -> int:
     bar = ProgressBar(case.time.dt, origin=(0, 0.0) if state is None else state.origin,
                       quiet=args.quiet, step_costs=costs)
     try:
-        run = run_guarded(case, out, progress=bar, max_memory=max_memory, resume=state,
-                          write=lambda r, o: write_run(r, o, plots=r.status == "finished"
-                                                       and not args.no_plots))
+        trims = {}
+        if state is None:
+            case, trims = _trim(case, args)
+
+        def write(r, o):
+            if trims:
+                r.summary["trim"] = trims
+            return write_run(r, o, plots=r.status == "finished" and not args.no_plots)
+
+        run = run_guarded(case, out, progress=bar, max_memory=max_memory, resume=state, write=write)
     except BaseException:
         if made and not any(out.glob("*.csv")):   # a folder made for a run that wrote no table:
             clear_run(out)                        # its copied inputs go, and then the folder
@@ -303,6 +311,9 @@ def _run(args) -> int:
         wall = run.summary["run"]["wall_time_s"]
         print(f"{case.title}: {case.time.steps} steps of {case.time.dt:.4g} s in {wall:.1f} s")
         print(result_table(run.summary))
+        for body, trim in run.summary.get("trim", {}).items():
+            controls = ", ".join(f"{k} = {v:.4g} deg" for k, v in trim["controls_deg"].items())
+            print(f"{body} trimmed in {trim['iterations']} steps ({trim['runs']} runs): {controls}")
         print(f"results in {out}/")
     lines = warning_lines(run.summary)
     if lines and not args.quiet:
@@ -312,6 +323,19 @@ def _run(args) -> int:
         print(f"wakes: {n} plausibility warning{'s' if n != 1 else ''}; see {out}/summary.json",
               file=sys.stderr)
     return 0
+
+
+def _trim(case, args):
+    """Trim the rotors whose [bodies.NAME.trim] gives targets (:func:`wakes.trim.trim_case`), one
+    line per trim run on stderr; return the trimmed case and the trims for its summary."""
+    def report(body, index, what, controls, residuals):
+        if not args.quiet:
+            c = ", ".join(f"{k} {v:.4g} deg" for k, v in controls.items())
+            r = ", ".join(f"{k} {v:+.4g}" for k, v in residuals.items())
+            print(f"wakes: trim {body}, run {index} ({what}): {c}; off target by {r}", file=sys.stderr)
+
+    trimmed, trims, _ = trim_case(case, progress=report)
+    return trimmed, trims
 
 
 def _check(args) -> int:

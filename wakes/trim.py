@@ -25,6 +25,13 @@ tolerance meaningless). Default tolerances (our choice): forces 0.5 % of
 the thrust scale T_s (the thrust target, or else the first run's thrust),
 moments 0.5 % of T_s R.
 
+A case file asks for a trim in a rotor's ``[bodies.NAME.trim]`` table
+(:class:`wakes.case.specs.TrimSpec`: thrust, roll and pitch moment targets);
+``wakes run`` then trims every such rotor (:func:`trim_case`), writes the
+trimmed case's run and records each trim in ``summary.json`` under
+``"trim"``. :func:`wakes.run.run_case` and the points of a sweep run the
+controls as written.
+
 A rigid, hingeless rotor has no flapping to trim: its hub moments are what
 a trim to zero moments removes. Failure to trim raises
 :class:`wakes.errors.TrimError` naming each target missed, its residual and
@@ -256,3 +263,47 @@ def _failure(body, keys, residual, tol, controls, x, lo, hi, iterations) -> str:
     return (f"trim of {body} did not converge in {iterations} steps: {'; '.join(missed)}; controls reached: "
             f"{', '.join(held)}. A target may be out of the rotor's reach with these controls, or the "
             "loads may not settle (run longer)")
+
+
+def trim_case(case: Case, progress=None) -> tuple[Case, dict, Run | None]:
+    """Trim every rotor of ``case`` whose ``[bodies.NAME.trim]`` table gives targets, one after another.
+
+    Parameters
+    ----------
+    case : wakes.case.Case
+    progress : callable, optional
+        ``progress(body, run_index, what, controls, residuals)`` after every run (see
+        :func:`trim_rotor`).
+
+    Returns
+    -------
+    case : wakes.case.Case
+        The case with every trimmed rotor's controls.
+    trims : dict
+        Body name -> :meth:`TrimResult.summary` (empty: nothing to trim).
+    run : wakes.simulate.Run or None
+        The last trim's run of the returned case (None without a trim).
+
+    Raises
+    ------
+    wakes.errors.TrimError
+        A rotor's targets were not met (see :func:`trim_rotor`).
+
+    Examples
+    --------
+    >>> from wakes.case import load_case
+    >>> trimmed, trims, run = trim_case(load_case("cases/survey-glider.toml"))
+    >>> trims, run is None
+    ({}, True)
+    """
+    trims, run = {}, None
+    for spec in case.bodies:
+        targets = spec.trim.targets() if isinstance(spec, RotorSpec) else {}
+        if not targets:
+            continue
+        report = None if progress is None else (lambda *a, _name=spec.name: progress(_name, *a))
+        result = trim_rotor(case, spec.name, targets, max_iterations=spec.trim.max_iterations, progress=report)
+        case, run = result.case, result.run
+        trims[spec.name] = result.summary()
+    return case, trims, run
+

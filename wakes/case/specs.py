@@ -273,6 +273,34 @@ class ClusterSpec:
         return self
 
 
+MAX_TRIM_FORCE = 1e9         # largest trim target force [N] (and moment [N m] per metre of radius)
+MAX_TRIM_ITERATIONS = 50
+
+
+@dataclass(frozen=True, kw_only=True)
+class TrimSpec:
+    """[bodies.NAME.trim]: loads the rotor's pitch controls are found for before ``wakes run`` runs it.
+
+    Each target given moves one control (:mod:`wakes.trim`): the collective
+    for the first, then cyclic_cos and cyclic_sin; none given, no trim.
+    """
+
+    thrust: float | None = key(None, "target thrust, averaged over the last revolution", "N",
+                               minimum=-MAX_TRIM_FORCE, maximum=MAX_TRIM_FORCE)
+    roll_moment: float | None = key(None, "target hub roll moment (summary roll_moment)", "N m",
+                                    minimum=-MAX_TRIM_FORCE * MAX_LENGTH, maximum=MAX_TRIM_FORCE * MAX_LENGTH)
+    pitch_moment: float | None = key(None, "target hub pitch moment (summary pitch_moment)", "N m",
+                                     minimum=-MAX_TRIM_FORCE * MAX_LENGTH, maximum=MAX_TRIM_FORCE * MAX_LENGTH)
+    max_iterations: int = key(8, "Newton steps at most, each a full run", kind="int", minimum=1,
+                              maximum=MAX_TRIM_ITERATIONS)
+
+    def targets(self) -> dict:
+        """Summary key -> target of every target given, in the order thrust, roll, pitch."""
+        named = (("thrust_N", self.thrust), ("roll_moment_Nm", self.roll_moment),
+                 ("pitch_moment_Nm", self.pitch_moment))
+        return {k: float(v) for k, v in named if v is not None}
+
+
 @dataclass(frozen=True, kw_only=True)
 class AirfoilSpec:
     """[bodies.NAME.airfoil]: the section polar: built in, a CSV table or thin-airfoil theory."""
@@ -537,6 +565,7 @@ class RotorSpec:
                                      "the wake fades (0: none)", minimum=0.0,
                                      maximum=MAX_REVOLUTIONS)
     airfoil: AirfoilSpec = key(AirfoilSpec(), "section polar", kind="table")
+    trim: TrimSpec = key(TrimSpec(), "target loads the controls are trimmed to", kind="table")
     name: str = field(default="rotor", metadata=dict(internal=True))
 
     def geometry(self, freestream=None) -> RotorGeometry:
@@ -868,7 +897,7 @@ def case_reference() -> str:
     sections = [("", Case)] + [(f.name, type(f.default)) for f in public_fields(Case)
                                if f.metadata.get("kind") == "table"]
     sections += [(f"bodies.NAME] (type = \"{t}\")", cls) for t, cls in BODY_TYPES.items()]
-    sections += [("bodies.NAME.airfoil", AirfoilSpec)]
+    sections += [("bodies.NAME.airfoil", AirfoilSpec), ("bodies.NAME.trim] (type = \"rotor\")", TrimSpec)]
     out = []
     for name, cls in sections:
         out.append(f"\n### [{name}" + ("" if name.endswith(")") else "]") if name else "\n### top level")
