@@ -5,6 +5,7 @@ each run about half a second.
 """
 
 import dataclasses
+import re
 
 import numpy as np
 import pytest
@@ -77,3 +78,45 @@ def test_bad_trim_requests_are_refused_before_any_run():
 def test_default_tolerances_scale_with_the_thrust_and_the_radius():
     tol = default_tolerances({"thrust_N": 20.0, "H_force_N": 0.0, "roll_moment_Nm": 0.0}, 20.0, 2.0)
     assert tol == {"thrust_N": 0.1, "H_force_N": 0.1, "roll_moment_Nm": 0.2}
+
+
+def _trim_case_file(tmp_path, trim_table):
+    """The coarse test rotor's case file with a [bodies.rotor.trim] table."""
+    from .aero.test_rotor_run import BASE
+    path = tmp_path / "trim.toml"
+    path.write_text(BASE + "\n[bodies.rotor.trim]\n" + trim_table, encoding="utf-8")
+    return path
+
+
+def test_wakes_run_trims_the_case_file_rotor_and_records_the_controls(tmp_path, capsys, hover_thrust):
+    """[bodies.rotor.trim] thrust = the hover thrust at collective 10 deg, the case file's collective
+    set 2 deg low: `wakes run` trims it (the collective back within 0.1 deg, as the Python trim),
+    prints one line per trim run and writes the trimmed run, with the trim in summary.json."""
+    import json
+
+    from wakes.cli import main
+    path = _trim_case_file(tmp_path, f"thrust = {hover_thrust!r}\n")
+    path.write_text(path.read_text().replace("collective = 10.0", "collective = 8.0"), encoding="utf-8")
+    assert "collective = 8.0" in path.read_text()
+    out = tmp_path / "run"
+    assert main(["run", str(path), "--out", str(out), "--no-plots"]) == 0
+    printed = capsys.readouterr()
+    summary = json.loads((out / "summary.json").read_text())
+    trim = summary["trim"]["rotor"]
+    assert trim["controls_deg"]["collective"] == pytest.approx(HOVER_COLLECTIVE, abs=0.1)
+    assert summary["bodies"]["rotor"]["collective_deg"] == trim["controls_deg"]["collective"]
+    assert abs(summary["bodies"]["rotor"]["thrust_N"] - hover_thrust) <= trim["tolerances"]["thrust_N"]
+    lines = [ln for ln in printed.err.splitlines() if ln.startswith("wakes: trim rotor, run ")]
+    assert len(lines) == trim["runs"] and "(start)" in lines[0] and "off target by thrust_N" in lines[0]
+    assert "rotor trimmed in" in printed.out
+
+
+def test_wakes_run_names_the_target_out_of_reach_and_its_residual(tmp_path, capsys):
+    from wakes.cli import main
+    path = _trim_case_file(tmp_path, "thrust = 500.0\nmax_iterations = 1\n")
+    out = tmp_path / "run"
+    assert main(["run", str(path), "--out", str(out), "--no-plots", "--quiet"]) == 2
+    err = capsys.readouterr().err
+    assert re.search(r"wakes: error: trim of rotor did not converge in 1 steps: thrust_N off by -4\d\d\.?\d* "
+                     r"\(tolerance 2\.5\); controls reached: collective = ", err), err
+    assert not out.exists()
