@@ -192,7 +192,8 @@ RUN_ELSEWHERE = {
     "validation/hover-8deg.toml": "tests/validation/test_rotors.py",
 }
 
-RUN_HERE = ["drone-lift-rotor.toml", "survey-quad-cruise.toml", "propeller-cruise.toml", "propeller-wing.toml", "small-wind-turbine.toml",
+RUN_HERE = ["drone-lift-rotor.toml", "survey-quad-cruise.toml",
+            "propeller-cruise.toml", "propeller-wing.toml", "small-wind-turbine.toml",
             "validation/propeller-axial.toml", "validation/turbine.toml", "template:wing", "template:rotor",
             "template:propeller", "template:turbine"]
 

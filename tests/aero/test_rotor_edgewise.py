@@ -11,7 +11,6 @@ import pandas as pd
 import pytest
 from wakes.aero.rotor_loads import HUB_COLUMNS
 from wakes.case import parse_case
-from wakes.errors import NumericalError
 from wakes.simulate import TimeLoop
 
 from .test_rotor_run import BASE, SAME

@@ -93,7 +93,7 @@ from .polars import PolarRangeError
 _BACKTRACK_HALVINGS = 8
 #: Falling lift slope [1/rad] over which the artificial viscosity reaches its full size (ours; numerical).
 STALL_RAMP = 1.0
-#: An onset flow below this fraction of the surface's strongest one counts as vanishing (our choice).
+#: Onset flow along the chord below this fraction of the surface's strongest onset: explicit strips (our choice).
 WEAK_ONSET = 0.05
 
 
@@ -246,35 +246,6 @@ class _System:
             cl0, cd0, _, _ = self._polars(self.alpha0[ll], v2d[ll], only=self.weight[ll] > 0.0)
             self.cl0[ll], self.cd0[ll] = cl0, cd0
             self.gamma0[ll] = self.weight[ll] * 0.5 * self.chord[ll] * v2d[ll] * np.nan_to_num(cl0)
-
-    def likely_cause(self, res) -> str:
-        """Why the solve did not converge, judged at the section with the largest residual ``res``.
-
-        A lifting-line section whose onset flow (everything but the rings'
-        own induction) reaches it from the trailing edge, or almost vanishes
-        (below :data:`WEAK_ONSET` of the surface's strongest onset), has no
-        unique circulation: the reverse-flow region of a rotor's retreating
-        blade in edgewise flight. Otherwise the usual cause is a stalled
-        section on a falling lift curve.
-        """
-        i = int(np.argmax(np.abs(res)))
-        si = int(self.owner[i])
-        s = self.surfaces[si]
-        if self.ll[i]:
-            o = self.offsets[si]
-            mine = slice(o, o + s.n_unknowns)
-            vt = np.einsum("ij,ij->i", self.onset[mine], self.t[mine])
-            v2d = np.hypot(vt, np.einsum("ij,ij->i", self.onset[mine], self.nrm[mine]))
-            j = i - o
-            where = f"surface '{s.name}', strip {j} (eta = {s.section_eta[j]:.3f})"
-            if vt[j] < 0.0 or v2d[j] < WEAK_ONSET * float(v2d.max()):
-                what = "reaches it from the trailing edge" if vt[j] < 0.0 else "almost vanishes"
-                return (f"at {where} the flow {what} ({v2d[j]:.3g} m/s in its section plane): a lifting "
-                        "line has no unique circulation where the section flow passes through zero, as in "
-                        "the reverse-flow region of a rotor's retreating blade in edgewise flight; remedy: "
-                        "less flight speed across the disc (a lower advance ratio) or a larger root cut-out")
-        return ("likely a stalled section on a polar with a falling lift curve: lower [solver] relaxation or "
-                "raise max_iterations")
 
     def evaluate(self, gamma, jacobian: bool, viscosity=None):
         """Scaled residual (N,), Jacobian (N, N) or None, and the section state.
@@ -476,7 +447,8 @@ def solve_circulation(surfaces, aic: np.ndarray, onset: np.ndarray, gamma0: np.n
                 raise NumericalError(
                     f"circulation did not converge at step {step} (t = {time:.6g} s): largest scaled "
                     f"residual {norm:.3g} after {it} iterations, tolerance {settings.tolerance:g}; "
-                    f"{system.likely_cause(res)}")
+                    "likely a stalled section on a polar with a falling lift curve: lower [solver] "
+                    "relaxation or raise max_iterations")
             try:
                 delta = np.linalg.solve(jac, -res)
             except np.linalg.LinAlgError:
