@@ -114,6 +114,8 @@ def test_wakes_run_trims_the_case_file_rotor_and_records_the_controls(tmp_path, 
 def test_wakes_run_names_the_target_out_of_reach_and_its_residual(tmp_path, capsys):
     from wakes.cli import main
     path = _trim_case_file(tmp_path, "thrust = 500.0\nmax_iterations = 1\n")
+    assert main(["check", str(path), "--quiet"]) == 0
+    assert "wakes run trims rotor first to thrust_N = 500: up to 3 runs" in capsys.readouterr().out
     out = tmp_path / "run"
     assert main(["run", str(path), "--out", str(out), "--no-plots", "--quiet"]) == 2
     err = capsys.readouterr().err

@@ -348,6 +348,12 @@ def _check(args) -> int:
     print(f"{case.title or args.case}: case is valid; estimate (no run):")
     for quantity, value in est.table():
         print(f"  {quantity.ljust(width)}  {value}")
+    for body in case.bodies:
+        targets = body.trim.targets() if getattr(body, "trim", None) else {}
+        if targets:
+            wanted = ", ".join(f"{k} = {v:g}" for k, v in targets.items())
+            print(f"  wakes run trims {body.name} first to {wanted}: up to "
+                  f"{1 + len(targets) + body.trim.max_iterations} runs of this size before the run")
     lines = warning_lines({"warnings": [f.as_dict() for f in case_flags(case)]})
     if lines:
         print("before running, from the case alone: " + lines[0])
