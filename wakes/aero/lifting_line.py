@@ -130,7 +130,7 @@ def explicit_weight(vt, q_ref):
     Examples
     --------
     >>> import numpy as np
-    >>> [round(float(w), 3) for w in explicit_weight(np.array([-3.0, 0.5, 1.5, 2.0, 50.0]), 10.0)]
+    >>> [round(float(w), 3) for w in explicit_weight(np.array([-3.0, 0.25, 0.75, 1.0, 50.0]), 10.0)]
     [1.0, 1.0, 0.5, 0.0, 0.0]
     """
     band = WEAK_ONSET * np.asarray(q_ref, dtype=np.float64)
