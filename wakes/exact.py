@@ -17,7 +17,8 @@ Straight vortices
     line vortex), :data:`LAMB_OSEEN_ALPHA`.
 Wings
     :func:`elliptic_wing_lift_slope`, :func:`elliptic_wing_induced_drag`
-    (Prandtl's lifting line), :func:`wagner_jones` (indicial lift),
+    (Prandtl's lifting line), :func:`theodorsen` (lift deficiency of
+    harmonic motion), :func:`wagner` and :func:`wagner_jones` (indicial lift),
     :func:`helmbold_lift_slope` and :func:`chord_line_sweep` (swept and
     tapered wings), :func:`glauert_rectangular_wing` (lifting line of a
     rectangular wing by Glauert's series), :func:`wieselsberger_drag_ratio` and
@@ -37,7 +38,8 @@ import math
 from types import MappingProxyType
 
 import numpy as np
-from scipy.special import elliprd, elliprf
+from scipy.integrate import quad
+from scipy.special import elliprd, elliprf, hankel2
 
 from ._validate import as_float_array, choice, positive_scalar
 from .errors import InputError
@@ -50,7 +52,7 @@ __all__ = [
     "helmbold_lift_slope",
     "hover_ideal_power", "hover_induced_velocity", "wieselsberger_drag_ratio",
     "lamb_oseen_peak", "lamb_oseen_velocity", "ring_speed", "ring_speed_particles",
-    "ring_velocity", "segment_velocity", "wagner_jones",
+    "ring_velocity", "segment_velocity", "theodorsen", "wagner", "wagner_jones",
 ]
 
 # A target closer than this fraction of the length scale (segment length, ring
@@ -635,6 +637,95 @@ def wagner_jones(s):
     """
     s_arr = _real("s", s, nonnegative=True)
     return _out(1.0 - 0.165 * np.exp(-0.0455 * s_arr) - 0.335 * np.exp(-0.3 * s_arr))
+
+def theodorsen(k):
+    """Theodorsen's lift-deficiency function C(k) of a thin aerofoil in harmonic motion.
+
+    C(k) = H1(k) / (H1(k) + i H0(k)), with H_n = H_n^(2) the Hankel functions
+    of the second kind: the ratio of the circulatory lift to its quasi-steady
+    value, C(0) = 1, C(∞) = 1/2.
+
+    Parameters
+    ----------
+    k : float or array_like
+        Reduced frequency k = ω c / (2 V), positive.
+
+    Returns
+    -------
+    complex or numpy.ndarray of complex
+        C(k) = F(k) + i G(k) (G < 0: the lift lags).
+
+    References
+    ----------
+    Theodorsen, T. 1935, General theory of aerodynamic instability and the
+    mechanism of flutter, NACA Report 496.
+
+    Examples
+    --------
+    >>> from wakes import exact
+    >>> c = exact.theodorsen(0.1)        # tabulated F = 0.8319, G = -0.1723 (memory)
+    >>> round(c.real, 4), round(c.imag, 4)
+    (0.8319, -0.1723)
+    """
+    k_arr = _real("k", k, positive=True)
+    h1, h0 = hankel2(1, k_arr), hankel2(0, k_arr)
+    c = h1 / (h1 + 1j * h0)
+    return complex(c) if np.ndim(c) == 0 else c
+
+
+def _wagner_integrand(k: float) -> float:
+    """F(k)/k, F the real part of Theodorsen's function."""
+    return float(np.real(theodorsen(k))) / k
+
+
+def _wagner_one(s: float) -> float:
+    """Φ(s) of one s >= 0 (Φ(0) = 1/2, the limit from above)."""
+    if s == 0.0:
+        return 0.5
+    near, _ = quad(lambda k: _wagner_integrand(k) * math.sin(k * s), 0.0, 1.0, limit=200, epsabs=1e-12)
+    far, _ = quad(_wagner_integrand, 1.0, np.inf, weight="sin", wvar=s, limlst=200, epsabs=1e-12)
+    return 2.0 / math.pi * (near + far)
+
+
+def wagner(s):
+    """Wagner's indicial lift function, computed from Theodorsen's function.
+
+    Φ(s) = (2/π) ∫_0^∞ F(k)/k sin(k s) dk, F = Re C(k) (:func:`theodorsen`):
+    the circulatory lift of a thin aerofoil after a sudden start (or a step
+    in angle of attack) as a fraction of its steady value, Φ(0) = 1/2,
+    Φ(∞) = 1. The integral is taken by adaptive quadrature (the part past
+    k = 1 as a Fourier integral); two forms of it, the sine form here and
+    the cosine form 1 + (2/π) ∫ G(k)/k cos(k s) dk, agree to 1e-11 for
+    0 < s <= 200 (ours).
+
+    Parameters
+    ----------
+    s : float or array_like
+        Distance travelled in half-chords, s = 2Vt/c, zero or positive.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Φ(s), dimensionless.
+
+    References
+    ----------
+    Wagner, H. 1925, Über die Entstehung des dynamischen Auftriebes von
+    Tragflügeln, Z. angew. Math. Mech. 5; the Fourier relation to
+    Theodorsen's function: Garrick, I. E. 1938, On some reciprocal relations
+    in the theory of nonstationary flows, NACA Report 629 (memory).
+    R. T. Jones's exponential approximation is :func:`wagner_jones`.
+
+    Examples
+    --------
+    >>> from wakes import exact
+    >>> round(exact.wagner(1.0), 4), round(exact.wagner_jones(1.0), 4)
+    (0.6006, 0.5942)
+    """
+    s_arr = _real("s", s, nonnegative=True)
+    out = np.vectorize(_wagner_one, otypes=[np.float64])(s_arr)
+    return _out(out)
+
 
 def glauert_rectangular_wing(aspect_ratio: float, a0: float = 2.0 * np.pi, terms: int = 40):
     """Lift-curve slope and induced-drag factor of an untwisted rectangular wing by Glauert's series.

@@ -438,6 +438,34 @@ def test_wagner_jones():
     assert exact.wagner_jones(10.0) == pytest.approx(0.8786374, abs=5e-7)
 
 
+def test_theodorsen_function():
+    # Theodorsen 1935, NACA Report 496; tabulated F, G (Bisplinghoff, Ashley & Halfman 1955,
+    # Aeroelasticity, table 5-1; values from memory, 4 digits): C(0.1) = 0.8319 - 0.1723i,
+    # C(0.5) = 0.5979 - 0.1507i, C(1) = 0.5394 - 0.1003i.
+    c = exact.theodorsen(np.array([0.1, 0.5, 1.0]))
+    np.testing.assert_allclose(c.real, [0.8319, 0.5979, 0.5394], atol=6e-5)
+    np.testing.assert_allclose(c.imag, [-0.1723, -0.1507, -0.1003], atol=6e-5)
+    # the limits: C -> 1 as k -> 0 (quasi-steady), C -> 1/2 as k -> infinity
+    assert abs(exact.theodorsen(1e-6) - 1.0) < 1e-4
+    assert abs(exact.theodorsen(1e4) - 0.5) < 1e-4
+
+
+def test_wagner_from_theodorsen():
+    # Phi(0) = 1/2 and Phi -> 1 (Wagner 1925); lift builds monotonically.
+    s = np.array([0.0, 0.5, 1.0, 2.0, 4.0, 8.0, 12.0, 30.0, 100.0])
+    phi = exact.wagner(s)
+    assert phi[0] == 0.5
+    assert np.all(np.diff(phi) > 0.0)
+    assert 0.985 < phi[-1] < 1.0
+    # Jones's approximation (Jones 1940, NACA Report 681, memory) stays within 0.7 % of the
+    # final lift of the function it approximates over 0 <= s <= 30 (measured: 0.65 % at s = 1
+    # and s = 6; a fit of two exponentials to the exact function).
+    assert np.max(np.abs(phi[:-1] - exact.wagner_jones(s[:-1]))) < 0.007
+    # Jones's approximation decays exponentially, the exact function algebraically: far from the
+    # start they part (the exact lift is 1 % short of the final lift at s = 100).
+    assert exact.wagner_jones(100.0) - phi[-1] > 0.005
+
+
 # ---------------------------------------------------------------- momentum theory
 
 def test_hover_momentum_theory_worked_numbers():
@@ -518,6 +546,8 @@ BAD_CALLS = [
     (lambda: exact.figure_of_merit(0.005, 0.0), r"power_coefficient"),
     (lambda: exact.froude_efficiency(0.1, -0.2), r"advance_ratio.*-0.2"),
     (lambda: exact.wagner_jones(-1.0), r"^s must.*-1"),
+    (lambda: exact.wagner([1.0, -2.0]), r"^s must.*s\[1\] = -2"),
+    (lambda: exact.theodorsen(0.0), r"^k must be positive"),
 ]
 
 

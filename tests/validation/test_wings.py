@@ -6,8 +6,8 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from wakes import exact
-from wakes.case import load_case, parse_case
+from wakes import exact, verify
+from wakes.case import load_case
 from wakes.run import run_case
 
 CASES = Path(__file__).resolve().parents[2] / "cases" / "validation"
@@ -81,36 +81,28 @@ def test_refinement_changes_elliptic_lift_by_less_than_half_a_percent():
     assert abs(cl1 - cl0) / cl1 < 0.005, (cl0, cl1)
 
 
-def _impulsive_start(aspect_ratio, s_end):
-    """A rectangular flat wing started impulsively at 5 deg: vortex lattice, 16 chordwise
-    panels, a wake panel of 1/20 chord a step, frozen (flat, freestream-convected) wake as
-    Wagner's theory assumes."""
-    chord, speed = 1.0, 10.0
-    dt = 0.05 * chord / speed
-    case = parse_case({
-        "freestream": {"speed": speed, "angle_of_attack": 5.0},
-        "bodies": {"wing": {"type": "wing", "model": "vortex-lattice", "span": aspect_ratio * chord,
-                            "chord": chord, "chordwise_panels": 16, "spanwise_panels": 10}},
-        "wake": {"motion": "frozen"},
-        "time": {"dt": dt, "steps": int(round(s_end * chord / (2 * speed * dt))) + 1},
-    })
-    run = run_case(case)
-    s = 2.0 * speed * run.loads["time_s"].to_numpy() / chord
-    return s, run.loads["CL"].to_numpy()
-
-
 @pytest.mark.slow
 def test_impulsive_start_follows_wagner():
-    """Lift after a sudden start against R. T. Jones's approximation of Wagner's function,
-    Phi(s) = 1 - 0.165 e^(-0.0455 s) - 0.335 e^(-0.3 s), s in half-chords (Jones 1940, NACA
-    Report 681; memory): C_L(s) / (2 pi alpha) within 5 % of Phi(s) from one chord of travel
-    (s = 2) to s = 12. Wagner's function is 2-D; at aspect ratio 100 the steady lift is about
-    2 % below the 2-D value and that share builds up during the run, so the comparison is
-    approximate to that extent."""
-    s, cl = _impulsive_start(100.0, 12.0)
-    sel = s >= 2.0 - 1e-9
-    ratio = cl[sel] / (2 * np.pi * ALPHA) / exact.wagner_jones(s[sel])
-    assert np.all(np.abs(ratio - 1.0) < 0.05), ratio.round(4)
+    """Lift after a sudden start at 5 deg, vortex lattice of aspect ratio 1600 (3-D share below
+    0.1 % of the final lift), a wake row one chordwise panel long a step, frozen wake
+    (wakes.verify.impulsive_start; the full set runs a third level, 64 panels).
+
+    * 32 panels against R. T. Jones's approximation of Wagner's function (Jones 1940, NACA
+      Report 681; memory): within 3 % of the final lift (the tolerance issue 19 sets) from half
+      a chord of travel on (s >= 1); measured 1.6 % at s = 1, under 1 % from s = 2.
+    * The lattice converges at first order in 1/n (the shed vorticity of a step is lumped
+      into one line; observed order 0.98-1.00 over 16/32/64 panels), so 2 phi_32 - phi_16
+      is its extrapolated lift: within 0.5 % of Wagner's function computed from Theodorsen's
+      (exact.wagner, derived); measured 0.2 %.
+    """
+    (s16, l16), (s32, l32) = verify.impulsive_start(16), verify.impulsive_start(32)
+    after = s32 >= 1.0 - 1e-9
+    assert np.max(np.abs(l32[after] - exact.wagner_jones(s32[after]))) < 0.03
+    stations = np.array(verify.WAGNER_STATIONS)
+    at16 = l16[np.searchsorted(s16, stations - 1e-9)]
+    at32 = l32[np.searchsorted(s32, stations - 1e-9)]
+    extrapolated = 2.0 * at32 - at16
+    np.testing.assert_allclose(extrapolated, exact.wagner(stations), rtol=0.005)
 
 
 @pytest.mark.slow
