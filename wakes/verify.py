@@ -5,12 +5,13 @@ it with a closed form or a published value, naming the source. The table is
 what ``wakes verify`` prints; :func:`run_checks` returns it for notebooks.
 
 :data:`CHECKS` are the quick ones (the default, seconds). :data:`FULL_CHECKS`
-add full runs (``wakes verify --full``, about two minutes on one core):
+add full runs (``wakes verify --full``, about three minutes on one core):
 lift-curve slopes of swept and tapered wings against the Helmbold–Diederich
 formula, rectangular wings against Glauert's lifting-line series, a wing's
 induced drag and lift near the ground against Wieselsberger's image theory,
-and a hover rotor's thrust near the ground at equal power against Cheeseman
-& Bennett. The runs go one after the other in this process: a wing run
+a hover rotor's thrust near the ground at equal power against Cheeseman
+& Bennett, and the lift after an impulsive start against Wagner's function
+(three refinement levels, extrapolated). The runs go one after the other in this process: a wing run
 takes under a second, so Dask workers would cost more to start than they
 save.
 """

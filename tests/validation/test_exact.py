@@ -440,7 +440,7 @@ def test_wagner_jones():
 
 def test_theodorsen_function():
     # Theodorsen 1935, NACA Report 496; tabulated F, G (Bisplinghoff, Ashley & Halfman 1955,
-    # Aeroelasticity, table 5-1; values from memory, 4 digits): C(0.1) = 0.8319 - 0.1723i,
+    # Aeroelasticity; values from memory, 4 digits): C(0.1) = 0.8319 - 0.1723i,
     # C(0.5) = 0.5979 - 0.1507i, C(1) = 0.5394 - 0.1003i.
     c = exact.theodorsen(np.array([0.1, 0.5, 1.0]))
     np.testing.assert_allclose(c.real, [0.8319, 0.5979, 0.5394], atol=6e-5)

@@ -12,7 +12,8 @@ Strip forces (per spanwise strip of a surface):
   its one-panel d Gamma/dt term would overshoot Wagner's lift further
   (measured at aspect ratio 100: the quasi-steady lift is 13 % above
   Jones's Wagner approximation after one chord of travel, 7 % after two,
-  2.5 % after four; the 16-panel lattice is within 2.5 %);
+  2.5 % after four; the lattice converges to Wagner's function at first
+  order in its chordwise panels, see :func:`wakes.verify.check_wagner`);
 * profile drag 1/2 rho |V_2D|^2 c c_d w along the local section flow, with
   c_d from the polar at the effective angle of attack and w the strip
   width normal to the chord.
