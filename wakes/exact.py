@@ -18,7 +18,7 @@ Straight vortices
 Wings
     :func:`elliptic_wing_lift_slope`, :func:`elliptic_wing_induced_drag`
     (Prandtl's lifting line), :func:`theodorsen` (lift deficiency of
-    harmonic motion), :func:`wagner` and :func:`wagner_jones` (indicial lift),
+    harmonic motion) and :func:`theodorsen_lift`, :func:`wagner` and :func:`wagner_jones` (indicial lift),
     :func:`helmbold_lift_slope` and :func:`chord_line_sweep` (swept and
     tapered wings), :func:`glauert_rectangular_wing` (lifting line of a
     rectangular wing by Glauert's series), :func:`wieselsberger_drag_ratio` and
@@ -52,7 +52,7 @@ __all__ = [
     "helmbold_lift_slope",
     "hover_ideal_power", "hover_induced_velocity", "wieselsberger_drag_ratio",
     "lamb_oseen_peak", "lamb_oseen_velocity", "ring_speed", "ring_speed_particles",
-    "ring_velocity", "segment_velocity", "theodorsen", "wagner", "wagner_jones",
+    "ring_velocity", "segment_velocity", "theodorsen", "theodorsen_lift", "wagner", "wagner_jones",
 ]
 
 # A target closer than this fraction of the length scale (segment length, ring
@@ -671,6 +671,56 @@ def theodorsen(k):
     h1, h0 = hankel2(1, k_arr), hankel2(0, k_arr)
     c = h1 / (h1 + 1j * h0)
     return complex(c) if np.ndim(c) == 0 else c
+
+
+def theodorsen_lift(k, *, plunge=0.0, pitch=0.0, axis: float = -0.5):
+    """Lift of a thin aerofoil in harmonic plunge and pitch (Theodorsen 1935), as a complex amplitude.
+
+    For the motion z = ĥ e^(iωt) (plunge, up positive) and θ = θ̂ e^(iωt)
+    (pitch, nose up, about the axis ``axis`` semichords behind mid-chord), the
+    lift coefficient (on the chord) is C_L = Λ e^(iωt) with
+
+        Λ = (ĥ/b) (π k² - 2π i k C) + θ̂ [π (i k + a k²) + 2π C (1 + (1/2 - a) i k)],
+
+    C = C(k) (:func:`theodorsen`), b the semichord, the first terms of each
+    bracket the non-circulatory (added-mass) lift. Theodorsen's plunge h is
+    down positive; here it is taken up, as a wing's z axis points.
+
+    Parameters
+    ----------
+    k : float
+        Reduced frequency ω b / V, positive.
+    plunge : complex
+        Plunge amplitude over the semichord, ĥ/b (its phase in its argument).
+    pitch : complex
+        Pitch amplitude θ̂ [rad].
+    axis : float
+        Pitch axis a, in semichords behind mid-chord (-1/2: the quarter chord).
+
+    Returns
+    -------
+    complex
+        Λ: |Λ| the lift coefficient's amplitude, arg Λ its phase [rad] ahead
+        of the motion.
+
+    References
+    ----------
+    Theodorsen, T. 1935, General theory of aerodynamic instability and the
+    mechanism of flutter, NACA Report 496.
+
+    Examples
+    --------
+    >>> from wakes import exact
+    >>> lam = exact.theodorsen_lift(1e-6, pitch=0.01)      # quasi-steady: 2 pi theta
+    >>> round(abs(lam), 6)
+    0.062832
+    """
+    kk = float(_real("k", k, positive=True))
+    a = float(_real("axis", axis))
+    c = theodorsen(kk)
+    h, th = complex(plunge), complex(pitch)
+    return (h * (math.pi * kk ** 2 - 2j * math.pi * kk * c)
+            + th * (math.pi * (1j * kk + a * kk ** 2) + 2.0 * math.pi * c * (1.0 + (0.5 - a) * 1j * kk)))
 
 
 def _wagner_integrand(k: float) -> float:

@@ -1,4 +1,4 @@
-"""The wing body model: a fixed wing in the freestream (case body type ``"wing"``)."""
+"""The wing body model: a wing in the freestream, at rest or in prescribed motion (body type ``"wing"``)."""
 
 from __future__ import annotations
 
@@ -46,10 +46,13 @@ class WingBody:
         self.span = spec.span
         self.moment_reference = np.asarray(spec.moment_reference, dtype=np.float64)
         self.reference_chord = spec.reference_chord
+        self.motion = spec.harmonic_motion()
 
     def surfaces(self, time: float) -> list:
-        """The wing's one surface; a wing does not move."""
-        return [self._surface]
+        """The wing's one surface at ``time`` [s]: at rest, or placed by its prescribed motion."""
+        if self.motion is None:
+            return [self._surface]
+        return [self.motion.place(self._surface, time)]
 
     def new_wake(self, surface, time: float, settings) -> WakeSheet:
         """The free vortex lattice (or particles) shed by ``surface`` from ``time`` [s]."""

@@ -56,6 +56,7 @@ from ..aero.sections import (
     make_polar,
 )
 from ..aero.wake import SEA_LEVEL_KINEMATIC_VISCOSITY
+from ..aero.wing_motion import HarmonicMotion
 from ..errors import CaseError
 from ..induction.api import METHODS
 from ..induction.smoothing import CORE_MODELS, PARTICLE_KERNELS
@@ -301,6 +302,45 @@ class TrimSpec:
         return {k: float(v) for k, v in named if v is not None}
 
 
+DEFAULT_MOTION_STEPS = 32
+"""Time steps a period of a wing's motion gets by default (ours), when the chord gives a longer step."""
+
+MIN_MOTION_STEPS = 8
+"""Fewest time steps a period of a wing's prescribed motion is resolved by (ours: fewer
+samples than this leave the lift's first harmonic, its amplitude and phase, ill-defined)."""
+
+
+@dataclass(frozen=True, kw_only=True)
+class WingMotionSpec:
+    """[bodies.NAME.motion]: prescribed harmonic plunge and pitch of a wing (none by default).
+
+    z = plunge_amplitude sin(2 pi f t) along the body z axis, theta =
+    pitch_amplitude sin(2 pi f t + pitch_lead) nose up about an axis along
+    the span through the root chord at ``pitch_axis``.
+    """
+
+    plunge_amplitude: float = key(0.0, "plunge amplitude, along the body z axis (up)", "m",
+                                  minimum=0.0, maximum=MAX_LENGTH)
+    pitch_amplitude: float = key(0.0, "pitch amplitude, nose up", "deg", minimum=0.0, maximum=45.0)
+    frequency: float = key(0.0, "frequency of the motion (0: none)", "Hz", minimum=0.0, maximum=1e5)
+    pitch_lead: float = key(0.0, "phase by which the pitch leads the plunge", "deg",
+                            minimum=-MAX_ANGLE, maximum=MAX_ANGLE)
+    pitch_axis: float = key(0.25, "pitch axis: fraction of the root chord behind its leading edge",
+                            minimum=-10.0, maximum=10.0)
+
+    @property
+    def moves(self) -> bool:
+        """Whether there is any motion."""
+        return self.frequency > 0.0 and (self.plunge_amplitude > 0.0 or self.pitch_amplitude > 0.0)
+
+    def after_parse(self, raw: dict, where: str, ctx) -> WingMotionSpec:
+        if self.frequency == 0.0 and (self.plunge_amplitude > 0.0 or self.pitch_amplitude > 0.0):
+            ctx.fail(f"{where}.frequency must be positive for a plunge or pitch amplitude; got 0 "
+                     f"(plunge_amplitude = {self.plunge_amplitude:g} m, pitch_amplitude = "
+                     f"{self.pitch_amplitude:g} deg)")
+        return self
+
+
 @dataclass(frozen=True, kw_only=True)
 class AirfoilSpec:
     """[bodies.NAME.airfoil]: the section polar: built in, a CSV table or thin-airfoil theory."""
@@ -422,6 +462,7 @@ class WingSpec:
                                          kind="vec3", minimum=-MAX_REFERENCE_POINT,
                                          maximum=MAX_REFERENCE_POINT, resolved=True)
     airfoil: AirfoilSpec = key(AirfoilSpec(), "section polar", kind="table")
+    motion: WingMotionSpec = key(WingMotionSpec(), "prescribed harmonic plunge and pitch", kind="table")
     name: str = field(default="wing", metadata=dict(internal=True))
 
     def planform(self) -> WingPlanform:
@@ -447,6 +488,26 @@ class WingSpec:
         return wing_triangles(self.planform(), n_span=self.spanwise_panels, spacing=self.spacing,
                               position=self.position, orientation_deg=self.orientation)
 
+    def harmonic_motion(self) -> HarmonicMotion | None:
+        """The prescribed motion (:class:`wakes.aero.wing_motion.HarmonicMotion`), None without one.
+
+        The pitch axis runs along the body y axis through the root chord at
+        ``motion.pitch_axis`` behind its leading edge.
+        """
+        m = self.motion
+        if not m.moves:
+            return None
+        rot = rotation_matrix(self.orientation)
+        planform = self.planform()
+        root = np.zeros(1)
+        chord = float(planform.chord(root, planform.symmetric)[0])
+        along = (planform.chord_direction(root) @ rot.T)[0]
+        point = np.asarray(self.position, dtype=np.float64) + (m.pitch_axis - 0.25) * chord * along
+        return HarmonicMotion(plunge=m.plunge_amplitude, pitch=math.radians(m.pitch_amplitude),
+                              frequency=m.frequency, pitch_lead=math.radians(m.pitch_lead),
+                              axis_point=point, span_axis=rot @ np.array([0.0, 1.0, 0.0]),
+                              up=rot @ np.array([0.0, 0.0, 1.0]))
+
     def check(self, case: Case, where: str, ctx) -> None:
         ground = case.ground.plane()
         if ground is not None:
@@ -461,6 +522,25 @@ class WingSpec:
         if np.linalg.norm(case.freestream.vector()) == 0.0:
             ctx.fail(f"{where}: a wing needs a freestream; [freestream] speed must be positive "
                      "(or velocity nonzero), got zero")
+        motion = self.harmonic_motion()
+        if motion is not None:
+            self._check_motion(motion, case, where, ctx)
+
+    def _check_motion(self, motion: HarmonicMotion, case: Case, where: str, ctx) -> None:
+        """The wing must not overtake the wake it sheds, and the step must resolve the motion."""
+        speed = float(np.linalg.norm(case.freestream.vector()))
+        fastest = motion.largest_speed(self.outline().reshape(-1, 3))
+        if not fastest < speed:
+            ctx.fail(f"{where}.motion moves the wing at up to {fastest:.4g} m/s, not slower than the "
+                     f"freestream ({speed:.4g} m/s): the wing would run into the wake it sheds; lower "
+                     f"plunge_amplitude, pitch_amplitude or frequency until the motion's speed is below "
+                     f"{speed:.4g} m/s")
+        dt = case.time.dt
+        period = 1.0 / motion.frequency
+        if dt is not None and period / dt < MIN_MOTION_STEPS:
+            ctx.fail(f"time.dt = {dt:g} s resolves a period of {where}.motion ({period:.4g} s) by "
+                     f"{period / dt:.3g} steps; at least {MIN_MOTION_STEPS} are needed: dt must be at "
+                     f"most {period / MIN_MOTION_STEPS:.4g} s")
 
     def resolve(self, case: Case) -> WingSpec:
         n_c = self.chordwise_panels or (1 if self.model == "lifting-line" else 4)
@@ -476,7 +556,10 @@ class WingSpec:
 
     def suggest_dt(self, case: Case) -> float:
         speed = float(np.linalg.norm(case.freestream.vector()))
-        return self.mean_chord() / (max(4, self.chordwise_panels or 1) * speed)
+        dt = self.mean_chord() / (max(4, self.chordwise_panels or 1) * speed)
+        if self.motion.moves:
+            dt = min(dt, 1.0 / (DEFAULT_MOTION_STEPS * self.motion.frequency))
+        return dt
 
     def suggest_steps_float(self, case: Case, dt: float) -> float:
         speed = float(np.linalg.norm(case.freestream.vector()))
@@ -897,7 +980,8 @@ def case_reference() -> str:
     sections = [("", Case)] + [(f.name, type(f.default)) for f in public_fields(Case)
                                if f.metadata.get("kind") == "table"]
     sections += [(f"bodies.NAME] (type = \"{t}\")", cls) for t, cls in BODY_TYPES.items()]
-    sections += [("bodies.NAME.airfoil", AirfoilSpec), ("bodies.NAME.trim] (type = \"rotor\")", TrimSpec)]
+    sections += [("bodies.NAME.airfoil", AirfoilSpec), ("bodies.NAME.motion] (type = \"wing\")", WingMotionSpec),
+                 ("bodies.NAME.trim] (type = \"rotor\")", TrimSpec)]
     out = []
     for name, cls in sections:
         out.append(f"\n### [{name}" + ("" if name.endswith(")") else "]") if name else "\n### top level")
