@@ -177,8 +177,9 @@ def _parser() -> argparse.ArgumentParser:
     verify.add_argument("--csv", metavar="FILE", help="also write the table as CSV")
     verify.add_argument("--full", action="store_true",
                         help="also run the wing and rotor checks (swept and tapered wings, rectangular "
-                             "wings, ground effect of a wing and a rotor, impulsive start against Wagner's function; "
-                             "about three minutes on one core)")
+                             "wings, ground effect of a wing and a rotor, a wing's impulsive start and "
+                             "harmonic pitch and plunge against Wagner's and Theodorsen's theory; about "
+                             "five minutes on one core)")
 
     sweep = sub.add_parser("sweep", help="run a case over a grid of values on Dask workers",
                            description="Run CASE once per point of a grid of values and write "

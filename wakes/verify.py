@@ -5,7 +5,7 @@ it with a closed form or a published value, naming the source. The table is
 what ``wakes verify`` prints; :func:`run_checks` returns it for notebooks.
 
 :data:`CHECKS` are the quick ones (the default, seconds). :data:`FULL_CHECKS`
-add full runs (``wakes verify --full``, about three minutes on one core):
+add full runs (``wakes verify --full``, about five minutes on one core):
 lift-curve slopes of swept and tapered wings against the Helmbold–Diederich
 formula, rectangular wings against Glauert's lifting-line series, a wing's
 induced drag and lift near the ground against Wieselsberger's image theory,
