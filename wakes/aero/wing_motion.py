@@ -113,8 +113,13 @@ class HarmonicMotion:
                               polars=s.polars, motion=velocity)
 
     def largest_speed(self, points: np.ndarray) -> float:
-        """Largest speed of the given material ``points`` (M, 3) over a period [m/s] (sampled at
-        64 instants: an upper bound within 0.2 %)."""
+        """A bound on the speed of the material ``points`` (M, 3) over a period [m/s].
+
+        The plunge speed plus the pitch speed of the point farthest from the
+        axis, largest over 64 instants of a period (the sum bounds every
+        point's speed; the sampling may miss its peak by 0.2 % at most, as
+        cos(π/64) > 0.998).
+        """
         p = np.asarray(points, dtype=np.float64) - self.axis_point
         r_perp = p - np.outer(p @ self.span_axis, self.span_axis)
         arm = float(np.max(np.linalg.norm(r_perp, axis=1), initial=0.0))
