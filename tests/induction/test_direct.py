@@ -42,14 +42,16 @@ def test_particles_match_independent_numpy_sum(kernel):
 
 @pytest.mark.parametrize("kernel", ["singular", "winckelmans-leonard"])
 def test_gradient_over_several_source_blocks(kernel):
-    """The gradient drivers sum sources in blocks of direct.GRADIENT_BLOCK
-    (three passes each): two full blocks and a tail of 5 (not a multiple of
-    the 4-wide vectors) agree with the numpy sum to 1e-12 relative, and a
-    target on a source skips only that singular pair.
+    """The gradient drivers sum sources in blocks (direct.GRADIENT_BLOCK in
+    three passes, or direct.SOURCE_BLOCK in one, as the machine chose):
+    two full blocks and a tail of 5 (not a multiple of the vector width)
+    agree with the numpy sum to 1e-12 relative, and a target on a source
+    skips only that singular pair.
     """
     from wakes.induction import direct
 
-    n = 2 * direct.GRADIENT_BLOCK + 5
+    block = direct.GRADIENT_BLOCK if direct.GRADIENT_PASSES == 3 else direct.SOURCE_BLOCK
+    n = 2 * block + 5
     p = random_particles(n, kernel, seed=9)
     rng = np.random.default_rng(2)
     targets = np.vstack([p.positions[::37], rng.uniform(-1.2, 1.2, (20, 3))])
@@ -242,3 +244,67 @@ def test_mixed_sources_sum():
     uf, gf = wakes.induce(f, x, gradient=True)
     assert np.allclose(u, up + uf, rtol=1e-14, atol=1e-16)
     assert np.allclose(g, gp + gf, rtol=1e-14, atol=1e-16)
+
+
+def test_gradient_passes_chosen_from_the_target():
+    """The pass count follows the CPU numba compiles for, and is the one
+    the loaded drivers were built with: one pass where AVX-512 gives 32
+    vector registers, three on AVX2's 16 (feature strings as LLVM writes
+    them; the choice must not depend on the CPU name, e.g. an Intel core
+    that prefers 256-bit vectors).
+    """
+    from wakes.induction import _jit, direct
+
+    avx2 = "+avx,+avx2,+fma,-avx512f,-avx512vl"
+    avx512 = "+avx,+avx2,+fma,+avx512f,+avx512vl"
+    assert _jit.gradient_passes(_jit.machine_target("haswell", avx2)) == 3
+    assert _jit.gradient_passes(_jit.machine_target("znver3", avx2)) == 3
+    for cpu in ("skylake-avx512", "icelake-server", "znver4"):
+        assert _jit.gradient_passes(_jit.machine_target(cpu, avx512)) == 1
+    assert direct.TARGET == _jit.machine_target()
+    assert direct.GRADIENT_PASSES == _jit.gradient_passes(direct.TARGET)
+
+
+_AVX2_CHILD = """
+import json, sys, numpy as np, wakes
+from wakes.induction import direct
+p = wakes.Particles(*[np.asarray(v) for v in json.loads(sys.stdin.read())],
+                    kernel="winckelmans-leonard")
+u, g = wakes.induce(p, p.positions, gradient=True, method="direct")
+print(json.dumps([direct.GRADIENT_PASSES, u.tolist(), g.tolist()]))
+"""
+
+
+def test_three_pass_gradient_on_an_avx2_target(tmp_path):
+    """With every AVX-512 feature off (as on an AVX2 machine; any x86 CPU
+    that runs this suite has AVX2's features, or fewer) a fresh process
+    chooses three passes, and its gradient equals this process's to
+    round-off (1e-13 relative: the summation order differs). Compiles one
+    driver in the child, with its own numba cache.
+    """
+    import json
+    import os
+    import subprocess
+    import sys
+
+    import llvmlite.binding as ll
+
+    feats = ll.get_host_cpu_features()
+    if not feats.get("avx2", False):
+        pytest.skip("needs an x86 CPU with AVX2 (the oldest target the drivers are tuned for)")
+    for k in feats:
+        if k.startswith("avx512"):
+            feats[k] = False
+    root = os.path.dirname(os.path.dirname(os.path.abspath(wakes.__file__)))
+    env = dict(os.environ, NUMBA_CPU_FEATURES=feats.flatten(), NUMBA_CPU_NAME="haswell",
+               NUMBA_CACHE_DIR=str(tmp_path),
+               PYTHONPATH=os.pathsep.join([root, os.environ.get("PYTHONPATH", "")]))
+    p = random_particles(600, "winckelmans-leonard", seed=11)
+    data = json.dumps([p.positions.tolist(), p.strengths.tolist(), p.radii.tolist()])
+    out = subprocess.run([sys.executable, "-c", _AVX2_CHILD], input=data, env=env,
+                         capture_output=True, text=True, check=True, timeout=600)
+    passes, u_child, g_child = json.loads(out.stdout)
+    u, g = wakes.induce(p, p.positions, gradient=True, method="direct")
+    assert passes == 3
+    assert rel(np.array(u_child), u) < 1e-13
+    assert rel(np.array(g_child), g) < 1e-13

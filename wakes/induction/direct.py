@@ -8,14 +8,23 @@ the full arrays), and reductions are allowed to reassociate (fastmath
 ``error_model=ERROR_MODEL`` keeps division from raising, so nothing in a pair
 loop branches out of it.
 
-With the gradient, the algebraic kernels' sources are summed in three
-passes over a sub-block of ``GRADIENT_BLOCK`` sources that stays in L1
-(:func:`_gradient_sums`): the pair factors f and f' (square root and
-division), then the velocity, sum f alpha and f' (alpha x r), then the
-eight gradient sums. One loop holding all fourteen sums runs out of the 16
-AVX2 vector registers and keeps a square root and a division in every
-iteration's dependency chain; split, each loop is short and none spills
-(1.3x faster, measured on an AVX2 CPU; benchmarks/bench_direct.py).
+With the gradient, the algebraic kernels' fourteen sums are one loop
+where the CPU has 32 vector registers (AVX-512, at either vector width),
+and three passes over a sub-block of ``GRADIENT_BLOCK`` sources that stays
+in L1 where it has 16 (AVX2; :func:`_gradient_sums`): the pair factors f
+and f' (square root and division), then the velocity, sum f alpha and
+f' (alpha x r), then the eight gradient sums. On 16 registers one loop
+spills and keeps a square root and a division in every iteration's
+dependency chain; split, each loop is short and none spills (1.3x faster,
+measured on an AVX2 CPU; benchmarks/bench_direct.py). On 32 registers the
+one loop does not spill and the passes' stores and reloads are the cost
+(three passes ran at 1.27x the one loop on an AVX-512 CPU;
+benchmarks/bench_yardstick.py). ``GRADIENT_PASSES`` holds the choice, made
+once at import from the CPU numba compiles for (:mod:`._jit`).
+
+The segment loops select rather than branch (a zero-length segment, a
+target on a singular line, the Lamb-Oseen core's series), so they vectorize
+like the particle loops.
 
 The Gaussian kernel differs from the singular one only within
 ``sqrt(T_FAR)`` = 9.5 sigma (by less than 3e-19 beyond), so its sources are
@@ -35,7 +44,7 @@ import math
 import numpy as np
 from numba import njit, prange
 
-from ._jit import ERROR_MODEL
+from ._jit import ERROR_MODEL, gradient_passes, machine_target
 from ._jit import FASTMATH as _FASTMATH
 from .gaussian import T_FAR, T_NEAR
 from .pairs import (
@@ -53,6 +62,9 @@ SOURCE_BLOCK = 1024
 GRADIENT_BLOCK = 256     # 7 source and 5 scratch arrays of it fit a 32 KiB L1
 SUB_BLOCK = 32
 INV_4PI = 1.0 / (4.0 * math.pi)
+# The CPU numba compiles for, and the choice made from it (_jit.gradient_passes).
+TARGET = machine_target()
+GRADIENT_PASSES = gradient_passes(TARGET)
 # Internal law code next to the kernel codes of .smoothing: the Gaussian
 # kernel where every pair has t >= T_NEAR.
 _GAUSSIAN_FAR = -1
@@ -320,13 +332,17 @@ def _particle_block(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient,
                     i0, i1, vel, grad):
     """Accumulate all sources on targets i0..i1 (one target block)."""
     n_src = sx.shape[0]
+    # the algebraic kernels' gradient runs over L1-sized blocks in three
+    # passes where one loop would spill (GRADIENT_PASSES, from the machine)
+    # (nested conditions on constants, so numba prunes the branches not taken)
+    block = SOURCE_BLOCK
     if kernel == GAUSSIAN:
         inv = np.empty((2, SOURCE_BLOCK))
         box = np.empty((SOURCE_BLOCK // SUB_BLOCK, 7))
     elif gradient:
-        scratch = np.empty((5, GRADIENT_BLOCK))
-    # the algebraic kernels' gradient runs over L1-sized blocks in three passes
-    block = GRADIENT_BLOCK if gradient and kernel != GAUSSIAN else SOURCE_BLOCK
+        if GRADIENT_PASSES == 3:
+            scratch = np.empty((5, GRADIENT_BLOCK))
+            block = GRADIENT_BLOCK
     for j0 in range(0, n_src, block):
         j1 = min(j0 + block, n_src)
         bx = sx[j0:j1]
@@ -343,14 +359,14 @@ def _particle_block(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient,
             else:
                 _gaussian_velocity_block(tx, ty, tz, i0, i1, bx, by, bz, bax, bay, baz, bs2,
                                          inv, box, vel, grad)
-        elif gradient:
+        elif gradient and GRADIENT_PASSES == 3:
             for i in range(i0, i1):
                 _gradient_sums(tx[i], ty[i], tz[i], bx, by, bz, bax, bay, baz, bs2, 0, j1 - j0,
                                kernel, i, vel, grad, scratch)
         else:
             for i in range(i0, i1):
                 _sum_sources(tx[i], ty[i], tz[i], bx, by, bz, bax, bay, baz, bs2, bs2, bs2,
-                             0, j1 - j0, kernel, False, i, vel, grad)
+                             0, j1 - j0, kernel, gradient, i, vel, grad)
 
 
 def _make_particle_driver(kernel, gradient):
@@ -450,14 +466,6 @@ def _segment_block(tx, ty, tz, pax, pay, paz, pbx, pby, pbz, gam, rc2, core, gra
     n_src = pax.shape[0]
     for j0 in range(0, n_src, SOURCE_BLOCK):
         j1 = min(j0 + SOURCE_BLOCK, n_src)
-        bax = pax[j0:j1]
-        bay = pay[j0:j1]
-        baz = paz[j0:j1]
-        bbx = pbx[j0:j1]
-        bby = pby[j0:j1]
-        bbz = pbz[j0:j1]
-        bg = gam[j0:j1]
-        brc2 = rc2[j0:j1]
         m = j1 - j0
         for i in range(i0, i1):
             xi = tx[i]
@@ -475,32 +483,38 @@ def _segment_block(tx, ty, tz, pax, pay, paz, pbx, pby, pbz, gam, rc2, core, gra
             g20 = 0.0
             g21 = 0.0
             g22 = 0.0
-            for j in range(m):
-                r1x = xi - bax[j]
-                r1y = yi - bay[j]
-                r1z = zi - baz[j]
-                r2x = xi - bbx[j]
-                r2y = yi - bby[j]
-                r2z = zi - bbz[j]
+            for jj in range(m):
+                # unsigned index: no wraparound check, so LLVM sees
+                # consecutive addresses (see _sum_sources)
+                j = np.uint64(j0 + jj)
+                r1x = xi - pax[j]
+                r1y = yi - pay[j]
+                r1z = zi - paz[j]
+                r2x = xi - pbx[j]
+                r2y = yi - pby[j]
+                r2z = zi - pbz[j]
                 (r0x, r0y, r0z, cx, cy, cz, c2, l2, i1n, i2n, d1, d2,
                  w) = segment_geometry(r1x, r1y, r1z, r2x, r2y, r2z)
-                if l2 == 0.0:
-                    continue
-                inv_l2 = 1.0 / l2
-                h2 = c2 * inv_l2
-                if core == CORE_SINGULAR and c2 <= SINGULAR_LINE_FRACTION_SQ * l2 * l2:
-                    continue
-                phi, dphi = segment_phi(h2, brc2[j], core)
-                s = bg[j] * phi * inv_l2 * w
+                # A zero-length segment, and a target on a singular segment's
+                # line, add nothing: selected, not branched, so the loop
+                # vectorizes (inv_l2 = 0 zeroes every term; h2 = 1 keeps
+                # phi finite).
+                live = l2 > 0.0
+                if core == CORE_SINGULAR:
+                    live = live and c2 > SINGULAR_LINE_FRACTION_SQ * l2 * l2
+                inv_l2 = 1.0 / l2 if live else 0.0
+                h2 = c2 * inv_l2 if live else 1.0
+                phi, dphi = segment_phi(h2, rc2[j], core)
+                s = gam[j] * phi * inv_l2 * w
                 ux += s * cx
                 uy += s * cy
                 uz += s * cz
                 if gradient:
-                    gk = bg[j] * phi * inv_l2
+                    gk = gam[j] * phi * inv_l2
                     # (a) eps_{jmk} r0_m K W
                     a = gk * w
                     # (b) c_j W dK/dx_k, dK/dx_k = phi' 2 (c x r0)_k / l2^2
-                    bsc = bg[j] * w * dphi * 2.0 * inv_l2 * inv_l2
+                    bsc = gam[j] * w * dphi * 2.0 * inv_l2 * inv_l2
                     kx = (cy * r0z - cz * r0y) * bsc
                     ky = (cz * r0x - cx * r0z) * bsc
                     kz = (cx * r0y - cy * r0x) * bsc

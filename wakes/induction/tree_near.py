@@ -3,7 +3,8 @@
 For each target leaf, the sources of its near leaves are gathered into
 contiguous buffers, one cache-sized block (``direct.SOURCE_BLOCK``) at a
 time, and summed by the same blocked pair loops that the direct drivers use (:mod:`.direct`, inlining the pair laws of
-:mod:`.pairs`), so the tree's near field and the direct sum are one code.
+:mod:`.pairs`), so the tree's near field and the direct sum are one code (with the
+same machine-dependent choices, ``direct.GRADIENT_PASSES``).
 Drivers are compiled per (kernel or core, gradient) pair by a closure
 factory, like the direct ones: the kernel code is a closure constant and
 every branch on it folds away.
