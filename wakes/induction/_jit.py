@@ -20,6 +20,10 @@ from __future__ import annotations
 
 from typing import NamedTuple
 
+import llvmlite.binding as ll
+from numba.core import config
+from numba.core.codegen import get_host_cpu_features
+
 FASTMATH = {"reassoc", "contract"}
 # For exp_neg in gaussian.py: "reassoc" would let LLVM fold (x + C) - C to x and
 # the two-part ln2 back into one constant.
@@ -68,9 +72,6 @@ def machine_target(cpu: str | None = None, features: str | None = None) -> Machi
     (16, 256)
     """
     if cpu is None or features is None:
-        import llvmlite.binding as ll
-        from numba.core import config
-        from numba.core.codegen import get_host_cpu_features
         if cpu is None:
             cpu = config.CPU_NAME or ll.get_host_cpu_name()
         if features is None:
