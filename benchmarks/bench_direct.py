@@ -185,8 +185,9 @@ prange over target blocks; the inner loop runs over a contiguous source range
 with an unsigned index, so LLVM emits packed loads and arithmetic (256-bit,
 4 doubles, on AVX2); fastmath reassoc+contract only, error_model numpy. One
 square root and one division per pair, x^-1 taken as x^-1.5 * x^0.5. With
-the gradient, the algebraic kernels run three passes over blocks of 256
-sources that stay in L1 (pair factors f, f'; velocity, sum f alpha and
+the gradient, the algebraic kernels run one loop where AVX-512 gives 32
+vector registers, and on AVX2 (direct.GRADIENT_PASSES, chosen from numba's
+target) three passes over blocks of 256 sources that stay in L1 (pair factors f, f'; velocity, sum f alpha and
 f' alpha x r; the eight gradient sums): one loop holding all 14 sums spilled
 on the 16 AVX2 registers (1.26-1.29x on the AMD EPYC below). Tried and not
 used on that CPU (Zen 3 class, single-thread CPU time): a float32 reciprocal
