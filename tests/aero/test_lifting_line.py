@@ -115,16 +115,24 @@ def test_stalled_strips_satisfy_the_viscous_section_equation():
     """At convergence Gamma_j - 1/2 q c cl = mu_j (Gamma_j+1 - 2 Gamma_j + Gamma_j-1), Gamma = 0 beyond the tips.
 
     mu_j = c m(-dcl/dalpha) / (2 pi ds_j), m(x) = max(0, x) rounded below STALL_RAMP (falling_slope),
-    zero on strips with a rising lift curve.
+    zero on strips with a rising lift curve, taken at the solve's starting guess (here the previous
+    angle's circulation) and held through the solve.
     """
-    _, sol, s, aic, onset, polar = _stalled_wing_lift(20, list(range(10, 32, 2)))[-1]
+    solves = _stalled_wing_lift(20, list(range(10, 32, 2)))
+    _, sol, s, aic, onset, polar = solves[-1]
+    start = solves[-2][1].gamma[0][0]
+
+    def section(gamma):
+        v = onset + np.einsum("ikn,n->ik", aic, gamma)
+        vt = np.einsum("ij,ij->i", v, s.chord_dir)
+        vn = np.einsum("ij,ij->i", v, s.section_normal)
+        return np.hypot(vt, vn), polar.evaluate(np.arctan2(vn, vt))
+
     g = sol.gamma[0][0]
-    v = onset + np.einsum("ikn,n->ik", aic, g)
-    vt = np.einsum("ij,ij->i", v, s.chord_dir)
-    vn = np.einsum("ij,ij->i", v, s.section_normal)
-    cl, _, dcl = polar.evaluate(np.arctan2(vn, vt))
+    q, (cl, _, _) = section(g)
+    dcl = section(start)[1][2]
     mu = s.section_chord * falling_slope(dcl)[0] / (2 * np.pi * np.linalg.norm(s.span_vector, axis=1))
     ext = np.concatenate([[0.0], g, [0.0]])
     lap = ext[2:] - 2 * g + ext[:-2]
     assert (mu > 0).sum() >= 4 and (mu == 0).sum() >= 4               # some strips stalled, some not
-    np.testing.assert_allclose(g - 0.5 * np.hypot(vt, vn) * s.section_chord * cl, mu * lap, atol=1e-7)
+    np.testing.assert_allclose(g - 0.5 * q * s.section_chord * cl, mu * lap, atol=1e-7)

@@ -36,8 +36,15 @@ derivative as a strip passes cl_max (a kink there makes Newton cycle).
 mu_j is exactly zero where dcl/dalpha >= 0, so solves whose iterates never
 meet a falling lift curve are unchanged. The term is a
 second difference, of order ds Gamma'' (Chattot), and vanishes as the
-strips refine. mu_j is taken at the current iterate's local slope and held
-fixed in the Jacobian. On a
+strips refine. mu_j is taken at the solve's starting guess (in a time
+march the previous step's circulation) and held through the solve, so each
+solve is one smooth system and Newton converges quadratically; the
+viscosity lags the state by one step, and in a march to a steady state the
+two settle together. (Taken at each iterate instead and held fixed only in
+the Jacobian, mu_j moved with every iterate on a strip past cl_max, the
+iterates flipped it between two values and the solve converged linearly
+or not at all: the demo lift rotor edgewise at 10 m/s on the NACA 0012
+stopped at step 4, measured 2026-12-05.) On a
 piecewise-linear table whose slope turns from rising to falling at one
 node (a corner at cl_max) mu_j jumps there, and a strip that settles on
 that corner may not converge; the Viterna-Corrigan extension joins a
@@ -439,7 +446,8 @@ def solve_circulation(surfaces, aic: np.ndarray, onset: np.ndarray, gamma0: np.n
                        for o, s in zip(system.offsets, surfaces)]
         return CirculationSolution(per_surface, v, alpha, cl, cd, 1, float(np.max(np.abs(res))))
     try:
-        res, jac, v, alpha, cl, cd = system.evaluate(gamma, True)
+        mu = system.viscosity(gamma)        # at the starting guess, held through the solve (module notes)
+        res, jac, v, alpha, cl, cd = system.evaluate(gamma, True, viscosity=mu)
         norm = np.max(np.abs(res), initial=0.0)
         it = 0
         while norm > settings.tolerance:
@@ -457,7 +465,7 @@ def solve_circulation(surfaces, aic: np.ndarray, onset: np.ndarray, gamma0: np.n
             frac = settings.relaxation
             for _ in range(_BACKTRACK_HALVINGS):
                 try:
-                    trial = system.evaluate(gamma + frac * delta, False)
+                    trial = system.evaluate(gamma + frac * delta, False, viscosity=mu)
                 except PolarRangeError:
                     frac *= 0.5
                     continue
@@ -465,7 +473,7 @@ def solve_circulation(surfaces, aic: np.ndarray, onset: np.ndarray, gamma0: np.n
                     break
                 frac *= 0.5
             gamma = gamma + frac * delta
-            res, jac, v, alpha, cl, cd = system.evaluate(gamma, True)
+            res, jac, v, alpha, cl, cd = system.evaluate(gamma, True, viscosity=mu)
             norm = np.max(np.abs(res))
             it += 1
     except PolarRangeError as exc:
