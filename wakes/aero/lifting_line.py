@@ -40,7 +40,10 @@ strips refine. mu_j is taken at the solve's starting guess (in a time
 march the previous step's circulation) and held through the solve, so each
 solve is one smooth system and Newton converges quadratically; the
 viscosity lags the state by one step, and in a march to a steady state the
-two settle together. (Taken at each iterate instead and held fixed only in
+two settle together. A solve not converged after 10 iterations takes mu at
+the iterate reached and goes on (every 10 iterations): a strip attached at
+the start and stalled now has mu = 0 at first, and its equation on the
+falling lift curve may have no nearby solution without it. (Taken at each iterate instead and held fixed only in
 the Jacobian, mu_j moved with every iterate on a strip past cl_max, the
 iterates flipped it between two values and the solve converged linearly
 or not at all: the demo lift rotor edgewise at 10 m/s on the NACA 0012
@@ -98,6 +101,7 @@ from ..errors import NumericalError
 from .polars import PolarRangeError
 
 _BACKTRACK_HALVINGS = 8
+_VISCOSITY_REFRESH = 10     # Newton iterations after which an unconverged solve takes mu at its iterate
 #: Falling lift slope [1/rad] over which the artificial viscosity reaches its full size (ours; numerical).
 STALL_RAMP = 1.0
 #: Onset flow along the chord below this fraction of the surface's strongest onset: explicit strips (our choice).
@@ -473,9 +477,11 @@ def solve_circulation(surfaces, aic: np.ndarray, onset: np.ndarray, gamma0: np.n
                     break
                 frac *= 0.5
             gamma = gamma + frac * delta
+            it += 1
+            if it % _VISCOSITY_REFRESH == 0:
+                mu = system.viscosity(gamma)    # not converged with it: take it at the iterate reached
             res, jac, v, alpha, cl, cd = system.evaluate(gamma, True, viscosity=mu)
             norm = np.max(np.abs(res))
-            it += 1
     except PolarRangeError as exc:
         raise PolarRangeError(f"{exc} at step {step} (t = {time:.6g} s)", exc.index, exc.alpha_deg,
                               exc.mach) from None
