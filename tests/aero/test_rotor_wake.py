@@ -65,10 +65,12 @@ def test_inboard_trailers_zero_follows_only_the_tip_vortex():
     assert points.shape == (1, 3) and strengths[0] == pytest.approx(loading().max())
 
 
-def wake_after(steps, rollup=3, trailers=2, max_age=np.inf, dt=0.01, axial=True, fade_age=0.0):
+def wake_after(steps, rollup=3, trailers=2, max_age=np.inf, dt=0.01, axial=True, fade_age=0.0,
+               free_age=np.inf, period=np.inf):
     settings = WakeSettings(core="vatistas2", core_radius=0.02, max_age=max_age)
     w = RolledUpWake(row(), 0.0, settings, rollup_steps=rollup, inboard_trailers=trailers,
-                     tip_last=True, hub=np.zeros(3), axis=AXIS, axial_flow=axial, fade_age=fade_age)
+                     tip_last=True, hub=np.zeros(3), axis=AXIS, axial_flow=axial, fade_age=fade_age,
+                     free_age=free_age, period=period)
     for k in range(steps):
         w.settle(w.state() + dt * w.rates(np.tile([0.0, 0.0, -1.0], (w.node_count, 1))))
         w.shed(row(angle=0.1 * (k + 1)), loading(), (k + 1) * dt)
@@ -110,6 +112,26 @@ def test_uniform_axial_motion_translates_every_node():
     before = w.rows.copy()
     w.settle(w.state() + 0.01 * w.rates(np.tile([0.0, 0.0, -2.0], (w.node_count, 1))))
     assert np.allclose(w.rows - before, [0.0, 0.0, -0.02])
+
+
+@pytest.mark.parametrize("axial", [True, False])
+def test_far_wake_older_than_free_age_moves_with_the_last_free_revolutions_tip_vortex(axial):
+    """Rows older than free_age (0.045 s) all get the mean tip-vortex velocity of the rows of
+    the revolution (0.03 s) before it; in axial flow only its axial part. Younger rows and the
+    near sheet keep their own velocity."""
+    w = wake_after(12, free_age=0.045, period=0.03, axial=axial)
+    k = w.near.size // 3
+    rng = np.random.default_rng(3)
+    u = rng.normal(size=(w.node_count, 3))
+    rates = w.rates(u)
+    age = w.near_time[0] - w.far_time
+    rigid, last = age > 0.045 + 1e-12, (age <= 0.045 + 1e-12) & (age > 0.015)
+    assert rigid.sum() >= 2 and last.sum() >= 2
+    mean = u[k:].reshape(w.far.shape)[last, -1].mean(axis=0)
+    expected = mean * AXIS if axial else mean
+    assert np.allclose(rates[k:].reshape(w.far.shape)[rigid], expected)
+    assert np.array_equal(rates[:k], u[:k])
+    assert np.allclose(rates[k:].reshape(w.far.shape)[~rigid, -1], u[k:].reshape(w.far.shape)[~rigid, -1])
 
 
 def test_inboard_trailers_keep_their_radius_relative_to_the_tip_vortex():

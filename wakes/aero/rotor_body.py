@@ -130,7 +130,8 @@ class RotorBody:
                             inboard_trailers=self.spec.inboard_trailers, tip_last=g.spin > 0,
                             hub=self.hub, axis=self.axis, axial_flow=self.axial_flow,
                             startup=startup, symmetry=self._symmetry,
-                            fade_age=min(self.spec.wake_fade_revolutions * g.period, 0.5 * settings.max_age))
+                            fade_age=min(self.spec.wake_fade_revolutions * g.period, 0.5 * settings.max_age),
+                            free_age=self.spec.free_wake_revolutions * g.period, period=g.period)
         self._wakes.append(wake)
         return wake
 

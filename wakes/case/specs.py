@@ -637,6 +637,9 @@ class RotorSpec:
                                        "circulation fades linearly to zero, at most half the kept wake "
                                        "(0: cut abruptly)",
                                        minimum=0.0, maximum=MAX_REVOLUTIONS)
+    free_wake_revolutions: float = key(float("inf"), "wake older than this many revolutions moves "
+                                       "rigidly with the mean velocity of the revolution before it (inf: "
+                                       "all free)", above=0.0, maximum=MAX_REVOLUTIONS, allow_inf=True)
     rollup_age: float = key(360.0, "wake age where the blade's resolved sheet rolls up into a tip "
                             "vortex and inboard trailers (inf: never)", "deg", above=0.0,
                             maximum=360.0 * MAX_REVOLUTIONS, allow_inf=True)
