@@ -476,17 +476,28 @@ def impulsive_start(chordwise_panels: int, *, aspect_ratio: float = WAGNER_ASPEC
     >>> float(s[-1]), bool(0.6 < lift[-1] < 0.9)
     (4.0, True)
     """
-    chord, speed = 1.0, 10.0
-    dt = chord / (chordwise_panels * speed)
-    data = {"freestream": {"speed": speed, "angle_of_attack": incidence},
-            "bodies": {"wing": {"type": "wing", "model": "vortex-lattice", "span": aspect_ratio * chord,
-                                "chord": chord, "chordwise_panels": int(chordwise_panels),
-                                "spanwise_panels": int(spanwise_panels)}},
+    t, cl = _flat_wing_lift(chordwise_panels, spanwise_panels, aspect_ratio, incidence,
+                            int(round(s_end * chordwise_panels / 2.0)) + 1)
+    return 2.0 * _SPEED * t / _CHORD, cl / (2.0 * math.pi * math.radians(incidence))
+
+
+_CHORD, _SPEED = 1.0, 10.0      # chord [m] and freestream speed [m/s] of the unsteady-wing runs
+
+
+def _flat_wing_lift(chordwise_panels: int, spanwise_panels: int, aspect_ratio: float, incidence: float,
+                    steps: int, motion: dict | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """Times (steps,) [s] and C_L (steps,) of a flat rectangular vortex-lattice wing of unit chord
+    in a freestream of 10 m/s at ``incidence`` [deg], frozen wake, a wake row one chordwise panel
+    long a step; ``motion`` the keys of its ``[bodies.wing.motion]`` table, if any."""
+    wing = {"type": "wing", "model": "vortex-lattice", "span": aspect_ratio * _CHORD, "chord": _CHORD,
+            "chordwise_panels": int(chordwise_panels), "spanwise_panels": int(spanwise_panels)}
+    if motion is not None:
+        wing["motion"] = motion
+    data = {"freestream": {"speed": _SPEED, "angle_of_attack": incidence}, "bodies": {"wing": wing},
             "wake": {"motion": "frozen"}, "output": {"wake": False},
-            "time": {"dt": dt, "steps": int(round(s_end * chordwise_panels / 2.0)) + 1}}
+            "time": {"dt": _CHORD / (chordwise_panels * _SPEED), "steps": int(steps)}}
     loads = run_case(parse_case(data, source="wakes verify")).loads
-    s = 2.0 * speed * loads["time_s"].to_numpy() / chord
-    return s, loads["CL"].to_numpy() / (2.0 * math.pi * math.radians(incidence))
+    return loads["time_s"].to_numpy(), loads["CL"].to_numpy()
 
 
 def check_wagner() -> list[CheckResult]:
@@ -579,19 +590,10 @@ def harmonic_lift(motion: dict, reduced_frequency: float, chordwise_panels: int,
     >>> bool(0.07 < abs(lam) < 0.1)
     True
     """
-    chord, speed = 1.0, 10.0
-    frequency = reduced_frequency * speed / (math.pi * chord)
-    dt = chord / (chordwise_panels * speed)
-    steps = int(round(periods / (frequency * dt))) + 1
-    data = {"freestream": {"speed": speed, "angle_of_attack": 0.0},
-            "bodies": {"wing": {"type": "wing", "model": "vortex-lattice", "span": aspect_ratio * chord,
-                                "chord": chord, "chordwise_panels": int(chordwise_panels),
-                                "spanwise_panels": int(spanwise_panels),
-                                "motion": {**motion, "frequency": frequency}}},
-            "wake": {"motion": "frozen"}, "output": {"wake": False},
-            "time": {"dt": dt, "steps": steps}}
-    loads = run_case(parse_case(data, source="wakes verify")).loads
-    t, cl = loads["time_s"].to_numpy(), loads["CL"].to_numpy()
+    frequency = reduced_frequency * _SPEED / (math.pi * _CHORD)
+    dt = _CHORD / (chordwise_panels * _SPEED)
+    t, cl = _flat_wing_lift(chordwise_panels, spanwise_panels, aspect_ratio, 0.0,
+                            int(round(periods / (frequency * dt))) + 1, {**motion, "frequency": frequency})
     omega = 2.0 * math.pi * frequency
     last = t >= t[-1] - 1.0 / frequency + 0.5 * dt       # one whole period of samples
     basis = np.stack([np.sin(omega * t[last]), np.cos(omega * t[last]), np.ones(int(last.sum()))], axis=1)

@@ -291,10 +291,7 @@ class _System:
             alpha[ll] = np.where(explicit, self.alpha0[ll], a)
             cl[ll] = np.where(explicit, self.cl0[ll], cl_l)
             cd[ll] = np.where(explicit, self.cd0[ll], cd_l)
-            if viscosity is None:
-                mu = k * c * falling_slope(dcl)[0] / (2.0 * np.pi * self.width[ll])
-            else:
-                mu = viscosity[ll]
+            mu = self._viscosity_at_slope(dcl) if viscosity is None else viscosity[ll]
             stalled = mu > 0.0
             if jacobian:
                 qs = np.maximum(q, 1e-300)
@@ -323,8 +320,13 @@ class _System:
             vt = np.einsum("ij,ij->i", v, self.t[ll])
             vn = np.einsum("ij,ij->i", v, self.nrm[ll])
             dcl = self._coupled_polars(np.arctan2(vn, vt), np.hypot(vt, vn), self.coupled[ll] > 0.0)[2]
-            mu[ll] = self.coupled[ll] * self.chord[ll] * falling_slope(dcl)[0] / (2.0 * np.pi * self.width[ll])
+            mu[ll] = self._viscosity_at_slope(dcl)
         return mu
+
+    def _viscosity_at_slope(self, dcl):
+        """mu (n_ll,) of the lifting-line strips at lift slopes ``dcl`` [1/rad] (module notes)."""
+        ll = self.ll
+        return self.coupled[ll] * self.chord[ll] * falling_slope(dcl)[0] / (2.0 * np.pi * self.width[ll])
 
     def _second_difference(self, gamma):
         """Gamma_j+1 - 2 Gamma_j + Gamma_j-1 along each lifting line's span, Gamma = 0 beyond its ends."""

@@ -32,7 +32,7 @@ import numpy as np
 
 from ..errors import CaseError, InputError, PolarRangeError
 from ..io.tables import read_numeric_table
-from .post_stall import ViternaCorrigan, cd_max_from_aspect_ratio, check_extendable, extend_to_180
+from .post_stall import ViternaCorrigan, cd_max_from_aspect_ratio, check_extendable, extend_to_180, reversed_flow_angle
 
 POLAR_COLUMNS = ("alpha_deg", "cl", "cd")
 OUT_OF_RANGE_MODES = ("error", "flat-plate", "viterna")     # the modes the case schema offers
@@ -92,9 +92,7 @@ class ThinAirfoilPolar:
         """
         alpha = np.asarray(alpha, dtype=np.float64)
         # reversed flow (|alpha| > 90 deg): the forward law at the supplementary angle, sign turned
-        half = 0.5 * np.pi
-        mirrored = np.abs(alpha) > half
-        ref = np.where(alpha > half, np.pi - alpha, np.where(alpha < -half, -np.pi - alpha, alpha))
+        ref, mirrored = reversed_flow_angle(alpha)
         cl = self.lift_slope * (ref - self.zero_lift_angle)
         cl = np.where(mirrored, -cl, cl)
         cd = self.cd0 + self.cd2 * cl * cl

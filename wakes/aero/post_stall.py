@@ -170,6 +170,32 @@ def check_extendable(lo: float, hi: float, name: str) -> None:
                          f"{MATCH_RANGE_DEG[1]:g} deg from zero (past stall, short of 90 deg)")
 
 
+def reversed_flow_angle(alpha: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The forward angle a section in reversed flow behaves at (module notes) and where it applies.
+
+    Parameters
+    ----------
+    alpha : ndarray
+        Angles of attack [rad] in -180..180 deg.
+
+    Returns
+    -------
+    ref : ndarray
+        alpha within +-90 deg; the supplementary angle +-180 deg - alpha beyond.
+    mirrored : ndarray of bool
+        |alpha| > 90 deg, where cl(alpha) = -cl(ref) and cd(alpha) = cd(ref).
+
+    Examples
+    --------
+    >>> ref, mirrored = reversed_flow_angle(np.radians([30.0, 170.0, -120.0]))
+    >>> np.round(np.degrees(ref), 6).tolist(), mirrored.tolist()
+    [[30.0, 10.0, -60.0], [False, True, True]]
+    """
+    a = np.asarray(alpha, dtype=np.float64)
+    half = 0.5 * np.pi
+    return np.where(a > half, np.pi - a, np.where(a < -half, -np.pi - a, a)), np.abs(a) > half
+
+
 def extend_to_180(alpha: np.ndarray, table, lo: float, hi: float, low_fit: ViternaCorrigan,
                   high_fit: ViternaCorrigan):
     """Coefficients at angles outside a table [lo, hi], to +-180 degrees.
@@ -192,10 +218,7 @@ def extend_to_180(alpha: np.ndarray, table, lo: float, hi: float, low_fit: Viter
     """
     a = np.asarray(alpha, dtype=np.float64)
     a = np.mod(a + np.pi, 2.0 * np.pi) - np.pi
-    half = 0.5 * np.pi
-    # reference angle in [-90, 90] deg and whether the reversed-flow mirror applies
-    ref = np.where(a > half, np.pi - a, np.where(a < -half, -np.pi - a, a))
-    mirrored = np.abs(a) > half
+    ref, mirrored = reversed_flow_angle(a)
     cl, cd, dcl = (np.empty_like(a) for _ in range(3))
     for sel, fn in ((ref > hi, high_fit.evaluate), (ref < lo, low_fit.evaluate),
                     ((ref >= lo) & (ref <= hi), table)):

@@ -71,12 +71,10 @@ def machine_target(cpu: str | None = None, features: str | None = None) -> Machi
     >>> t.vector_registers, t.max_vector_bits
     (16, 256)
     """
-    if cpu is None or features is None:
-        if cpu is None:
-            cpu = config.CPU_NAME or ll.get_host_cpu_name()
-        if features is None:
-            features = (config.CPU_FEATURES if config.CPU_FEATURES is not None
-                        else get_host_cpu_features())
+    if cpu is None:
+        cpu = config.CPU_NAME or ll.get_host_cpu_name()
+    if features is None:
+        features = config.CPU_FEATURES if config.CPU_FEATURES is not None else get_host_cpu_features()
     enabled = {f[1:] for f in features.split(",") if f.startswith("+")}
     avx512f = "avx512f" in enabled
     avx2 = "avx2" in enabled
