@@ -189,7 +189,7 @@ def reversed_flow_angle(alpha: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     --------
     >>> ref, mirrored = reversed_flow_angle(np.radians([30.0, 170.0, -120.0]))
     >>> np.round(np.degrees(ref), 6).tolist(), mirrored.tolist()
-    [[30.0, 10.0, -60.0], [False, True, True]]
+    ([30.0, 10.0, -60.0], [False, True, True])
     """
     a = np.asarray(alpha, dtype=np.float64)
     half = 0.5 * np.pi
