@@ -19,6 +19,9 @@ Wings
     :func:`elliptic_wing_lift_slope`, :func:`elliptic_wing_induced_drag`
     (Prandtl's lifting line), :func:`theodorsen` (lift deficiency of
     harmonic motion) and :func:`theodorsen_lift`, :func:`wagner` and :func:`wagner_jones` (indicial lift),
+    :func:`sears` (lift in a sinusoidal gust), :func:`kussner` and
+    :func:`kussner_sears_sparks` (lift entering a sharp-edged gust),
+    :func:`one_minus_cosine_gust_lift` (a one-minus-cosine gust),
     :func:`helmbold_lift_slope` and :func:`chord_line_sweep` (swept and
     tapered wings), :func:`glauert_rectangular_wing` (lifting line of a
     rectangular wing by Glauert's series), :func:`wieselsberger_drag_ratio` and
@@ -39,7 +42,8 @@ from types import MappingProxyType
 
 import numpy as np
 from scipy.integrate import quad
-from scipy.special import elliprd, elliprf, hankel2
+from scipy.interpolate import CubicSpline
+from scipy.special import elliprd, elliprf, hankel2, j0, j1
 
 from ._validate import as_float_array, choice, positive_scalar
 from .errors import InputError
@@ -53,6 +57,7 @@ __all__ = [
     "hover_ideal_power", "hover_induced_velocity", "wieselsberger_drag_ratio",
     "lamb_oseen_peak", "lamb_oseen_velocity", "ring_speed", "ring_speed_particles",
     "ring_velocity", "segment_velocity", "theodorsen", "theodorsen_lift", "wagner", "wagner_jones",
+    "kussner", "kussner_sears_sparks", "sears", "one_minus_cosine_gust_lift",
 ]
 
 # A target closer than this fraction of the length scale (segment length, ring
@@ -775,6 +780,189 @@ def wagner(s):
     s_arr = _real("s", s, nonnegative=True)
     out = np.vectorize(_wagner_one, otypes=[np.float64])(s_arr)
     return _out(out)
+
+
+def sears(k):
+    """Sears's function S(k): the lift of a thin aerofoil in a sinusoidal vertical gust.
+
+    S(k) = [J0(k) - i J1(k)] C(k) + i J1(k), C(k) Theodorsen's function
+    (:func:`theodorsen`): for a gust w = ŵ e^(iω(t - x/V)) frozen in the
+    flow, x measured from mid-chord, the lift coefficient (on the chord) is
+    C_L = 2π (ŵ/V) S(k) e^(iωt), the whole lift (there is no separate
+    added-mass part). S(0) = 1; |S| falls as 1/sqrt(2πk).
+
+    Parameters
+    ----------
+    k : float or array_like
+        Reduced frequency k = ω c / (2 V), positive.
+
+    Returns
+    -------
+    complex or numpy.ndarray of complex
+        S(k), the phase referred to the gust at mid-chord.
+
+    References
+    ----------
+    Sears, W. R. 1941, Some aspects of non-stationary airfoil theory and
+    its practical application, J. Aeronaut. Sci. 8 (3).
+
+    Examples
+    --------
+    >>> from wakes import exact
+    >>> round(abs(exact.sears(1e-6)), 4), round(abs(exact.sears(1e4)) * (2 * np.pi * 1e4) ** 0.5, 3)
+    (1.0, 1.0)
+    """
+    k_arr = _real("k", k, positive=True)
+    s = (j0(k_arr) - 1j * j1(k_arr)) * theodorsen(k_arr) + 1j * j1(k_arr)
+    return complex(s) if np.ndim(s) == 0 else s
+
+
+def _kussner_integrand(k: float) -> float:
+    """Re[S(k) e^(-ik)]/k: Sears's function referred to the gust at the leading edge, over k."""
+    return float(np.real(sears(k) * np.exp(-1j * k))) / k
+
+
+def _kussner_one(s: float) -> float:
+    """ψ(s) of one s >= 0."""
+    if s == 0.0:
+        return 0.0
+    near, _ = quad(lambda k: _kussner_integrand(k) * math.sin(k * s), 0.0, 1.0, limit=200, epsabs=1e-12)
+    far, _ = quad(_kussner_integrand, 1.0, np.inf, weight="sin", wvar=s, limlst=200, epsabs=1e-12)
+    return 2.0 / math.pi * (near + far)
+
+
+def kussner(s):
+    """Küssner's function: the lift of a thin aerofoil entering a sharp-edged gust.
+
+    A vertical gust of velocity w, frozen in the flow, whose front reaches
+    the leading edge at s = 0, gives the lift C_L = 2π (w/V) ψ(s); ψ(0) = 0,
+    ψ(∞) = 1. Computed as a step response from Sears's function
+    (:func:`sears`) referred to the leading edge,
+
+        ψ(s) = (2/π) ∫_0^∞ Re[S(k) e^(-ik)]/k sin(k s) dk,
+
+    by adaptive quadrature (the part past k = 1 as a Fourier integral), as
+    :func:`wagner` is from Theodorsen's function. The cosine form
+    1 + (2/π) ∫ Im[S e^(-ik)]/k cos(k s) dk, which equals it only for a
+    response that starts when the gust reaches the leading edge, agrees to
+    1e-11 for 0 < s <= 60 (ours); near the start ψ follows sqrt(2s)/π, the
+    step response of S's high-frequency limit e^(i(k - π/4))/sqrt(2πk)
+    (derived).
+
+    Parameters
+    ----------
+    s : float or array_like
+        Distance the gust front has travelled past the leading edge, in
+        half-chords, s = 2Vt/c, zero or positive.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        ψ(s), dimensionless.
+
+    References
+    ----------
+    Küssner, H. G. 1936, Schwingungen von Flugzeugflügeln, Luftfahrtforschung
+    13; Sears, W. R. 1941, J. Aeronaut. Sci. 8 (3). Sears & Sparks's
+    exponential approximation is :func:`kussner_sears_sparks`.
+
+    Examples
+    --------
+    >>> from wakes import exact
+    >>> round(exact.kussner(2.0), 4), round(exact.kussner_sears_sparks(2.0), 4)
+    (0.5508, 0.5468)
+    """
+    s_arr = _real("s", s, nonnegative=True)
+    return _out(np.vectorize(_kussner_one, otypes=[np.float64])(s_arr))
+
+
+def kussner_sears_sparks(s):
+    """Sears & Sparks's exponential approximation of Küssner's function.
+
+    ψ(s) = 1 - 0.5 e^(-0.13 s) - 0.5 e^(-s) (from memory), ψ(0) = 0, ψ(∞) = 1.
+    It departs from :func:`kussner` by up to 0.095 of the final lift, near
+    s = 0.2, and by 0.04 at s = 1 (measured).
+
+    Parameters
+    ----------
+    s : float or array_like
+        Distance the gust front has travelled past the leading edge, in
+        half-chords, zero or positive.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        The approximate ψ(s).
+
+    References
+    ----------
+    Sears, W. R. & Sparks, B. O. 1941, On the reaction of an elastic wing
+    to vertical gusts, J. Aeronaut. Sci. 9 (2).
+
+    Examples
+    --------
+    >>> from wakes import exact
+    >>> exact.kussner_sears_sparks(0.0)
+    0.0
+    """
+    s_arr = _real("s", s, nonnegative=True)
+    return _out(1.0 - 0.5 * np.exp(-0.13 * s_arr) - 0.5 * np.exp(-s_arr))
+
+
+def one_minus_cosine_gust_lift(s, length, *, samples: int = 400, nodes: int = 41):
+    """Lift of a thin aerofoil in a one-minus-cosine gust, by Duhamel's integral of Küssner's function.
+
+    The gust's velocity at the leading edge is w(σ) = (ŵ/2)(1 - cos(2πσ/g))
+    for 0 <= σ <= g (σ the distance its front has travelled past the leading
+    edge, g its length, both in half-chords), zero outside; the lift is
+    C_L(s) = 2π (ŵ/V) ∫_0^s (dw/dσ / ŵ) ψ(s - σ) dσ, ψ = :func:`kussner`.
+    The integral is taken by the midpoint rule on ``samples`` intervals of
+    the gust, with ψ interpolated by a cubic spline in sqrt(s) through
+    ``nodes`` values (ψ grows as sqrt(s) from the start, so it is smooth in
+    that variable). With the defaults the result lies within 5e-5 of that
+    with four times the samples and eight times the nodes (measured, g = 10,
+    0 <= s <= 40; the midpoint rule's error, at the kink of ψ at the start,
+    is most of it).
+
+    Parameters
+    ----------
+    s : float or array_like
+        Distance the gust front has travelled past the leading edge, in
+        half-chords, zero or positive.
+    length : float
+        Gust length g, in half-chords, positive.
+    samples : int
+        Intervals of the gust in the midpoint rule.
+    nodes : int
+        Values of ψ the spline passes through.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        C_L / (2π ŵ/V), dimensionless.
+
+    Examples
+    --------
+    >>> from wakes import exact
+    >>> lift = exact.one_minus_cosine_gust_lift([6.0, 100.0], 10.0)    # peak, and long after the gust
+    >>> lift.round(3).tolist()
+    [0.633, 0.001]
+    """
+    s_arr = _real("s", s, nonnegative=True)
+    g = positive_scalar("length", length)
+    n, m = int(samples), int(nodes)
+    if n < 1 or m < 4:
+        raise InputError(f"samples must be at least 1 and nodes at least 4; got {samples!r}, {nodes!r}")
+    sigma = (np.arange(n) + 0.5) * (g / n)
+    weight = math.pi / g * np.sin(2.0 * math.pi * sigma / g) * (g / n)   # (dw/dσ)/ŵ dσ
+    lag = s_arr.reshape(-1, 1) - sigma[None, :]
+    top = float(np.max(lag, initial=0.0))
+    if top <= 0.0:
+        return _out(np.zeros(s_arr.shape))
+    root = np.linspace(0.0, math.sqrt(top), m)
+    spline = CubicSpline(root, kussner(root ** 2))
+    psi = np.where(lag > 0.0, spline(np.sqrt(np.maximum(lag, 0.0))), 0.0)
+    return _out((psi @ weight).reshape(s_arr.shape))
 
 
 def glauert_rectangular_wing(aspect_ratio: float, a0: float = 2.0 * np.pi, terms: int = 40):
