@@ -3,16 +3,17 @@
 One step at time t (:meth:`TimeLoop.step`, driven by :func:`wakes.run.run_case`):
 
 1. the bodies place their lifting surfaces at t;
-2. the wakes induce velocity at the surfaces' evaluation points;
+2. the wakes induce velocity at the surfaces' evaluation points, where the
+   onset flow is the freestream plus its gust, if any (:mod:`wakes.aero.gust`);
 3. the bound circulation is solved (:mod:`wakes.aero.lifting_line`);
 4. loads and coefficients of every body make a row of the loads table;
 5. the wake nodes and particles move (free: local velocity; frozen:
-   freestream) by one step of Heun's second-order method
+   freestream and gust) by one step of Heun's second-order method
    (:mod:`wakes.aero.wake_motion`), particles stretch, and each surface
    sheds a new row at its trailing edge carrying the circulation it had at t;
 6. old wake is converted to particles or removed.
 
-Every velocity comes from :func:`wakes.induce`.
+Every induced velocity comes from :func:`wakes.induce`.
 """
 
 from __future__ import annotations
@@ -221,6 +222,7 @@ class TimeLoop:
         self.solver = SolverSettings(case.solver.tolerance, case.solver.max_iterations,
                                      case.solver.relaxation)
         self.v_inf = case.freestream.vector()
+        self.gust = case.gust()
         self.rho, self.dt, self.steps = case.fluid.density, case.time.dt, case.time.steps
         self.method = {"method": case.wake.induction, "tolerance": case.wake.induction_tolerance}
         self.cluster = cluster
@@ -335,7 +337,7 @@ class TimeLoop:
         v_wake = self.induce(with_ground(wake_src, ground), np.vstack([eval_pts, load_pts]),
                              **self.method)
         motion_eval = np.vstack([s.velocity_of(s.eval_points()) for s in surfaces])
-        onset = v_inf - motion_eval + v_wake[:eval_pts.shape[0]]
+        onset = v_inf + gust_velocity(self.gust, eval_pts, t) - motion_eval + v_wake[:eval_pts.shape[0]]
         aic, aic_load = self.cache.get(surfaces, eval_pts, load_pts)
         sol = solve_circulation(surfaces, aic, onset, self.gamma, self.solver, step=step, time=t,
                                 linear_cache=self.linear)
@@ -343,7 +345,7 @@ class TimeLoop:
         gamma = np.concatenate([g.ravel() for g in sol.gamma])
 
         strips = _strip_loads(surfaces, sol, gamma, aic_load, v_wake[eval_pts.shape[0]:], v_inf,
-                              self.gamma_prev, self.dt, self.rho)
+                              self.gamma_prev, self.dt, self.rho, self.gust, t)
         drags = _trefftz(layout, strips, v_inf, self.rho)
         k = 0
         n_seg = sum(e.segment_count for e in wake_src if not isinstance(e, Particles))
@@ -362,7 +364,8 @@ class TimeLoop:
                 ends = np.cumsum([0] + [g.size for g in sol.gamma])
                 prev = [self.gamma_prev[a:b].reshape(g.shape) for g, a, b in zip(sol.gamma, ends[:-1], ends[1:])]
             new_surfaces = _advance_wakes(wakes, bodies, surfaces, sol.gamma, prev, self.settings, v_inf,
-                                          self.dt, t, self.method, self.watch, step, ground, self.induce)
+                                          self.dt, t, self.method, self.watch, step, ground, self.induce,
+                                          self.gust)
             for w, s, g in zip(wakes, new_surfaces, sol.gamma):
                 w.shed(s.te_nodes, g[-1], t + self.dt)
                 w.age_out(t + self.dt)
@@ -447,8 +450,16 @@ def _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t, wake_time,
     return Run(case, loads, sections, summary, final_wake, wall, tables=extra)
 
 
-def _strip_loads(surfaces, sol, gamma, aic_load, v_wake_load, v_inf, gamma_prev, dt, rho):
-    """Strip loads of every surface from a converged solution."""
+def gust_velocity(gust, points: np.ndarray, time: float) -> np.ndarray:
+    """The ``gust``'s velocity (:class:`wakes.aero.gust.Gust`, or None: zero) at ``points`` (M, 3)
+    at ``time`` [s], shape (M, 3) [m/s]."""
+    points = np.asarray(points, dtype=np.float64).reshape(-1, 3)
+    return np.zeros_like(points) if gust is None else gust.velocity(points, time)
+
+
+def _strip_loads(surfaces, sol, gamma, aic_load, v_wake_load, v_inf, gamma_prev, dt, rho, gust=None, t=0.0):
+    """Strip loads of every surface from a converged solution at time ``t`` [s], in the onset flow
+    of the freestream ``v_inf`` and the ``gust`` (none by default)."""
     out = []
     k_eval = 0
     k_load = 0
@@ -456,7 +467,7 @@ def _strip_loads(surfaces, sol, gamma, aic_load, v_wake_load, v_inf, gamma_prev,
     for si, s in enumerate(surfaces):
         m = s.n_unknowns
         g_prev = None if gamma_prev is None else gamma_prev[k_unk:k_unk + m]
-        onset_sec = v_inf - s.velocity_of(s.section_points)
+        onset_sec = v_inf + gust_velocity(gust, s.section_points, t) - s.velocity_of(s.section_points)
         if s.lifting_line:
             sl = slice(k_eval, k_eval + m)
             v_load = sol.velocity[sl].reshape(1, s.n_span, 3)
@@ -464,7 +475,7 @@ def _strip_loads(surfaces, sol, gamma, aic_load, v_wake_load, v_inf, gamma_prev,
                                    ll_alpha=sol.alpha[sl], ll_cl=sol.cl[sl], ll_cd=sol.cd[sl]))
         else:
             pts = s.bound_midpoints().reshape(-1, 3)
-            v = (v_inf - s.velocity_of(pts) + v_wake_load[k_load:k_load + m]
+            v = (v_inf + gust_velocity(gust, pts, t) - s.velocity_of(pts) + v_wake_load[k_load:k_load + m]
                  + np.einsum("ikn,n->ik", aic_load[k_load:k_load + m], gamma))
             out.append(strip_loads(s, sol.gamma[si], g_prev, dt, v.reshape(s.n_chord, s.n_span, 3),
                                    onset_sec, rho))
@@ -487,7 +498,7 @@ def _trefftz(layout, strips, v_inf, rho):
 
 
 def _advance_wakes(wakes, bodies, surfaces, gammas, gammas_prev, settings, v_inf, dt, t, method, watch=None,
-                   step=0, ground=None, induce=induce) -> list:
+                   step=0, ground=None, induce=induce, gust=None) -> list:
     """Move every wake node and particle one step (free or frozen), stretching particles.
 
     One step of :func:`wakes.aero.wake_motion.march` (Heun's method): the
@@ -499,8 +510,9 @@ def _advance_wakes(wakes, bodies, surfaces, gammas, gammas_prev, settings, v_inf
     velocities before anything moves. A ``ground``
     (:class:`wakes.aero.ground.GroundPlane`) adds the images of every
     element. ``induce`` is the function that sums the velocities (the
-    engine's, or a cluster's for a large wake). Returns the surfaces at
-    t + dt.
+    engine's, or a cluster's for a large wake). A ``gust``
+    (:class:`wakes.aero.gust.Gust`) carries the wake too, free or frozen:
+    it is part of the onset flow. Returns the surfaces at t + dt.
     """
     placed = {t: surfaces}
 
@@ -518,8 +530,8 @@ def _advance_wakes(wakes, bodies, surfaces, gammas, gammas_prev, settings, v_inf
         nodes = np.vstack([w.rows.reshape(-1, 3) for w in trial])
         parts = [w.positions for w in trial]
         n_par = sum(p.shape[0] for p in parts)
-        u_nodes = np.broadcast_to(v_inf, nodes.shape).copy()
-        u_par = np.broadcast_to(v_inf, (n_par, 3)).copy()
+        u_nodes = v_inf + gust_velocity(gust, nodes, time)
+        u_par = v_inf + gust_velocity(gust, np.vstack(parts) if n_par else np.zeros((0, 3)), time)
         stretch = None
         if settings.motion == "free":
             src = [surface_filaments(s, g, core=settings.core, core_radius=settings.core_radius,

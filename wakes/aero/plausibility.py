@@ -52,6 +52,10 @@ Bounds (codes in brackets):
   wing's last window (:func:`check_settled`), more than 2 % from the window
   before (our criterion; the bundled hover validation case settles to
   under 1 %).
+* ``gust-outlasts-run`` -- a gust of stated length whose end has not
+  passed the bodies when the run ends (our criterion: the run then shows
+  only part of the gust's loads), and ``gust-after-run`` -- a gust whose
+  front reaches the bodies only after the run ends.
 * ``wake-too-short`` -- a rotor's or wing's wake cut so close behind it
   that the inflow it induces is estimated more than 20 % low
   (:func:`wake_deficit`; our criterion: there a hovering rotor's induced
@@ -105,6 +109,7 @@ ADVANCE_SOURCE = ("common practice: above mu = 1 the reverse-flow circle, diamet
                   "side (Johnson 1980, Helicopter Theory, ch. 5), reaches past the tip")
 LOADING_SOURCE = "common practice: blade stall sets in near C_T/sigma = 0.12 (Leishman 2006, ch. 2)"
 SETTLE_SOURCE = "our criterion: loads change by at most 2 % from one window to the next"
+GUST_SOURCE = "our criterion: a run shows a gust's whole loads only once its end has passed the bodies"
 WAKE_SOURCE = ("our criterion: a wake cut at distance L lowers the inflow it induces by about "
                "1 - L/sqrt(L^2 + R^2), R the rotor radius or wing semi-span (Biot-Savart), at most 20 %")
 
@@ -679,6 +684,38 @@ def check_wake_length(summary: dict, case) -> list[Flag]:
     return out
 
 
+def check_gust(case) -> list[Flag]:
+    """A gust that has not passed the bodies by the end of the run, or reaches them only after it.
+
+    The gust's end (its front plus its length) passes the most downstream
+    point of the bodies' planforms (at their mean position) at
+    :meth:`wakes.aero.gust.Gust.passed`; a sharp-edged gust without a
+    length stays on by design and is not flagged for it.
+    """
+    gust = case.gust()
+    if gust is None:
+        return []
+    end = _run_time(case)
+    if gust.arrival > end:
+        return [Flag("gust-after-run",
+                     f"the gust's front reaches the bodies at t = {gust.arrival:.4g} s, after the run ends "
+                     f"(t = {end:.4g} s); the run shows no gust (lower [freestream.gust] arrival_time or "
+                     "raise [time] steps)", gust.arrival, end, GUST_SOURCE)]
+    if not math.isfinite(gust.length):
+        return []
+    heading = gust.freestream / gust.speed
+    downstream = max(float(np.max(b.outline().reshape(-1, 3) @ heading)) for b in case.bodies)
+    passed = gust.passed(downstream)
+    if passed <= end:
+        return []
+    steps = math.ceil(passed / case.time.dt - 1e-9) + 1
+    return [Flag("gust-outlasts-run",
+                 f"the gust ({gust.length:.4g} m long) has not passed the bodies when the run ends "
+                 f"(t = {end:.4g} s): its end passes the last of them at t = {passed:.4g} s; the loads "
+                 f"show only part of the gust (raise [time] steps to at least {steps}, or shorten "
+                 "[freestream.gust] length)", passed, end, GUST_SOURCE)]
+
+
 def case_flags(case, *, speed_of_sound: float = ISA_SPEED_OF_SOUND) -> list[Flag]:
     """The checks that need the case alone (tip Mach number, advance ratio), for ``wakes check``.
 
@@ -688,7 +725,8 @@ def case_flags(case, *, speed_of_sound: float = ISA_SPEED_OF_SOUND) -> list[Flag
     >>> case_flags(load_case("cases/drone-lift-rotor.toml"))
     []
     """
-    return check_tip_mach(case, case_polar_limits(case), speed_of_sound) + check_advance_ratio(case)
+    return (check_tip_mach(case, case_polar_limits(case), speed_of_sound) + check_advance_ratio(case)
+            + check_gust(case))
 
 
 def check_run(summary: dict, loads: pd.DataFrame, sections: pd.DataFrame, case,
@@ -732,4 +770,4 @@ def check_run(summary: dict, loads: pd.DataFrame, sections: pd.DataFrame, case,
             + check_turbine_power(summary, case) + check_propeller_efficiency(summary, case)
             + check_sections(sections, polars, time_s) + check_tip_mach(case, polars, speed_of_sound)
             + check_advance_ratio(case) + check_blade_loading(summary, case) + check_settled(loads, case)
-            + check_wake_length(summary, case))
+            + check_wake_length(summary, case) + check_gust(case))

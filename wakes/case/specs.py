@@ -38,6 +38,7 @@ import numpy as np
 from ..aero.clearance import contact_point, disc_triangles, wing_triangles
 from ..aero.geometry import SPACINGS, Distribution, WingPlanform, rotation_matrix
 from ..aero.ground import GroundPlane
+from ..aero.gust import GUST_SHAPES, Gust, upward_normal
 from ..aero.polars import OUT_OF_RANGE_MODES, has_mach_column
 from ..aero.rotor import (
     BLADE_SPACINGS,
@@ -122,6 +123,83 @@ class FluidSpec:
                                 "m/s", minimum=100.0, maximum=2000.0)
 
 
+MAX_GUST_TIME = 1e7         # latest (and earliest, negated) gust arrival time [s]: a typo guard
+
+
+@dataclass(frozen=True, kw_only=True)
+class GustSpec:
+    """[freestream.gust]: a gust frozen in the freestream (none by default).
+
+    The gust velocity ``amplitude`` f(xi) along ``direction`` is added to the
+    onset flow; xi is the distance its front has travelled past a point.
+    The front is the plane normal to the freestream that reaches the most
+    upstream point of the bodies (a wing's leading edge) at ``arrival_time``
+    and moves downstream at the freestream speed. f = 1 for 0 < xi < length
+    (sharp-edged; no length: it stays on), (1 - cos(2 pi xi / length))/2
+    (one-minus-cosine), 0 elsewhere (:mod:`wakes.aero.gust`).
+    """
+
+    shape: str = key("none", "gust profile along the freestream", kind="str", choices=GUST_SHAPES)
+    amplitude: float = key(0.0, "gust velocity (the peak of a one-minus-cosine gust), along direction; "
+                           "below the freestream speed", "m/s", minimum=-MAX_SPEED, maximum=MAX_SPEED)
+    length: float | None = key(None, "gust length along the freestream (sharp-edged: none, the gust stays "
+                               "on; one-minus-cosine: required)", "m", above=0.0, minimum=MIN_LENGTH,
+                               maximum=MAX_COORDINATE)
+    direction: tuple | None = key(None, "direction of the gust velocity, normal to the freestream (default: "
+                                  "normal to it in its vertical plane, upwards)", kind="vec3",
+                                  minimum=-1e6, maximum=1e6)
+    arrival_time: float = key(0.0, "time the gust front reaches the most upstream point of the bodies",
+                              "s", minimum=-MAX_GUST_TIME, maximum=MAX_GUST_TIME)
+
+    _KEYS = ("amplitude", "length", "direction", "arrival_time")
+
+    def after_parse(self, raw: dict, where: str, ctx) -> GustSpec:
+        if self.shape == "none":
+            given = [k for k in self._KEYS if k in raw]
+            if given:
+                ctx.fail(f"{where}.{given[0]} applies to a gust only; set {where}.shape to "
+                         f"{' or '.join(repr(s) for s in GUST_SHAPES[1:])}")
+        if self.shape == "one-minus-cosine" and self.length is None:
+            ctx.fail(f"{where}.length is required for shape = \"one-minus-cosine\": the gust's length "
+                     "along the freestream [m], greater than 0")
+        if self.direction is not None:
+            _check_direction(self.direction, f"{where}.direction", "the gust velocity's direction", ctx)
+        return self
+
+    def omitted(self) -> set:
+        return set(self._KEYS) if self.shape == "none" else set()
+
+    def check(self, case: Case, where: str, ctx) -> None:
+        """The gust must suit the freestream and the bodies (after both are parsed)."""
+        if self.shape == "none":
+            return
+        v = case.freestream.vector()
+        speed = float(np.linalg.norm(v))
+        rotors = [b.name for b in case.bodies if b.type != "wing"]
+        if rotors:
+            ctx.fail(f"{where} acts on wings only; bodies.{rotors[0]} is a {case.body(rotors[0]).type} "
+                     "(remove the gust or the rotor)")
+        if not abs(self.amplitude) < speed:
+            ctx.fail(f"{where}.amplitude = {self.amplitude:g} m/s must be smaller in size than the "
+                     f"freestream speed ({speed:.4g} m/s): the gust would turn the flow by 45 deg or more")
+        if self.direction is None:
+            if upward_normal(v) is None:
+                ctx.fail(f"{where}.direction is needed: the freestream is vertical, so no default "
+                         "direction normal to it and upwards exists; give a vector normal to it")
+        else:
+            d = np.asarray(self.direction, dtype=np.float64)
+            along = abs(float(d @ v)) / (np.linalg.norm(d) * speed)
+            if along > GUST_NORMAL_TOLERANCE:
+                ctx.fail(f"{where}.direction {list(self.direction)} must be normal to the freestream "
+                         f"{[round(float(x), 6) for x in v]} m/s; it has {along:.3g} of its length along "
+                         f"it (at most {GUST_NORMAL_TOLERANCE:g}): a frozen gust along the flow would not "
+                         "conserve mass")
+
+
+GUST_NORMAL_TOLERANCE = 1e-6
+"""Largest cosine between a gust's direction and the freestream accepted as normal (ours)."""
+
+
 @dataclass(frozen=True, kw_only=True)
 class FreestreamSpec:
     """[freestream]: the undisturbed flow, by speed and angles or as a vector.
@@ -139,6 +217,7 @@ class FreestreamSpec:
     velocity: tuple | None = key(None, "freestream velocity vector instead of speed and angles "
                                  f"(at most {MAX_SPEED:g} m/s long)", "m/s", kind="vec3",
                                  minimum=-MAX_SPEED, maximum=MAX_SPEED)
+    gust: GustSpec = key(GustSpec(), "a gust frozen in the freestream", kind="table")
 
     def after_parse(self, raw: dict, where: str, ctx) -> FreestreamSpec:
         if self.velocity is not None and not np.linalg.norm(self.velocity) <= MAX_SPEED:
@@ -154,7 +233,8 @@ class FreestreamSpec:
         return self.speed * np.array([math.cos(a) * math.cos(b), -math.sin(b), math.sin(a) * math.cos(b)])
 
     def omitted(self) -> set:
-        return {"speed", "angle_of_attack", "sideslip"} if self.velocity is not None else {"velocity"}
+        out = {"speed", "angle_of_attack", "sideslip"} if self.velocity is not None else {"velocity"}
+        return out | ({"gust"} if self.gust.shape == "none" else set())
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -185,7 +265,7 @@ class WakeSpec:
 
     model: str = key("filaments", "keep the wake as a vortex lattice, or convert it to particles",
                      kind="str", choices=WAKE_MODELS)
-    motion: str = key("free", "free: moves with the local velocity; frozen: with the freestream",
+    motion: str = key("free", "free: moves with the local velocity; frozen: with the freestream (and gust)",
                       kind="str", choices=WAKE_MOTIONS)
     core: str = key("lamb-oseen", "filament core model", kind="str", choices=CORE_MODELS)
     core_radius: float | None = key(None, "initial core radius (default: 0.1 x smallest mean chord)",
@@ -785,6 +865,26 @@ class Case:
                 return b
         raise KeyError(name)
 
+    def gust(self) -> Gust | None:
+        """The freestream's gust (:class:`wakes.aero.gust.Gust`), None without one.
+
+        Its front reaches the most upstream point of the bodies' planforms
+        (at their mean position) at ``[freestream.gust] arrival_time``.
+        """
+        g = self.freestream.gust
+        if g.shape == "none":
+            return None
+        v = self.freestream.vector()
+        heading = v / np.linalg.norm(v)
+        upstream = min(float(np.min(b.outline().reshape(-1, 3) @ heading)) for b in self.bodies)
+        if g.direction is None:
+            d = upward_normal(v)
+        else:
+            d = np.asarray(g.direction, dtype=np.float64)
+            d = d / np.linalg.norm(d)
+        return Gust(shape=g.shape, amplitude=g.amplitude, length=math.inf if g.length is None else g.length,
+                    direction=d, freestream=v, upstream=upstream, arrival=g.arrival_time)
+
     def to_dict(self, relative_to=None) -> dict:
         """The case as nested plain data (what :meth:`to_toml` writes); file paths inside the
         folder ``relative_to`` relative to it."""
@@ -870,6 +970,7 @@ def parse_case(data: dict, *, source: str = "<dict>", base_dir=".") -> Case:
     case = dataclasses.replace(case, bodies=bodies, source=source)
     for b in bodies:
         b.check(case, f"bodies.{b.name}", ctx)
+    case.freestream.gust.check(case, "freestream.gust", ctx)
     _check_clearance(bodies, ctx)
     return _resolve(case)
 
@@ -983,6 +1084,7 @@ def case_reference() -> str:
     sections = [("", Case)] + [(f.name, type(f.default)) for f in public_fields(Case)
                                if f.metadata.get("kind") == "table"]
     sections += [(f"bodies.NAME] (type = \"{t}\")", cls) for t, cls in BODY_TYPES.items()]
+    sections.insert(sections.index(("freestream", FreestreamSpec)) + 1, ("freestream.gust", GustSpec))
     sections += [("bodies.NAME.airfoil", AirfoilSpec), ("bodies.NAME.motion] (type = \"wing\")", WingMotionSpec),
                  ("bodies.NAME.trim] (type = \"rotor\")", TrimSpec)]
     out = []
