@@ -619,8 +619,8 @@ def check_kussner() -> list[CheckResult]:
     s, lift = curves[-1]
     after = s >= 1.0 - 1e-9
     worst = float(np.max(np.abs(lift[after] - exact.kussner(s[after]))))
-    rows = [CheckResult(f"largest |lift entering a sharp-edged gust / final 2-D gust lift - ψ(s)| over "
-                        f"1 <= s <= {s[-1]:g}, AR {WAGNER_ASPECT_RATIO:g}, {finest} chordwise panels", worst, 0.0,
+    rows = [CheckResult(f"sharp-edged gust: largest |lift / final 2-D lift - ψ(s)|, 1 <= s <= {s[-1]:g}, "
+                        f"AR {WAGNER_ASPECT_RATIO:g}, {finest} panels", worst, 0.0,
                         KUSSNER_SOURCE, KUSSNER_TOLERANCE, bound="absolute")]
     levels = "/".join(map(str, KUSSNER_LEVELS))
     for station in KUSSNER_STATIONS:
