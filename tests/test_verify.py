@@ -19,7 +19,7 @@ def test_every_classical_check_passes_and_names_its_source():
 def test_the_full_set_holds_the_quick_one_and_the_wing_checks():
     assert set(CHECKS) < set(FULL_CHECKS)
     assert {"wing-slope", "wing-convergence", "wing-efficiency", "wing-ground",
-            "wing-wagner"} <= set(FULL_CHECKS)
+            "wing-wagner", "wing-kussner"} <= set(FULL_CHECKS)
 
 
 @pytest.mark.parametrize("bound, computed, passed", [
