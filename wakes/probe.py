@@ -9,7 +9,7 @@ surface the induced velocity lacks the surface's own contribution.
 
 Output columns: ``x_m, y_m, z_m`` (point), ``u_ind_m_s, v_ind_m_s,
 w_ind_m_s`` (wake-induced velocity), ``u_m_s, v_m_s, w_m_s`` (freestream
-plus induced) and ``speed_m_s``; planes add the in-plane indices ``i, j``.
+plus induced; a case's gust is not included) and ``speed_m_s``; planes add the in-plane indices ``i, j``.
 
 Memory is bounded: the points are summed in chunks of
 :data:`CHUNK_POINTS`, so the summation's own buffers do not grow with the
@@ -48,6 +48,7 @@ _PLANE = re.compile(r"^\s*([xyzXYZ])\s*=\s*([-+0-9.eE]+)\s*$")
 
 def _freestream(case: dict) -> np.ndarray:
     fs = dict(case.get("freestream", {}))
+    fs.pop("gust", None)      # the totals are the freestream's and the wake's, without a gust
     if fs.get("velocity") is not None:
         fs["velocity"] = tuple(fs["velocity"])
     return FreestreamSpec(**fs).vector()
