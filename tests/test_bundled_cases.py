@@ -22,6 +22,7 @@ import math
 import re
 from pathlib import Path
 
+import numpy as np
 import pytest
 from wakes.aero.plausibility import rotor_wake_length
 from wakes.case import load_case
@@ -138,6 +139,10 @@ CLAIMS = [
     ("small-wind-turbine.toml", "a 5 m diameter farm wind turbine", "5", 0.5, lambda c: 2 * _rotor(c).radius),
     ("small-wind-turbine.toml", "rpm = 173.8                   # tip-speed ratio 6.5", "6.5", 0.005,
      lambda c: _tip_speed(_rotor(c)) / 7.0),
+    ("farm-turbine-yawed.toml", "7 m/s from 30 deg off the rotor axis", "7", 0.0005,
+     lambda c: float(np.linalg.norm(c.freestream.velocity))),
+    ("farm-turbine-yawed.toml", "7 m/s from 30 deg off the rotor axis", "30", 0.0005,
+     lambda c: math.degrees(math.acos(c.freestream.velocity[0] / np.linalg.norm(c.freestream.velocity)))),
     ("survey-glider.toml", "3.2 m span", "3.2", 0.05, lambda c: c.bodies[0].span),
     ("survey-glider.toml", "a wake panel of 0.14 m, 0.7 mean chords", "0.14", 0.005, lambda c: 14.0 * c.time.dt),
     ("survey-glider.toml", "a wake panel of 0.14 m, 0.7 mean chords", "0.7", 0.05,
@@ -190,10 +195,12 @@ RUN_ELSEWHERE = {
     "validation/elliptic-wing.toml": "tests/validation/test_wings.py",
     "validation/rectangular-wing.toml": "tests/validation/test_wings.py",
     "validation/hover-8deg.toml": "tests/validation/test_rotors.py",
+    "small-wind-turbine.toml": "tests/validation/test_rotors.py (the yaw check runs it as written)",
+    "farm-turbine-yawed.toml": "tests/validation/test_rotors.py (the yaw check runs it as written)",
 }
 
 RUN_HERE = ["drone-lift-rotor.toml", "survey-quad-cruise.toml",
-            "propeller-cruise.toml", "propeller-wing.toml", "small-wind-turbine.toml",
+            "propeller-cruise.toml", "propeller-wing.toml",
             "validation/propeller-axial.toml", "validation/turbine.toml", "template:wing", "template:rotor",
             "template:propeller", "template:turbine"]
 
