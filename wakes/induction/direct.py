@@ -264,61 +264,74 @@ def _make_gaussian_block(gradient):
         for j in range(m):
             inv2[j] = 1.0 / bs2[j]
             inv3[j] = inv2[j] * math.sqrt(inv2[j])
-        # per sub-block: bounding box (xmin, xmax, ymin, ymax, zmin, zmax), max sigma^2
+        # per sub-block: bounding box, and T_FAR, T_NEAR times its largest sigma^2
         n_sub = (m + SUB_BLOCK - 1) // SUB_BLOCK
+        xlo = box[0]
+        xhi = box[1]
+        ylo = box[2]
+        yhi = box[3]
+        zlo = box[4]
+        zhi = box[5]
+        far2 = box[6]
+        near2 = box[7]
+        cls = box[8]
         for b in range(n_sub):
             k0 = b * SUB_BLOCK
             k1 = min(k0 + SUB_BLOCK, m)
-            box[b, 0] = box[b, 1] = bx[k0]
-            box[b, 2] = box[b, 3] = by[k0]
-            box[b, 4] = box[b, 5] = bz[k0]
-            box[b, 6] = bs2[k0]
+            x0 = x1 = bx[k0]
+            y0 = y1 = by[k0]
+            z0 = z1 = bz[k0]
+            s2m = bs2[k0]
             for k in range(k0 + 1, k1):
-                box[b, 0] = min(box[b, 0], bx[k])
-                box[b, 1] = max(box[b, 1], bx[k])
-                box[b, 2] = min(box[b, 2], by[k])
-                box[b, 3] = max(box[b, 3], by[k])
-                box[b, 4] = min(box[b, 4], bz[k])
-                box[b, 5] = max(box[b, 5], bz[k])
-                box[b, 6] = max(box[b, 6], bs2[k])
+                x0 = min(x0, bx[k])
+                x1 = max(x1, bx[k])
+                y0 = min(y0, by[k])
+                y1 = max(y1, by[k])
+                z0 = min(z0, bz[k])
+                z1 = max(z1, bz[k])
+                s2m = max(s2m, bs2[k])
+            xlo[b] = x0
+            xhi[b] = x1
+            ylo[b] = y0
+            yhi[b] = y1
+            zlo[b] = z0
+            zhi[b] = z1
+            far2[b] = T_FAR * s2m
+            near2[b] = T_NEAR * s2m
         for i in range(i0, i1):
             xi = tx[i]
             yi = ty[i]
             zi = tz[i]
-            # runs of consecutive sub-blocks of one class are summed in one
-            # call: 0 singular law, 1 far form, 2 full Gaussian
+            # class of each sub-block (0 singular law, 1 far form, 2 full
+            # Gaussian), in one vectorized loop
+            for bb in range(n_sub):
+                b = np.uint64(bb)
+                dx = max(xlo[b] - xi, 0.0, xi - xhi[b])
+                dy = max(ylo[b] - yi, 0.0, yi - yhi[b])
+                dz = max(zlo[b] - zi, 0.0, zi - zhi[b])
+                d2 = dx * dx + dy * dy + dz * dz
+                cls[b] = (1.0 if d2 < far2[b] else 0.0) + (1.0 if d2 < near2[b] else 0.0)
+            # runs of consecutive sub-blocks of one class are summed in one call
             b0 = 0
-            cls0 = -1
-            for b in range(n_sub + 1):
-                if b < n_sub:
-                    dx = max(box[b, 0] - xi, 0.0, xi - box[b, 1])
-                    dy = max(box[b, 2] - yi, 0.0, yi - box[b, 3])
-                    dz = max(box[b, 4] - zi, 0.0, zi - box[b, 5])
-                    d2 = dx * dx + dy * dy + dz * dz
-                    if d2 >= T_FAR * box[b, 6]:
-                        cls = 0
-                    elif d2 >= T_NEAR * box[b, 6]:
-                        cls = 1
-                    else:
-                        cls = 2
-                    if cls == cls0:
-                        continue
-                if cls0 >= 0:
-                    k0 = b0 * SUB_BLOCK
-                    k1 = min(b * SUB_BLOCK, m)
-                    # constant laws in each call, so each loop is specialised
-                    if cls0 == 0:
-                        _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, bs2, bs2,
-                                     k0, k1, SINGULAR, gradient, i, vel, grad)
-                    elif cls0 == 1:
-                        _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, inv2, inv3,
-                                     k0, k1, _GAUSSIAN_FAR, gradient, i, vel, grad)
-                    else:
-                        _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, inv2, inv3,
-                                     k0, k1, GAUSSIAN, gradient, i, vel, grad)
-                if b < n_sub:
-                    b0 = b
-                    cls0 = cls
+            cls0 = cls[0]
+            for b in range(1, n_sub + 1):
+                c = cls[b] if b < n_sub else -1.0
+                if c == cls0:
+                    continue
+                k0 = b0 * SUB_BLOCK
+                k1 = min(b * SUB_BLOCK, m)
+                # constant laws in each call, so each loop is specialised
+                if cls0 == 0.0:
+                    _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, bs2, bs2,
+                                 k0, k1, SINGULAR, gradient, i, vel, grad)
+                elif cls0 == 1.0:
+                    _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, inv2, inv3,
+                                 k0, k1, _GAUSSIAN_FAR, gradient, i, vel, grad)
+                else:
+                    _sum_sources(xi, yi, zi, bx, by, bz, bax, bay, baz, bs2, inv2, inv3,
+                                 k0, k1, GAUSSIAN, gradient, i, vel, grad)
+                b0 = b
+                cls0 = c
 
     return gaussian_block
 
@@ -338,7 +351,7 @@ def _particle_block(tx, ty, tz, sx, sy, sz, ax, ay, az, s2, kernel, gradient,
     block = SOURCE_BLOCK
     if kernel == GAUSSIAN:
         inv = np.empty((2, SOURCE_BLOCK))
-        box = np.empty((SOURCE_BLOCK // SUB_BLOCK, 7))
+        box = np.empty((9, SOURCE_BLOCK // SUB_BLOCK))
     elif gradient:
         if GRADIENT_PASSES == 3:
             scratch = np.empty((5, GRADIENT_BLOCK))
