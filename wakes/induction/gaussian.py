@@ -296,7 +296,7 @@ def _g_far(t):
     inv = 1.0 / (qd * tn * rho)
     g = (qd - num * p) * inv
     w3 = qd * inv                       # t^-1.5
-    e_w3 = num * (w3 / den)             # e^{-t/2} t^-1.5
+    e_w3 = num * q * inv                # e^{-t/2} t^-1.5, with no second division
     dg = (w3 * rho) * (INV_SQRT_2PI * rc * rc * rc * e_w3 - 1.5 * g)
     return g, dg
 
