@@ -21,7 +21,8 @@ polynomials, branch-free, to within a few units in the last place:
   Graves-Morris 1996, *Padé Approximants*). Both denominators join the
   division g = q/rho^3 needs anyway, so the far form has one division and
   10 + 7 coefficients where polynomials needed 16 + 12: 0.8x the time of
-  the polynomial form (benchmarks/RESULTS.md).
+  the polynomial form (measured: DEVELOPERS.md, "The Gaussian kernel's
+  far form has one division").
 * Beyond T_FAR = 90 (rho > 9.49) 1 - q < 3e-19: the kernel is the singular
   one, g = t^-1.5, to round-off (the drivers skip the erf/exp there).
 
