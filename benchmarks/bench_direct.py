@@ -201,8 +201,9 @@ for the Gaussian gradient ran at 0.91x (short runs of sub-blocks), and
 Gaussian sub-blocks of 16 at 0.96-0.99x. Every kernel is exact to round-off.
 Gaussian kernel: e^-x by Cody-Waite
 reduction and a degree-11 polynomial (2 ulp); q(rho) from the positive Kummer
-series for t = rho^2 < 5.06 and from 1 - e^-t/2 S(rho) with a fitted
-polynomial S beyond, branch-free (g within 2.0 ulp, g' within 3.2 ulp of
+series for t = rho^2 < 5.06 and from 1 - e^-t/2 S(rho) beyond, with S a fitted
+ratio P/Q and e^-t/2 a [6/6] Pade ratio whose denominators join the one
+division, branch-free (g within 2.1 ulp, g' within 3.3 ulp of
 30-digit values; tests/induction/test_fast_math.py). Gaussian sources are
 sorted along a Morton curve and visited in sub-blocks of 32: a sub-block at
 least 9.49 sigma_max from the target uses the singular law (the kernels differ

@@ -8,7 +8,8 @@ polynomials, branch-free, to within a few units in the last place:
 
 * ``exp_neg(h) = e^-h``: range reduction h = k ln2 - r with a two-part ln2
   (Cody & Waite 1980, *Software Manual for the Elementary Functions*), a
-  degree-11 polynomial for e^r, and 2^k built from its exponent bits.
+  degree-11 polynomial for e^r, and 2^k built from its exponent bits
+  (:func:`exp_neg`, used by the near series and the Lamb-Oseen core).
 * Near the centre (t < T_NEAR) the positive Kummer series
   g = sqrt(2/pi) e^{-t/2} M(t),  g' = -1.5 sqrt(2/pi) e^{-t/2} N(t),
   M = sum t^m/(2m+3)!!, N = sum t^m/(2m+5)!! (Abramowitz & Stegun 1964,
