@@ -733,13 +733,17 @@ def _wagner_integrand(k: float) -> float:
     return float(np.real(theodorsen(k))) / k
 
 
+def _step_response(integrand, s: float) -> float:
+    """(2/π) ∫_0^∞ integrand(k) sin(k s) dk for one s > 0: adaptive quadrature to k = 1, then
+    a Fourier integral (the indicial response of a frequency response, integrand = Re/k)."""
+    near, _ = quad(lambda k: integrand(k) * math.sin(k * s), 0.0, 1.0, limit=200, epsabs=1e-12)
+    far, _ = quad(integrand, 1.0, np.inf, weight="sin", wvar=s, limlst=200, epsabs=1e-12)
+    return 2.0 / math.pi * (near + far)
+
+
 def _wagner_one(s: float) -> float:
     """Φ(s) of one s >= 0 (Φ(0) = 1/2, the limit from above)."""
-    if s == 0.0:
-        return 0.5
-    near, _ = quad(lambda k: _wagner_integrand(k) * math.sin(k * s), 0.0, 1.0, limit=200, epsabs=1e-12)
-    far, _ = quad(_wagner_integrand, 1.0, np.inf, weight="sin", wvar=s, limlst=200, epsabs=1e-12)
-    return 2.0 / math.pi * (near + far)
+    return 0.5 if s == 0.0 else _step_response(_wagner_integrand, s)
 
 
 def wagner(s):
@@ -824,11 +828,7 @@ def _kussner_integrand(k: float) -> float:
 
 def _kussner_one(s: float) -> float:
     """ψ(s) of one s >= 0."""
-    if s == 0.0:
-        return 0.0
-    near, _ = quad(lambda k: _kussner_integrand(k) * math.sin(k * s), 0.0, 1.0, limit=200, epsabs=1e-12)
-    far, _ = quad(_kussner_integrand, 1.0, np.inf, weight="sin", wvar=s, limlst=200, epsabs=1e-12)
-    return 2.0 / math.pi * (near + far)
+    return 0.0 if s == 0.0 else _step_response(_kussner_integrand, s)
 
 
 def kussner(s):
