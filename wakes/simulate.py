@@ -244,7 +244,7 @@ class TimeLoop:
 
     def resume(self, state: LoopState) -> None:
         """Go on from ``state`` (read from a checkpoint) instead of step 0."""
-        state.restore(self.wakes, self.cache)
+        state.restore(self.wakes, self.cache, self.bodies)
         self.origin, self.first = state.origin, state.step
         self.gamma, self.gamma_prev, self.rows = state.gamma, state.gamma_prev, list(state.done_rows())
 
@@ -255,7 +255,7 @@ class TimeLoop:
     def capture(self, step: int, time: float) -> LoopState:
         """The loop's state at the start of ``step``, to go back to or to write."""
         return LoopState.capture(step, time, self.origin, self.wakes, self.gamma, self.gamma_prev,
-                                 self.rows, self.cache)
+                                 self.rows, self.cache, self.bodies)
 
     def run(self, progress=None) -> Run:
         """Run the steps left; see :func:`wakes.run.run_case` for ``progress`` and the result."""
@@ -302,7 +302,7 @@ class TimeLoop:
                 good, done_strips = previous, previous_strips
                 message += (f"; the last good state is the start of step {good.step} "
                             f"(t = {good.time:.6g} s)")
-            good.restore(self.wakes)
+            good.restore(self.wakes, bodies=self.bodies)
             self.rows, self.strips, wake_time = good.done_rows(), done_strips, good.time
             t = self.rows[-1]["time_s"] if self.rows else good.time
         bodies = self.bodies

@@ -12,6 +12,10 @@ A body model is built from its case spec and answers:
 * ``tables()`` -- extra result tables ``{file name: DataFrame}`` (may be empty).
 * ``new_wake(surface, time, settings)`` -- an empty wake for one of its
   surfaces (a wing's: :class:`WakeSheet`; a rotor blade's may roll up).
+* ``motion_state()`` / ``restore_motion_state(state)`` -- the body's own
+  state that one step hands to the next, ``{name: ndarray or float}``
+  (a flapping rotor's flap angles; empty when the motion is a function of
+  time), captured with the loop's state and stored in checkpoints.
 
 :data:`BODY_MODELS` maps the case's body ``type`` to the model class; new
 body types (rotors, propellers, turbines) register here.

@@ -47,6 +47,18 @@ its quarter-chord line, where its section point (the lifting line) lies,
 so the pitch rate moves no section point; the lifting line's sections are
 quasi-steady in the pitch rate.
 
+Flapping
+--------
+A rotor with a flap hinge (:mod:`wakes.aero.flap`) turns each blade as a
+rigid body about the hinge axis e_r x a through the hinge point h + e e_r
+(e the hinge offset, at most the root cut-out): at flap angle beta its
+quarter-chord line runs from the hinge along e_s = cos beta e_r + sin beta
+a, its chord directions follow (a' as above with beta), and its sections
+move with the rotation plus the flap rate, beta' (e_r x a) x (x - h - e e_r),
+so the onset flow, the circulation, the shed wake and the loads all see the
+flapping. Blade coordinate r is still measured along the blade from the hub
+centre (hub to hinge, then along the blade).
+
 Every blade becomes one :class:`wakes.aero.geometry.LiftingSurface` with a
 single chordwise panel (the nonlinear lifting line of
 :mod:`wakes.aero.lifting_line`); its spanwise nodes run root to tip for
@@ -163,6 +175,10 @@ class RotorGeometry:
         Station spacing (:func:`blade_stations`).
     cyclic_cos, cyclic_sin : float
         Cyclic pitch theta_1c and theta_1s [deg] (module notes).
+    hinge_offset : float
+        Distance e of the blades' flap hinges from the hub centre along the
+        radial line [m], at most ``root_cutout`` (used when the blades flap:
+        :meth:`blade_surface` with ``flap``).
     downstream : tuple of float or None
         The freestream [m/s] (any vector) whose part across the axis sets
         the azimuth origin psi = 0; None or a freestream along the axis:
@@ -185,6 +201,7 @@ class RotorGeometry:
     spacing: str = "cosine"
     cyclic_cos: float = 0.0
     cyclic_sin: float = 0.0
+    hinge_offset: float = 0.0
     downstream: tuple | None = None
 
     @property
@@ -283,17 +300,33 @@ class RotorGeometry:
         """The cyclic pitch [deg] of blade ``blade`` (0-based) at ``time`` [s] (:meth:`cyclic_at`)."""
         return float(self.cyclic_at(self.blade_azimuth(blade, time)))
 
-    def blade_surface(self, blade: int, time: float, polars, name: str) -> LiftingSurface:
+    def radial_direction(self, blade: int, time: float) -> np.ndarray:
+        """Unit radial direction e_r (3,) of blade ``blade`` (0-based) at ``time`` [s], in the disc plane."""
+        a, e0, e90 = self.frame()
+        psi = self.blade_angle(blade, time)
+        return np.cos(psi) * e0 + np.sin(psi) * e90
+
+    def flap_hinge(self, blade: int, time: float) -> tuple[np.ndarray, np.ndarray]:
+        """Hinge point [m] and unit hinge axis e_r x a (turning the blade towards +a) of a blade, (3,) each."""
+        e_r = self.radial_direction(blade, time)
+        a = self.frame()[0]
+        return np.asarray(self.hub, dtype=np.float64) + self.hinge_offset * e_r, np.cross(e_r, a)
+
+    def blade_surface(self, blade: int, time: float, polars, name: str, flap=None) -> LiftingSurface:
         """Blade ``blade`` (0-based) at ``time`` [s] as a lifting-line surface, global frame.
 
         Its sections are pitched by collective, twist and the cyclic pitch
-        at the blade's azimuth at ``time``.
+        at the blade's azimuth at ``time``. Without ``flap`` the blade is
+        coned by ``precone`` about the hub centre and moves with the
+        rotation; with ``flap = (beta, rate)`` [rad, rad/s] it is turned by
+        beta about its flap hinge (:meth:`flap_hinge`) and its sections
+        move with the rotation plus beta' (e_r x a) x (x - x_hinge).
         """
         a, e0, e90 = self.frame()
         psi = self.blade_angle(blade, time)
         e_r = np.cos(psi) * e0 + np.sin(psi) * e90
         m = self.spin * np.cross(a, e_r)
-        beta = np.radians(self.precone)
+        beta = np.radians(self.precone) if flap is None else float(flap[0])
         e_s = np.cos(beta) * e_r + np.sin(beta) * a
         a_p = np.cos(beta) * a - np.sin(beta) * e_r
         r_nodes, r_sec = self.blade_radii()
@@ -308,7 +341,13 @@ class RotorGeometry:
             return -np.cos(th)[:, None] * m - np.sin(th)[:, None] * a_p
 
         hub = np.asarray(self.hub, dtype=np.float64)
-        qc = hub + r_nodes[:, None] * e_s
+        motion = self.rotation().velocity
+        if flap is None:
+            qc = hub + r_nodes[:, None] * e_s
+        else:
+            hinge, hinge_axis = self.flap_hinge(blade, time)
+            qc = hinge + (r_nodes - self.hinge_offset)[:, None] * e_s
+            motion = _flapping_motion(self.rotation(), hinge, float(flap[1]) * hinge_axis)
         fraction = (r_sec - r_nodes[:-1]) / (r_nodes[1:] - r_nodes[:-1])
         c_nodes, t_nodes = self.chord(eta_nodes), chord_dir(eta_nodes)
         c_sec, t_sec, station = self.chord(eta_sec), chord_dir(eta_sec), r_sec / self.radius
@@ -317,7 +356,7 @@ class RotorGeometry:
             c_sec, t_sec, station, fraction = c_sec[::-1], t_sec[::-1], station[::-1], 1.0 - fraction[::-1]
         return build_surface(name, qc, c_nodes, t_nodes, station, c_sec, t_sec, n_chord=1,
                              lifting_line=True, polars=polars, section_fraction=fraction,
-                             motion=self.rotation().velocity)
+                             motion=motion)
 
     def strip_radii(self) -> tuple[np.ndarray, np.ndarray]:
         """Section r [m] and strip width dr [m] of each strip, in the surface's node order."""
@@ -329,3 +368,13 @@ class RotorGeometry:
         """Section pitch collective + twist [deg] at eta, without the cyclic pitch."""
         return self.collective + self.twist(np.asarray(eta, dtype=np.float64))
 
+
+
+def _flapping_motion(rotation: RigidRotation, hinge: np.ndarray, flap_rate_vector: np.ndarray):
+    """Velocity of a flapping blade's points: the rotation's plus the flap rate vector x (x - hinge)."""
+
+    def velocity(points):
+        p = np.asarray(points, dtype=np.float64)
+        return rotation.velocity(p) + np.cross(flap_rate_vector, p - hinge)
+
+    return velocity

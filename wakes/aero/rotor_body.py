@@ -16,6 +16,7 @@ import dataclasses
 import numpy as np
 import pandas as pd
 
+from .flap import FlapState, flap_harmonics, flap_step, hinge_moments
 from .polars import SectionPolars
 from .rotor import blade_turn_deg, is_axial_flow
 from .rotor_loads import (
@@ -96,10 +97,48 @@ class RotorBody:
         self._azimuth_samples = collections.deque(maxlen=self.steps_per_revolution)
         self._disc_samples = collections.deque(maxlen=self.steps_per_revolution)
         self._chord = g.chord((self.r - g.root_cutout) / (g.radius - g.root_cutout))
+        self.hinge = spec.flap_hinge()
+        self.lock_number = spec.lock_number(case.fluid.density)
+        # flap states of the last step and the next (the next one's surfaces place the wake's move)
+        self._flap = ([] if self.hinge is None else
+                      [FlapState(0.0, np.full(g.blades, self.hinge.rest_angle), np.zeros(g.blades))])
+
+    def flap_state(self, time: float) -> FlapState | None:
+        """The blades' flap state kept nearest to ``time`` [s] (the step's or the next), None without flapping.
+
+        The loop asks for the surfaces at the time of the step it runs and
+        at the step after (the wake's move); a body built afresh has the
+        start's state only.
+        """
+        if not self._flap:
+            return None
+        return min(self._flap, key=lambda s: abs(s.time - time))
+
+    def motion_state(self) -> dict:
+        """The blades' flap state at the start of the next step (empty without flapping)."""
+        if not self._flap:
+            return {}
+        s = self._flap[-1]
+        out = {"flap_time": float(s.time), "flap_beta": s.beta, "flap_rate": s.rate}
+        if s.air_moment is not None:
+            out["flap_air_moment"] = s.air_moment
+        return out
+
+    def restore_motion_state(self, state: dict) -> None:
+        """Go on from a :meth:`motion_state` (read from a checkpoint)."""
+        if self._flap and state:
+            self._flap = [FlapState(float(state["flap_time"]), np.asarray(state["flap_beta"], dtype=np.float64),
+                                    np.asarray(state["flap_rate"], dtype=np.float64),
+                                    state.get("flap_air_moment"))]
 
     def surfaces(self, time: float) -> list:
-        """The blades at ``time`` [s], one lifting-line surface each, named ``NAME/blade K``."""
-        return [self.geometry.blade_surface(k, time, self.polars, f"{self.name}/blade {k + 1}")
+        """The blades at ``time`` [s], one lifting-line surface each, named ``NAME/blade K``.
+
+        Flapping blades are placed at their flap state (:meth:`flap_state`).
+        """
+        flap = self.flap_state(time)
+        return [self.geometry.blade_surface(k, time, self.polars, f"{self.name}/blade {k + 1}",
+                                            flap=None if flap is None else (flap.beta[k], flap.rate[k]))
                 for k in range(self.geometry.blades)]
 
     def new_wake(self, surface, time: float, settings):
@@ -178,11 +217,28 @@ class RotorBody:
         row.update(flight_forces(hub, row["thrust_N"], self.frame, self.wind_frame))
         for k, t in enumerate(f["thrust"]):
             row[f"blade_{k + 1}_thrust_N"] = float(t)
+        if self._flap:
+            row.update(self._flap_columns(strips))
         if self._wakes:
             w = self._wakes[0]
             t = float(w.near_time[0])
             if t > self.end_time - self.geometry.period + 0.5 * self.dt:
                 self._tip_samples.append(w.tip_vortex(t))
+        return row
+
+    def _flap_columns(self, strips: list) -> dict:
+        """Each blade's flap angle and air moment about its hinge at this step; steps the flap state on.
+
+        The strips are those of the blades placed at the last flap state.
+        """
+        g, state = self.geometry, self._flap[-1]
+        placed = [g.flap_hinge(k, state.time) for k in range(g.blades)]
+        moment = hinge_moments(strips, np.array([p for p, _ in placed]), np.array([a for _, a in placed]))
+        self._flap = [state, flap_step(self.hinge, state, moment, g.omega, self.dt)]
+        row = {}
+        for k in range(g.blades):
+            row[f"blade_{k + 1}_flap_deg"] = float(np.degrees(state.beta[k]))
+            row[f"blade_{k + 1}_hinge_moment_Nm"] = float(moment[k])
         return row
 
     def _totals(self, thrust: float, torque_induced: float, torque_profile: float) -> dict:
@@ -283,4 +339,23 @@ class RotorBody:
         out["collective_deg"] = float(g.collective)
         eta_075 = (0.75 * g.radius - g.root_cutout) / (g.radius - g.root_cutout)
         out["pitch_075R_deg"] = float(g.pitch(eta_075)) if eta_075 >= 0.0 else float("nan")
+        if self.hinge is not None:
+            out.update(self._flap_summary(last))
         return out
+
+    def _flap_summary(self, last: pd.DataFrame) -> dict:
+        """Coning and first-harmonic flapping over the last revolution, every blade's samples together.
+
+        beta(psi) = beta_0 + beta_1c cos psi + beta_1s sin psi fitted to each
+        blade's flap angle at its azimuth psi at each step
+        (:func:`wakes.aero.flap.flap_harmonics`); psi as the cyclic pitch's
+        (from downstream, in the sense of rotation).
+        """
+        g = self.geometry
+        times = last["time_s"].to_numpy()
+        beta = np.concatenate([last[f"blade_{k + 1}_flap_deg"].to_numpy() for k in range(g.blades)])
+        psi = np.concatenate([[g.blade_azimuth(k, t) for t in times] for k in range(g.blades)])
+        b0, b1c, b1s = flap_harmonics(beta, psi)
+        return {"coning_deg": b0, "flap_cos_deg": b1c, "flap_sin_deg": b1s,
+                "flap_frequency_ratio": float(np.sqrt(self.hinge.frequency_ratio_squared(g.omega))),
+                "lock_number": float(self.lock_number)}

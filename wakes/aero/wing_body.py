@@ -90,6 +90,13 @@ class WingBody:
         """No extra tables for a wing."""
         return {}
 
+    def motion_state(self) -> dict:
+        """Nothing: a wing's motion is a function of time."""
+        return {}
+
+    def restore_motion_state(self, state: dict) -> None:
+        """Nothing to restore (:meth:`motion_state`)."""
+
     def summary(self, loads: pd.DataFrame) -> dict:
         """The last step's totals and coefficients."""
         last = loads[loads["body"] == self.name].iloc[-1]

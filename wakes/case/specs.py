@@ -37,6 +37,7 @@ import numpy as np
 
 from ..aero.clearance import contact_point, disc_triangles, wing_triangles
 from ..aero.geometry import SPACINGS, Distribution, WingPlanform, rotation_matrix
+from ..aero.flap import FlapHinge
 from ..aero.ground import GroundPlane
 from ..aero.gust import GUST_SHAPES, Gust, upward_normal
 from ..aero.polars import OUT_OF_RANGE_MODES, has_mach_column
@@ -380,6 +381,45 @@ class TrimSpec:
         named = (("thrust_N", self.thrust), ("roll_moment_Nm", self.roll_moment),
                  ("pitch_moment_Nm", self.pitch_moment))
         return {k: float(v) for k, v in named if v is not None}
+
+
+MAX_FLAP_INERTIA = 1e7       # largest blade flap inertia accepted [kg m^2] (a typo guard; ours)
+MAX_FLAP_SPRING = 1e12       # stiffest hinge spring accepted [N m/rad] (a typo guard; ours)
+#: Largest nominal aerodynamic flap damping per step, gamma (Omega dt)/8, accepted: the flap step
+#: is stable below 1 (wakes.aero.flap); half of it leaves room for a damping above the nominal
+#: (lift slope, chord law, root cut-out). Ours.
+MAX_FLAP_DAMPING_STEP = 0.5
+
+
+@dataclass(frozen=True, kw_only=True)
+class FlapSpec:
+    """[bodies.NAME.flap]: rigid blade flapping about a hinge (none without ``inertia``).
+
+    Each blade turns about a hinge at ``hinge_offset`` from the hub centre,
+    restrained by a spring unloaded at the rotor's ``precone``, driven by
+    its air loads and held out by the centrifugal force
+    (:mod:`wakes.aero.flap`). The blade's mass is taken as uniform between
+    the hinge and the tip.
+    """
+
+    inertia: float | None = key(None, "flap inertia of one blade about its hinge; given: the blades "
+                                "flap", "kg m^2", above=0.0, minimum=1e-12, maximum=MAX_FLAP_INERTIA)
+    hinge_offset: float = key(0.0, "distance of the flap hinge from the hub centre along the blade, at "
+                              "most the root cut-out", "m", minimum=0.0, maximum=MAX_LENGTH)
+    spring: float = key(0.0, "hinge spring, unloaded at the precone; negative only while the "
+                        "centrifugal stiffness outweighs it", "N m/rad", minimum=-MAX_FLAP_SPRING,
+                        maximum=MAX_FLAP_SPRING)
+
+    @property
+    def flaps(self) -> bool:
+        """Whether the blades flap (an inertia is given)."""
+        return self.inertia is not None
+
+    def after_parse(self, raw: dict, where: str, ctx) -> FlapSpec:
+        if self.inertia is None and raw:
+            ctx.fail(f"{where}.inertia must be given for flapping blades (a positive number, kg m^2, "
+                     f"the blade's flap inertia about its hinge); got {', '.join(sorted(raw))} without it")
+        return self
 
 
 DEFAULT_MOTION_STEPS = 32
@@ -732,6 +772,7 @@ class RotorSpec:
                                      maximum=MAX_REVOLUTIONS)
     airfoil: AirfoilSpec = key(AirfoilSpec(), "section polar", kind="table")
     trim: TrimSpec = key(TrimSpec(), "target loads the controls are trimmed to", kind="table")
+    flap: FlapSpec = key(FlapSpec(), "rigid blade flapping about a hinge", kind="table")
     name: str = field(default="rotor", metadata=dict(internal=True))
 
     def geometry(self, freestream=None) -> RotorGeometry:
@@ -746,12 +787,48 @@ class RotorSpec:
                              rpm=self.rpm, spin=1 if self.spin == "ccw" else -1, hub=self.hub,
                              axis=self.axis, precone=self.precone, azimuth0=self.azimuth,
                              panels=self.panels, spacing=self.spacing, cyclic_cos=self.cyclic_cos,
-                             cyclic_sin=self.cyclic_sin,
+                             cyclic_sin=self.cyclic_sin, hinge_offset=self.flap.hinge_offset,
                              downstream=None if freestream is None else tuple(float(v) for v in freestream))
 
     def mean_chord(self) -> float:
         """Chord averaged along the blade [m]."""
         return self.geometry().mean_chord()
+
+    def flap_hinge(self) -> FlapHinge | None:
+        """The blades' flap hinge, spring and inertia, or None when they do not flap."""
+        f = self.flap
+        if not f.flaps:
+            return None
+        return FlapHinge(offset=f.hinge_offset, spring=f.spring, inertia=f.inertia, radius=self.radius,
+                         rest_angle=math.radians(self.precone))
+
+    def lock_number(self, density: float) -> float:
+        """Nominal Lock number gamma = rho a c R^4 / I_b, a = 2 pi /rad and c the thrust-weighted chord.
+
+        c = 3 int c r^2 dr / R^3 (as in the solidity); NaN when the blades do not flap.
+        """
+        if not self.flap.flaps:
+            return float("nan")
+        g = self.geometry()
+        chord = g.solidity() * math.pi * self.radius / self.blades
+        return density * 2.0 * math.pi * chord * self.radius ** 4 / self.flap.inertia
+
+    def _check_flap(self, where: str, ctx) -> None:
+        f, w = self.flap, f"{where}.flap"
+        if not f.flaps:
+            return
+        if not f.hinge_offset <= self.root_cutout:
+            ctx.fail(f"{w}.hinge_offset must be at most {where}.root_cutout = {self.root_cutout:g} m (the "
+                     f"lifting blade lies outboard of the hinge); got {f.hinge_offset:g} m")
+        hinge = self.flap_hinge()
+        omega = 2.0 * math.pi * self.rpm / 60.0
+        nu2 = hinge.frequency_ratio_squared(omega)
+        if not nu2 > 0.0:
+            least = -f.inertia * omega * omega * (nu2 - f.spring / (f.inertia * omega * omega))
+            ctx.fail(f"{w}.spring = {f.spring:g} N m/rad makes the blade's flap stiffness negative "
+                     f"(nu_beta^2 = {nu2:.4g}, the flap frequency ratio squared); the blade would not "
+                     f"come back: {w}.spring must be above {least:.6g} N m/rad, where it cancels the "
+                     f"centrifugal stiffness at {self.rpm:g} rpm")
 
     def after_parse(self, raw: dict, where: str, ctx) -> RotorSpec:
         if not self.root_cutout <= MAX_CUTOUT * self.radius:
@@ -768,6 +845,7 @@ class RotorSpec:
             ctx.fail(f"{where}: the blade tips move at {tip_speed:.4g} m/s ({where}.radius = "
                      f"{self.radius:g} m at {self.rpm:g} rpm); at most {MAX_SPEED:g} m/s is accepted: "
                      f"rpm must be at most {MAX_SPEED * 60.0 / (2.0 * math.pi * self.radius):.4g}")
+        self._check_flap(where, ctx)
         return self
 
     def outline(self) -> np.ndarray:
@@ -801,6 +879,19 @@ class RotorSpec:
         if self.symmetric_wake and not is_axial_flow(case.freestream.vector(), a):
             ctx.fail(f"{where}.symmetric_wake = true needs axial flow (hover, climb, axial wind); the "
                      f"[freestream] velocity has {across:g} m/s across {where}.axis")
+        if self.flap.flaps:
+            turn = math.radians(blade_turn_deg(self.rpm, step_of(case)))
+            gamma = self.lock_number(case.fluid.density)
+            if gamma * turn / 8.0 > MAX_FLAP_DAMPING_STEP:
+                least = gamma * self.flap.inertia * turn / (8.0 * MAX_FLAP_DAMPING_STEP)
+                most = math.degrees(8.0 * MAX_FLAP_DAMPING_STEP / gamma)
+                ctx.fail(f"{where}.flap.inertia = {self.flap.inertia:g} kg m^2 is too light for the time "
+                         f"step: the blades' nominal Lock number {gamma:.4g} times the step's turn "
+                         f"({math.degrees(turn):.3g} deg) over 8 is {gamma * turn / 8.0:.3g}, at most "
+                         f"{MAX_FLAP_DAMPING_STEP:g} is accepted (the flap step goes unstable near 1): "
+                         f"{where}.flap.inertia must be at least {least:.4g} kg m^2, or the step "
+                         f"shorter (time.dt at most {dt_for_turn(most, self.rpm):.4g} s, a turn of "
+                         f"{most:.3g} deg: {where}.azimuth_step)")
         if self.kind == "propeller" and axial > 0.0:
             ctx.fail(f"{where}: a propeller's axis points forward, against the relative wind; the "
                      f"[freestream] velocity along {where}.axis is {axial:g} m/s, it must be zero "
@@ -993,6 +1084,13 @@ def _occupies(body) -> str:
             else f"the disc swept by the blades of {body.name}")
 
 
+def step_of(case: Case) -> float:
+    """The time step [s] of a case: ``[time] dt`` or, not given, the shortest its bodies suggest."""
+    if case.time.dt is not None:
+        return case.time.dt
+    return tidy(min(b.suggest_dt(case) for b in case.bodies))
+
+
 def _resolve(case: Case) -> Case:
     """Fill the defaults that depend on the rest of the case."""
     bodies = tuple(b.resolve(case) for b in case.bodies)
@@ -1002,7 +1100,7 @@ def _resolve(case: Case) -> Case:
         chord = min(b.mean_chord() for b in bodies)
         wake = dataclasses.replace(wake, core_radius=tidy(DEFAULT_CORE_CHORDS * chord))
     time = case.time
-    dt = time.dt if time.dt is not None else tidy(min(b.suggest_dt(case) for b in bodies))
+    dt = step_of(case)
     if not (math.isfinite(dt) and MIN_DT <= dt <= MAX_DT):
         raise CaseError(f"{case.source}: [time] dt: the default step from the case's sizes and speeds is "
                         f"{dt:g} s, outside the accepted {MIN_DT:g} to {MAX_DT:g} s; give [time] dt, a "
@@ -1086,7 +1184,8 @@ def case_reference() -> str:
     sections += [(f"bodies.NAME] (type = \"{t}\")", cls) for t, cls in BODY_TYPES.items()]
     sections.insert(sections.index(("freestream", FreestreamSpec)) + 1, ("freestream.gust", GustSpec))
     sections += [("bodies.NAME.airfoil", AirfoilSpec), ("bodies.NAME.motion] (type = \"wing\")", WingMotionSpec),
-                 ("bodies.NAME.trim] (type = \"rotor\")", TrimSpec)]
+                 ("bodies.NAME.trim] (type = \"rotor\")", TrimSpec),
+                 ("bodies.NAME.flap] (type = \"rotor\")", FlapSpec)]
     out = []
     for name, cls in sections:
         out.append(f"\n### [{name}" + ("" if name.endswith(")") else "]") if name else "\n### top level")

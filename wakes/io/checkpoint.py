@@ -16,6 +16,9 @@ What the loop carries from one step to the next, and so what is stored:
 * the loads rows so far;
 * every wake's arrays (node rows, ring circulations, row times, particles)
   and scalars, whatever wake class a body uses;
+* every body's own state that one step hands to the next (a flapping
+  rotor's flap angles, rates and last air moments; ``motion_state()`` of
+  the body models, :mod:`wakes.aero.bodies`);
 * the influence blocks that a rotating surface reuses by a rigid rotation of
   a block computed at an earlier step (recomputing them would round
   differently); blocks of surfaces that did not move are recomputed
@@ -75,6 +78,9 @@ class LoopState:
     blocks : dict
         Influence-cache entries ``{(source, target): (ref_points, ref_block,
         last_points, last_block)}`` of blocks reused by rotation.
+    bodies : list of dict
+        Per body: its ``motion_state()`` (arrays and floats; empty for a
+        body whose motion is a function of time).
     """
 
     step: int
@@ -86,6 +92,7 @@ class LoopState:
     wakes: list
     blocks: dict = field(default_factory=dict)
     n_rows: int = -1
+    bodies: list = field(default_factory=list)
 
     def __post_init__(self):
         if self.n_rows < 0:
@@ -96,20 +103,22 @@ class LoopState:
         return self.rows[:self.n_rows]
 
     @classmethod
-    def capture(cls, step, time, origin, wakes, gamma, gamma_prev, rows, cache=None) -> LoopState:
+    def capture(cls, step, time, origin, wakes, gamma, gamma_prev, rows, cache=None, bodies=()) -> LoopState:
         """Record the loop's state without copying arrays.
 
         The loop replaces a wake's arrays instead of writing into them, so
         references taken here keep showing the state at the start of the
-        step even after the step has moved the wake on.
+        step even after the step has moved the wake on (the bodies' motion
+        states, likewise, are replaced, not written into).
         """
         kept = [_wake_record(w) for w in wakes]
         blocks = cache.rotated_blocks() if cache is not None else {}
         return cls(int(step), float(time), (int(origin[0]), float(origin[1])), gamma,
-                   gamma_prev, rows, kept, blocks, len(rows))
+                   gamma_prev, rows, kept, blocks, len(rows), [b.motion_state() for b in bodies])
 
-    def restore(self, wakes, cache=None) -> None:
-        """Put the stored wake arrays into freshly built ``wakes`` (and the cache blocks)."""
+    def restore(self, wakes, cache=None, bodies=()) -> None:
+        """Put the stored wake arrays into freshly built ``wakes`` (and the cache blocks, and the
+        ``bodies``' motion states)."""
         if len(wakes) != len(self.wakes):
             raise CheckpointError(f"the checkpoint holds {len(self.wakes)} wakes but the case "
                                   f"builds {len(wakes)}; it was written for another case")
@@ -121,6 +130,12 @@ class LoopState:
                 setattr(w, name, value)
         if cache is not None and self.blocks:
             cache.restore_blocks(self.blocks)
+        if bodies and self.bodies:
+            if len(bodies) != len(self.bodies):
+                raise CheckpointError(f"the checkpoint holds {len(self.bodies)} bodies but the case "
+                                      f"builds {len(bodies)}; it was written for another case")
+            for body, state in zip(bodies, self.bodies):
+                body.restore_motion_state(state)
 
 
 def _wake_record(wake) -> dict:
@@ -160,11 +175,21 @@ def checkpoint_bytes(state: LoopState, case_toml: str, source: str = "<dict>") -
         blocks_meta.append(list(key))
         for part, value in zip(("ref_points", "ref_block", "last_points", "last_block"), entry):
             arrays[f"block{j}/{part}"] = value
+    bodies_meta = []
+    for i, state_i in enumerate(state.bodies):
+        scalars, names = {}, []
+        for name, value in state_i.items():
+            if isinstance(value, np.ndarray):
+                arrays[f"body{i}/{name}"] = value
+                names.append(name)
+            else:
+                scalars[name] = _plain(value)
+        bodies_meta.append({"arrays": names, "scalars": scalars})
     meta = {"format": CHECKPOINT_FORMAT, "version": CHECKPOINT_VERSION, "step": state.step,
             "time": state.time, "origin": list(state.origin), "case_toml": case_toml,
             "source": source,
             "rows": [{k: _plain(v) for k, v in r.items()} for r in state.done_rows()],
-            "wakes": wakes_meta, "blocks": blocks_meta}
+            "wakes": wakes_meta, "blocks": blocks_meta, "bodies": bodies_meta}
     # allow_nan: a loads value may be inf or nan; Python's reader takes the tokens back exactly
     arrays["meta"] = np.array(json.dumps(meta, allow_nan=True))
     buf = BytesIO()
@@ -223,10 +248,15 @@ def read_checkpoint(path) -> tuple[LoopState, str, str]:
         blocks = {tuple(key): tuple(arrays[f"block{j}/{part}"] for part in
                                     ("ref_points", "ref_block", "last_points", "last_block"))
                   for j, key in enumerate(meta["blocks"])}
+        bodies = []
+        for i, b in enumerate(meta.get("bodies", [])):   # none in checkpoints of earlier versions
+            body = {name: arrays[f"body{i}/{name}"] for name in b["arrays"]}
+            body.update(b["scalars"])
+            bodies.append(body)
         state = LoopState(step=int(meta["step"]), time=float(meta["time"]),
                           origin=(int(meta["origin"][0]), float(meta["origin"][1])),
                           gamma=arrays["gamma"], gamma_prev=arrays.get("gamma_prev"),
-                          rows=list(meta["rows"]), wakes=wakes, blocks=blocks)
+                          rows=list(meta["rows"]), wakes=wakes, blocks=blocks, bodies=bodies)
         return state, str(meta["case_toml"]), str(meta.get("source", "<dict>"))
     except (KeyError, TypeError, ValueError, IndexError) as exc:
         raise CheckpointError(f"checkpoint '{path}' is incomplete ({type(exc).__name__}: {exc})") from None
