@@ -90,7 +90,8 @@ PERIODIC_CHANGE = "thrust_change_last_revolution"
 ORDER_ACCURACY = 0.3
 #: Summary figures that are the case's inputs or bookkeeping, not loads: given no band.
 NOT_LOADS = frozenset({"revolutions", "averaged_steps", "solidity", "collective_deg", "pitch_075R_deg",
-                       "thrust_change_last_revolution", "mu", "J", "tip_speed_ratio", "advance_ratio"})
+                       "thrust_change_last_revolution", "mu", "J", "tip_speed_ratio", "advance_ratio",
+                       "flap_frequency_ratio", "lock_number"})
 
 
 @dataclass(frozen=True)

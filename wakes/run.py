@@ -294,7 +294,7 @@ def write_run(run, out: str | os.PathLike, *, plots: bool = True) -> list[Path]:
     paths = run.write(out)
     sources = [e for elements in run.wake.values() for e in elements]
     snapshots = WakeSnapshots(out, keep_before=run.wake_step)
-    paths += (snapshots.write(run.wake_step, run.wake_time_s, sources, run.surfaces(run.wake_time_s))
+    paths += (snapshots.write(run.wake_step, run.wake_time_s, sources, run.placed_surfaces)
               + write_parquet(run, out))
     if plots:
         paths += plot_run(out, overwrite=True)

@@ -107,6 +107,9 @@ class Run:
         finished run, the step to resume from for a partial one).
     wake_time_s : float
         The time of that wake [s].
+    placed_surfaces : list
+        The bodies' lifting surfaces at ``wake_time_s`` as the loop left
+        them (flapping blades at their flap angles), drawn with the wake.
     """
 
     case: Case
@@ -122,9 +125,11 @@ class Run:
     tables: dict = field(default_factory=dict, repr=False)
     wake_step: int = 0
     wake_time_s: float = 0.0
+    placed_surfaces: list = field(default_factory=list, repr=False)
 
     def surfaces(self, time: float) -> list:
-        """The lifting surfaces of every body at ``time`` [s] (built again from the case)."""
+        """The lifting surfaces of every body at ``time`` [s] (built again from the case: flapping
+        blades at their starting angle; :attr:`placed_surfaces` has them as the run left them)."""
         return [s for spec in self.case.bodies for s in BODY_MODELS[spec.type](spec, self.case).surfaces(time)]
 
     def write(self, out_dir) -> list[Path]:
@@ -314,6 +319,7 @@ class TimeLoop:
         run.status, run.message = status, message
         run.wake_step = steps - 1 if status == "finished" else good.step
         run.wake_time_s = t if wake_time is None else wake_time
+        run.placed_surfaces = [s for b in bodies for s in b.surfaces(run.wake_time_s)]
         run.resume_state = good if status != "finished" else None
         run.summary.update(run_status(run, steps_done))
         run.summary["warnings"] = plausibility_warnings(run, bodies)

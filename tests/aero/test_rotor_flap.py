@@ -124,6 +124,11 @@ def test_hover_cones_the_blades_up_by_the_balance_of_air_and_centrifugal_moments
     estimate = np.degrees(s["lock_number"] / 8.0 * (np.radians(s["pitch_075R_deg"])
                                                      - 4.0 / 3.0 * s["inflow_ratio_lambda"]))
     assert s["coning_deg"] == pytest.approx(estimate, rel=0.25)
+    # the blades drawn with the final wake stand at the last step's flap angle
+    blade = hover.placed_surfaces[0]
+    along = blade.section_points[-1] - blade.section_points[0]
+    assert np.degrees(np.arcsin(along[2] / np.linalg.norm(along))) == pytest.approx(
+        hover.loads["blade_1_flap_deg"].iloc[-1], abs=1e-9)
     # hover: no first-harmonic flapping
     assert abs(s["flap_cos_deg"]) < 1e-3 and abs(s["flap_sin_deg"]) < 1e-3
 

@@ -197,7 +197,9 @@ class RotorBody:
 
         Keeps the section values and blade azimuths of the last
         ``steps_per_revolution`` steps and, over the last revolution,
-        samples blade 1's tip-vortex path, for :meth:`tables`.
+        samples blade 1's tip-vortex path, for :meth:`tables`. Flapping
+        blades add each blade's flap angle and air moment about its hinge
+        and step their flap state on (:meth:`_flap_columns`).
         """
         g = self.geometry
         f = blade_forces(strips, self.hub, self.axis, g.spin)
@@ -309,6 +311,10 @@ class RotorBody:
         twist is zero) and ``pitch_075R_deg`` the blade pitch, collective
         plus twist, at r = 0.75 R, where the collective of a twisted blade is
         commonly quoted [deg] (NaN when 0.75 R lies inside the root cut-out).
+        Flapping blades add ``coning_deg``, ``flap_cos_deg`` and
+        ``flap_sin_deg`` (:meth:`_flap_summary`), ``flap_frequency_ratio``
+        nu_beta and the nominal ``lock_number``
+        (:meth:`wakes.case.RotorSpec.lock_number`).
         """
         mine = loads[loads["body"] == self.name]
         n = self.steps_per_revolution

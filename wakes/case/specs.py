@@ -36,8 +36,8 @@ from pathlib import Path
 import numpy as np
 
 from ..aero.clearance import contact_point, disc_triangles, wing_triangles
-from ..aero.geometry import SPACINGS, Distribution, WingPlanform, rotation_matrix
 from ..aero.flap import FlapHinge
+from ..aero.geometry import SPACINGS, Distribution, WingPlanform, rotation_matrix
 from ..aero.ground import GroundPlane
 from ..aero.gust import GUST_SHAPES, Gust, upward_normal
 from ..aero.polars import OUT_OF_RANGE_MODES, has_mach_column
