@@ -139,3 +139,8 @@ def test_harmonics_fit_unequal_samples():
     psi = np.array([0.1, 0.9, 2.0, 2.5, 3.9, 5.0, 5.9])
     beta = 2.0 + 0.3 * np.cos(psi) - 0.7 * np.sin(psi)
     np.testing.assert_allclose(flap_harmonics(beta, psi), (2.0, 0.3, -0.7), atol=1e-12)
+
+
+def test_harmonics_are_nan_when_the_azimuths_do_not_fix_them():
+    """Two blades at one step (opposite azimuths) leave the first harmonic undetermined."""
+    assert all(np.isnan(flap_harmonics([1.0, 2.0], [0.3, 0.3 + np.pi])))

@@ -234,7 +234,8 @@ def flap_harmonics(beta, psi) -> tuple[float, float, float]:
     The least-squares fit of beta = beta_0 + beta_1c cos psi + beta_1s sin
     psi to the samples ``beta`` at azimuths ``psi`` [rad] (any unit for
     beta; the fit keeps it). Equally spaced samples over a revolution give
-    the Fourier coefficients.
+    the Fourier coefficients. NaN for all three when the azimuths do not
+    determine them (fewer than three distinct ones, or two opposite).
 
     Examples
     --------
@@ -245,5 +246,7 @@ def flap_harmonics(beta, psi) -> tuple[float, float, float]:
     beta = np.asarray(beta, dtype=np.float64).ravel()
     psi = np.asarray(psi, dtype=np.float64).ravel()
     basis = np.column_stack([np.ones_like(psi), np.cos(psi), np.sin(psi)])
-    coef = np.linalg.lstsq(basis, beta, rcond=None)[0]
+    coef, _, rank, _ = np.linalg.lstsq(basis, beta, rcond=None)
+    if rank < 3:
+        return (float("nan"),) * 3
     return float(coef[0]), float(coef[1]), float(coef[2])

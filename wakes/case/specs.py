@@ -416,9 +416,11 @@ class FlapSpec:
         return self.inertia is not None
 
     def after_parse(self, raw: dict, where: str, ctx) -> FlapSpec:
-        if self.inertia is None and raw:
+        # a resolved case writes the table back with its defaults: only a hinge or spring set counts
+        given = sorted(k for k in ("hinge_offset", "spring") if getattr(self, k) != 0.0)
+        if self.inertia is None and given:
             ctx.fail(f"{where}.inertia must be given for flapping blades (a positive number, kg m^2, "
-                     f"the blade's flap inertia about its hinge); got {', '.join(sorted(raw))} without it")
+                     f"the blade's flap inertia about its hinge); got {', '.join(given)} without it")
         return self
 
 
