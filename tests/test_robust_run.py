@@ -16,7 +16,9 @@ from wakes.case import parse_case
 from wakes.errors import UnstableRunError
 from wakes.io.checkpoint import list_checkpoints, newest_checkpoint, prepare_resume, read_checkpoint
 from wakes.run import run_case, run_guarded
-from wakes.watchdog import EXIT_UNSTABLE, RunControl
+from wakes.watchdog import EXIT_UNSTABLE
+
+from .resume import stopped_and_resumed
 
 TINY = """title = "tiny"
 [freestream]
@@ -49,22 +51,10 @@ def _write(run, out):
 
 
 def test_interrupt_and_resume_equal_an_uninterrupted_run_bit_for_bit(tmp_path):
-    case = _case(steps=12, every=5)
-    full = run_case(case)
-    control = RunControl(checkpoint_every=5, keep_partial=True,
-                         save=lambda st: __import__("wakes.io.checkpoint", fromlist=["x"])
-                         .write_checkpoint(tmp_path, st, case.to_toml(), case.source))
-
-    def stop_at_7(step, steps):
-        if step == 7:
-            control.stop_signal = signal.SIGINT
-
-    part = run_case(case, control=control, progress=stop_at_7)
+    full, part, state, resumed = stopped_and_resumed(_case(steps=12, every=5), tmp_path)
     assert part.status == "interrupted" and len(part.loads) == 7
     assert [p.name for p in list_checkpoints(tmp_path)] == ["step-0000005.npz", "step-0000007.npz"]
-    resumed_case, state = prepare_resume(tmp_path)
     assert state.step == 7
-    resumed = run_case(resumed_case, resume=state)
     pd.testing.assert_frame_equal(full.loads, resumed.loads, check_exact=True)
     pd.testing.assert_frame_equal(full.sections, resumed.sections, check_exact=True)
     assert full.summary["bodies"] == resumed.summary["bodies"]

@@ -343,7 +343,7 @@ class TimeLoop:
         v_wake = self.induce(with_ground(wake_src, ground), np.vstack([eval_pts, load_pts]),
                              **self.method)
         motion_eval = np.vstack([s.velocity_of(s.eval_points()) for s in surfaces])
-        onset = v_inf + gust_velocity(self.gust, eval_pts, t) - motion_eval + v_wake[:eval_pts.shape[0]]
+        onset = undisturbed_flow(v_inf, self.gust, eval_pts, t) - motion_eval + v_wake[:eval_pts.shape[0]]
         aic, aic_load = self.cache.get(surfaces, eval_pts, load_pts)
         sol = solve_circulation(surfaces, aic, onset, self.gamma, self.solver, step=step, time=t,
                                 linear_cache=self.linear)
@@ -456,11 +456,12 @@ def _assemble(case, bodies, layout, rows, strips, wakes, surfaces, t, wake_time,
     return Run(case, loads, sections, summary, final_wake, wall, tables=extra)
 
 
-def gust_velocity(gust, points: np.ndarray, time: float) -> np.ndarray:
-    """The ``gust``'s velocity (:class:`wakes.aero.gust.Gust`, or None: zero) at ``points`` (M, 3)
-    at ``time`` [s], shape (M, 3) [m/s]."""
+def undisturbed_flow(v_inf: np.ndarray, gust, points: np.ndarray, time: float) -> np.ndarray:
+    """The flow without the bodies and their wakes at ``points`` (M, 3) at ``time`` [s]: the
+    freestream ``v_inf`` (3,) plus the ``gust``'s velocity (:class:`wakes.aero.gust.Gust`, or
+    None), shape (M, 3) [m/s]."""
     points = np.asarray(points, dtype=np.float64).reshape(-1, 3)
-    return np.zeros_like(points) if gust is None else gust.velocity(points, time)
+    return v_inf + (np.zeros_like(points) if gust is None else gust.velocity(points, time))
 
 
 def _strip_loads(surfaces, sol, gamma, aic_load, v_wake_load, v_inf, gamma_prev, dt, rho, gust=None, t=0.0):
@@ -473,7 +474,7 @@ def _strip_loads(surfaces, sol, gamma, aic_load, v_wake_load, v_inf, gamma_prev,
     for si, s in enumerate(surfaces):
         m = s.n_unknowns
         g_prev = None if gamma_prev is None else gamma_prev[k_unk:k_unk + m]
-        onset_sec = v_inf + gust_velocity(gust, s.section_points, t) - s.velocity_of(s.section_points)
+        onset_sec = undisturbed_flow(v_inf, gust, s.section_points, t) - s.velocity_of(s.section_points)
         if s.lifting_line:
             sl = slice(k_eval, k_eval + m)
             v_load = sol.velocity[sl].reshape(1, s.n_span, 3)
@@ -481,7 +482,7 @@ def _strip_loads(surfaces, sol, gamma, aic_load, v_wake_load, v_inf, gamma_prev,
                                    ll_alpha=sol.alpha[sl], ll_cl=sol.cl[sl], ll_cd=sol.cd[sl]))
         else:
             pts = s.bound_midpoints().reshape(-1, 3)
-            v = (v_inf + gust_velocity(gust, pts, t) - s.velocity_of(pts) + v_wake_load[k_load:k_load + m]
+            v = (undisturbed_flow(v_inf, gust, pts, t) - s.velocity_of(pts) + v_wake_load[k_load:k_load + m]
                  + np.einsum("ikn,n->ik", aic_load[k_load:k_load + m], gamma))
             out.append(strip_loads(s, sol.gamma[si], g_prev, dt, v.reshape(s.n_chord, s.n_span, 3),
                                    onset_sec, rho))
@@ -536,8 +537,8 @@ def _advance_wakes(wakes, bodies, surfaces, gammas, gammas_prev, settings, v_inf
         nodes = np.vstack([w.rows.reshape(-1, 3) for w in trial])
         parts = [w.positions for w in trial]
         n_par = sum(p.shape[0] for p in parts)
-        u_nodes = v_inf + gust_velocity(gust, nodes, time)
-        u_par = v_inf + gust_velocity(gust, np.vstack(parts) if n_par else np.zeros((0, 3)), time)
+        u_nodes = undisturbed_flow(v_inf, gust, nodes, time)
+        u_par = undisturbed_flow(v_inf, gust, np.vstack(parts) if n_par else np.zeros((0, 3)), time)
         stretch = None
         if settings.motion == "free":
             src = [surface_filaments(s, g, core=settings.core, core_radius=settings.core_radius,

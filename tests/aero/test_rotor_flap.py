@@ -6,7 +6,6 @@ hub in uniform inflow (Johnson 1980, Helicopter Theory, ch. 5; Leishman 2006, Pr
 Helicopter Aerodynamics, 2nd ed., ch. 4; from memory).
 """
 
-import signal
 import tomllib
 
 import numpy as np
@@ -15,10 +14,9 @@ import pytest
 from wakes.case import parse_case
 from wakes.cli import main
 from wakes.errors import CaseError
-from wakes.io.checkpoint import prepare_resume, write_checkpoint
 from wakes.run import run_case
-from wakes.watchdog import RunControl
 
+from ..resume import stopped_and_resumed
 from .test_rotor_run import BASE
 
 OMEGA = 2.0 * np.pi * 1200.0 / 60.0      # the case's rpm [rad/s]
@@ -153,18 +151,8 @@ def test_flapping_rotor_interrupted_and_resumed_equals_an_uninterrupted_run(tmp_
     and resumed gives the loads of a run that never stopped, bit for bit."""
     case = _case("inertia = 0.003\nhinge_offset = 0.04\nspring = 5.0", extra="[freestream]\nspeed = 8.0\n",
                  revolutions="0.65")
-    full = run_case(case)
-    control = RunControl(checkpoint_every=5, keep_partial=True,
-                         save=lambda st: write_checkpoint(tmp_path, st, case.to_toml(), case.source))
-
-    def stop_at_7(step, steps):
-        if step == 7:
-            control.stop_signal = signal.SIGINT
-
-    part = run_case(case, control=control, progress=stop_at_7)
+    full, part, _, resumed = stopped_and_resumed(case, tmp_path)
     assert part.status == "interrupted"
-    resumed_case, state = prepare_resume(tmp_path)
-    resumed = run_case(resumed_case, resume=state)
     pd.testing.assert_frame_equal(full.loads, resumed.loads, check_exact=True)
     assert len(full.loads) == case.time.steps > 8 and np.ptp(full.loads["blade_1_flap_deg"]) > 0.1
 

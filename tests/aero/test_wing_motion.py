@@ -1,7 +1,6 @@
 """Prescribed harmonic plunge and pitch of a wing: placement, material velocity, case keys."""
 
 import math
-import signal
 
 import numpy as np
 import pandas as pd
@@ -11,9 +10,9 @@ from wakes.aero.wing_body import WingBody
 from wakes.aero.wing_motion import HarmonicMotion, axis_rotation
 from wakes.case import parse_case
 from wakes.errors import CaseError
-from wakes.io.checkpoint import prepare_resume, write_checkpoint
 from wakes.run import run_case
-from wakes.watchdog import RunControl
+
+from ..resume import stopped_and_resumed
 
 
 def _wing(motion, **time):
@@ -104,18 +103,8 @@ def test_moving_wing_interrupted_and_resumed_equals_an_uninterrupted_run(tmp_pat
     the influence blocks turned rigidly are restored from the checkpoint)."""
     case = parse_case(_wing({"plunge_amplitude": 0.02, "pitch_amplitude": 2.0, "frequency": 2.0},
                             dt=0.025, steps=12))
-    full = run_case(case)
-    control = RunControl(checkpoint_every=5, keep_partial=True,
-                         save=lambda st: write_checkpoint(tmp_path, st, case.to_toml(), case.source))
-
-    def stop_at_7(step, steps):
-        if step == 7:
-            control.stop_signal = signal.SIGINT
-
-    part = run_case(case, control=control, progress=stop_at_7)
+    full, part, _, resumed = stopped_and_resumed(case, tmp_path)
     assert part.status == "interrupted"
-    resumed_case, state = prepare_resume(tmp_path)
-    resumed = run_case(resumed_case, resume=state)
     pd.testing.assert_frame_equal(full.loads, resumed.loads, check_exact=True)
     # the motion changes the lift: a wing at rest gives another history
     rest = run_case(parse_case(_wing({}, dt=0.025, steps=12)))
